@@ -1,0 +1,42 @@
+// The forward model of a bench test: material + rig -> predicted readings at requested times.
+// Dispatches to the thin-film spreading model (channel, plate), the squeeze-flow ODE and the static slump model.
+#pragma once
+
+#include <cstddef>
+#include <string>
+#include <vector>
+
+#include "models/rheology.hpp"
+#include "models/rig.hpp"
+
+namespace spreadfit {
+
+/// Numerical settings of the forward solvers. Defaults give < 0.3% error against a converged solution.
+struct ForwardOptions {
+  int cells = 40;                ///< Lagrangian cells of the thin-film models (>= 8)
+  double rel_tol = 2e-5;         ///< relative local error tolerance of the time stepper
+  std::size_t max_steps = 200000;  ///< bound on accepted + rejected steps per solve
+};
+
+enum class SolveStatus { Ok, StepLimit, Failed };
+
+struct ForwardResult {
+  std::vector<double> readings;       ///< one per requested time, in the rig's reading [m]
+  SolveStatus status = SolveStatus::Ok;
+  std::string message;                ///< why a solve failed (empty when Ok)
+  std::vector<std::string> notes;     ///< plain-words remarks on model validity (e.g. slump regime)
+  std::size_t steps = 0;              ///< time steps taken
+  bool ok() const { return status == SolveStatus::Ok; }
+};
+
+/// Readings at the given times [s] (t = 0 is the release; times must be non-decreasing and >= 0).
+/// Throws std::invalid_argument for an invalid material or rig, or a reading the rig does not have.
+ForwardResult predict_readings(const TestSetup& setup, const Material& material, const std::vector<double>& times,
+                               const ForwardOptions& options = {});
+
+/// Reading kinds a rig accepts (front for a channel; radius or diameter for a plate; gap, radius or diameter for
+/// a squeeze; slump for a slump cylinder).
+bool rig_accepts_reading(const Rig& rig, Reading reading);
+std::string_view reading_name(Reading reading);
+
+}  // namespace spreadfit
