@@ -14,7 +14,7 @@ namespace spreadfit {
 /// Numerical settings of the forward solvers. Defaults give < 0.3% error against a converged solution.
 struct ForwardOptions {
   int cells = 40;                ///< Lagrangian cells of the thin-film models (>= 8)
-  double rel_tol = 2e-5;         ///< relative local error tolerance of the time stepper
+  double rel_tol = 1e-4;           ///< relative local error tolerance of the thin-film time stepper
   std::size_t max_steps = 200000;  ///< bound on accepted + rejected steps per solve
 };
 

@@ -1,0 +1,144 @@
+#include "models/thin_film.hpp"
+
+#include <boost/numeric/odeint/integrate/integrate_times.hpp>
+#include <boost/numeric/odeint/integrate/max_step_checker.hpp>
+#include <cmath>
+#include <functional>
+#include <limits>
+#include <numbers>
+#include <stdexcept>
+
+#include "models/side_wall.hpp"
+#include "models/tridiagonal_rosenbrock.hpp"
+
+namespace spreadfit {
+
+SpreadingSystem::SpreadingSystem(const SpreadingProblem& problem, int cells, double grading) : p_(problem) {
+  initial_.resize(cells);
+  for (int i = 1; i <= cells; ++i) initial_[i - 1] = 1.0 - std::pow(1.0 - double(i) / cells, grading);
+  initial_[cells - 1] = 1.0;
+  mass_.resize(cells);
+  double left = 0.0;
+  for (int j = 0; j < cells; ++j) {
+    mass_[j] = p_.initial_height * cell_area(left, initial_[j]);
+    left = initial_[j];
+  }
+  // Front cell: profile h = c d^alpha with mean hbar over width w: c = (1 + alpha) hbar / w^alpha; at the midpoint
+  // d = w/2 the height is (1 + alpha) 2^-alpha hbar and the slope 2 alpha h_mid / w.
+  front_alpha_ = 1.0 / (p_.material.flow_index + 2.0);
+  front_height_factor_ = (1.0 + front_alpha_) * std::pow(2.0, -front_alpha_);
+}
+
+double SpreadingSystem::cell_area(double left, double right) const {
+  const double L = p_.initial_extent;
+  if (p_.geometry == Geometry::Planar) return (right - left) * L;
+  return 0.5 * (right - left) * (right + left) * L * L;
+}
+
+Eigen::VectorXd SpreadingSystem::heights(const Eigen::VectorXd& x) const {
+  Eigen::VectorXd h(x.size());
+  double left = 0.0;
+  for (Eigen::Index j = 0; j < x.size(); ++j) {
+    h[j] = mass_[j] / cell_area(left, x[j]);
+    left = x[j];
+  }
+  return h;
+}
+
+double SpreadingSystem::volume(const Eigen::VectorXd& x) const {
+  const Eigen::VectorXd h = heights(x);
+  double v = 0.0, left = 0.0;
+  for (Eigen::Index j = 0; j < x.size(); ++j) {
+    v += h[j] * cell_area(left, x[j]);
+    left = x[j];
+  }
+  return p_.geometry == Geometry::Planar ? v : 2.0 * std::numbers::pi * v;
+}
+
+void SpreadingSystem::operator()(const Eigen::VectorXd& x, Eigen::VectorXd& dxdt, double /*t*/) const {
+  const Eigen::Index n = x.size();
+  const double L = p_.initial_extent;
+  dxdt.resize(n);
+  // Cell widths and heights; a crossed pair of nodes makes the step fail (NaN) so the stepper retries smaller.
+  thread_local Eigen::VectorXd w, h;
+  w.resize(n);
+  h.resize(n);
+  double left = 0.0;
+  for (Eigen::Index j = 0; j < n; ++j) {
+    w[j] = (x[j] - left) * L;
+    if (!(w[j] > 0)) {
+      dxdt.setConstant(std::numeric_limits<double>::quiet_NaN());
+      return;
+    }
+    h[j] = mass_[j] / cell_area(left, x[j]);
+    left = x[j];
+  }
+  const double width = p_.channel_width;
+  auto velocity = [&](double slope, double depth) {
+    double u = film_velocity(p_.material, p_.rho_g * std::abs(slope), depth);
+    if (width > 0) u *= side_wall_flux_factor(depth / width);
+    return slope > 0 ? -u : u;
+  };
+  // Interior node i sits between cells i-1 and i: height interpolated linearly between the cell centres,
+  // slope the centred difference of the cell averages.
+  for (Eigen::Index i = 0; i + 1 < n; ++i) {
+    const double wl = w[i], wr = w[i + 1];
+    const double depth = (h[i] * wr + h[i + 1] * wl) / (wl + wr);
+    const double slope = 2.0 * (h[i + 1] - h[i]) / (wl + wr);
+    dxdt[i] = velocity(slope, depth) / L;
+  }
+  const double h_mid = front_height_factor_ * h[n - 1];
+  dxdt[n - 1] = velocity(-2.0 * front_alpha_ * h_mid / w[n - 1], h_mid) / L;
+}
+
+SpreadingSolution solve_spreading(const SpreadingProblem& problem, const std::vector<double>& times,
+                                  const SpreadingOptions& options) {
+  validate(problem.material);
+  if (!(problem.initial_extent > 0) || !(problem.initial_height > 0) || !(problem.rho_g > 0))
+    throw std::invalid_argument("spreading problem: initial_extent, initial_height and rho_g must be > 0");
+  if (options.cells < 8) throw std::invalid_argument("spreading options: cells must be >= 8");
+  if (!(options.rel_tol > 0) || !(options.abs_tol > 0)) throw std::invalid_argument("spreading options: tolerances must be > 0");
+  for (std::size_t i = 0; i < times.size(); ++i)
+    if (!(times[i] >= 0) || (i > 0 && times[i] < times[i - 1]))
+      throw std::invalid_argument("spreading times must be finite, >= 0 and non-decreasing");
+
+  SpreadingSolution out;
+  if (times.empty()) return out;
+  SpreadingSystem system(problem, options.cells, options.grading);
+  Eigen::VectorXd x = system.initial_nodes();
+
+  // First step: a small fraction of the time the front cell needs to move its own width.
+  Eigen::VectorXd v0;
+  system(x, v0, 0.0);
+  const double last_width = x[x.size() - 1] - x[x.size() - 2];
+  double dt = v0.cwiseAbs().maxCoeff() > 0 ? 1e-3 * last_width / v0.cwiseAbs().maxCoeff() : 1.0;
+
+  std::vector<double> obs_times;
+  obs_times.reserve(times.size() + 1);
+  obs_times.push_back(0.0);
+  obs_times.insert(obs_times.end(), times.begin(), times.end());
+  out.fronts.reserve(times.size());
+  std::size_t seen = 0;
+  auto observer = [&](const Eigen::VectorXd& state, double) {
+    if (seen++ > 0) out.fronts.push_back(state[state.size() - 1] * problem.initial_extent);
+  };
+  TridiagonalRosenbrock2 stepper(options.abs_tol, options.rel_tol);
+  try {
+    out.steps = boost::numeric::odeint::integrate_times(
+        std::ref(stepper), std::cref(system), x, obs_times.begin(), obs_times.end(), dt, observer,
+        boost::numeric::odeint::max_step_checker(static_cast<int>(options.max_steps)));
+  } catch (const std::exception& e) {
+    out.ok = false;
+    out.message = "thin-film solve stopped: more than " + std::to_string(options.max_steps) +
+                  " time steps between two readings (SpreadingOptions::max_steps) [" + e.what() + "]";
+  }
+  out.rhs_calls = stepper.rhs_calls();
+  if (out.ok && (!x.allFinite() || out.fronts.size() != times.size())) {
+    out.ok = false;
+    out.message = "thin-film solve produced a non-finite state";
+  }
+  out.final_nodes = x * problem.initial_extent;
+  return out;
+}
+
+}  // namespace spreadfit

@@ -1,0 +1,79 @@
+// Gravity spreading of a thin layer of a Herschel-Bulkley material on a horizontal no-slip base, released from a
+// block (planar, against a wall at x = 0) or a cylinder (axisymmetric): the lubrication equation
+//     h_t + (1/r^s) (r^s q)_r = 0,   q = film_flux(material, rho g |h_r|, h) down the slope   (s = 0 or 1),
+// solved by a Lagrangian (mass-fraction) method of lines: node x_i moves with the depth-averaged velocity
+// q/h, so the volume between neighbouring nodes never changes (volume is conserved to rounding), the front is the
+// last node, and the predicted front is a smooth function of the material parameters (no cell-to-cell jumps of
+// a fixed grid; see the smoothness test). Cells are graded towards the front, where the profile is singular.
+//
+// Front node: near a front advancing into a dry bed the profile of a power-law film is the travelling-wave
+// h = c d^alpha, d the distance behind the front, alpha = 1/(n+2) (Gratton, Minotti & Mahajan 1999: the
+// similarity profiles (1 - xi^(n+1))^(1/(n+2))), along which q/h is constant. The last cell's volume fixes c, and
+// the front moves with the velocity of that local profile at the cell's midpoint; with a yield stress the same
+// evaluation goes to zero when the front cell no longer yields.
+#pragma once
+
+#include <cstddef>
+#include <string>
+#include <vector>
+
+#include <Eigen/Core>
+
+#include "models/rheology.hpp"
+
+namespace spreadfit {
+
+enum class Geometry { Planar, Axisymmetric };
+
+struct SpreadingProblem {
+  Geometry geometry = Geometry::Planar;
+  double initial_extent = 0.05;  ///< L0 (planar, block length from the wall) or R0 (axisymmetric) [m]
+  double initial_height = 0.01;  ///< H0 [m], uniform at release
+  double rho_g = 1000.0 * standard_gravity;  ///< density times gravity [Pa/m]
+  Material material;
+  double channel_width = 0.0;  ///< > 0 applies the side-wall flux factor of that width (planar only) [m]
+};
+
+struct SpreadingOptions {
+  int cells = 40;                  ///< Lagrangian cells (>= 8)
+  double grading = 3.0;            ///< initial node x_i = L0 (1 - (1 - i/N)^grading): > 1 refines the front
+  double rel_tol = 1e-4;           ///< stepper tolerance (relative)
+  double abs_tol = 1e-8;           ///< stepper tolerance, in units of the initial extent
+  std::size_t max_steps = 200000;  ///< bound on steps between two requested times
+};
+
+struct SpreadingSolution {
+  std::vector<double> fronts;   ///< front position (from x = 0 or the axis) [m] at each requested time
+  bool ok = true;
+  std::string message;          ///< which bound was hit or what failed
+  std::size_t steps = 0;
+  std::size_t rhs_calls = 0;
+  Eigen::VectorXd final_nodes;  ///< node positions at the last time [m], node 0 (at 0) excluded
+};
+
+/// The method-of-lines system in odeint's form: sys(x, dxdt, t), x the node positions divided by L0.
+class SpreadingSystem {
+ public:
+  SpreadingSystem(const SpreadingProblem& problem, int cells, double grading);
+  void operator()(const Eigen::VectorXd& x, Eigen::VectorXd& dxdt, double t) const;
+  const Eigen::VectorXd& initial_nodes() const { return initial_; }
+  /// Cell-average heights [m] for nodes x (scaled by L0).
+  Eigen::VectorXd heights(const Eigen::VectorXd& x) const;
+  /// Total volume (planar: per unit width [m^2]; axisymmetric [m^3]) for nodes x.
+  double volume(const Eigen::VectorXd& x) const;
+
+ private:
+  double cell_area(double left, double right) const;  // integral of r^s dr over the cell [m^(s+1)], 2 pi omitted
+  SpreadingProblem p_;
+  Eigen::VectorXd initial_;  // scaled node positions at release
+  Eigen::VectorXd mass_;     // cell volume / (2 pi)^s, constant in time
+  double front_alpha_;
+  double front_height_factor_;
+};
+
+/// Front positions at the given times [s] (non-decreasing, >= 0; t = 0 is the release).
+/// Throws std::invalid_argument for an invalid problem or options.
+SpreadingSolution solve_spreading(const SpreadingProblem& problem, const std::vector<double>& times,
+                                  const SpreadingOptions& options = {});
+
+}  // namespace spreadfit

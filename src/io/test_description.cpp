@@ -1,0 +1,544 @@
+#include "src/io/test_description.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <numbers>
+#include <set>
+#include <string_view>
+#include <system_error>
+#include <toml++/toml.h>
+
+#include "src/io/input_error.hpp"
+#include "src/io/units.hpp"
+
+namespace spreadfit::io {
+
+namespace {
+
+// Plausibility limits, see test_description.hpp.
+constexpr double kDensityMin = 100.0;    // kg/m^3
+constexpr double kDensityMax = 3000.0;   // kg/m^3
+constexpr double kCelsiusZero = 273.15;  // K (SI Brochure 9th ed., Table 4)
+constexpr double kTemperatureMin = kCelsiusZero - 50.0;
+constexpr double kTemperatureMax = kCelsiusZero + 150.0;
+
+using Names = std::vector<std::string_view>;
+
+const Names kTables{"sample", "rig", "readings", "fit", "spec"};
+const Names kSampleKeys{"id", "product", "density", "temperature"};
+const Names kRigKinds{"channel", "plate", "squeeze", "slump"};
+const Names kChannelKeys{"kind", "width", "reservoir_length", "volume", "fill_height", "side_wall_drag"};
+const Names kPlateKeys{"kind", "ring_radius", "volume", "fill_height"};
+const Names kSqueezeKeys{"kind", "volume", "load", "force", "initial_gap"};
+const Names kSlumpKeys{"kind", "radius", "height"};
+const Names kReadingsKeys{"file", "files", "final", "reading", "resolution"};
+const Names kFitKeys{"model", "time_origin", "ignore_before"};
+const Names kModelNames{"newtonian", "power-law", "bingham", "herschel-bulkley", "auto"};
+const Names kTimeOrigins{"fit", "zero"};
+const Names kSpecKeys{"viscosity", "yield_stress", "consistency", "flow_index"};
+
+std::string_view type_name(const toml::node& node) {
+  switch (node.type()) {
+    case toml::node_type::table: return "a table";
+    case toml::node_type::array: return "an array";
+    case toml::node_type::string: return "a string";
+    case toml::node_type::integer: return "an integer";
+    case toml::node_type::floating_point: return "a float";
+    case toml::node_type::boolean: return "a boolean";
+    case toml::node_type::date: return "a date";
+    case toml::node_type::time: return "a time of day";
+    case toml::node_type::date_time: return "a date-time";
+    case toml::node_type::none: break;
+  }
+  return "nothing";
+}
+
+int line_of(const toml::node& node) { return static_cast<int>(node.source().begin.line); }
+int line_of(const toml::key& key) { return static_cast<int>(key.source().begin.line); }
+
+std::string example_of(Dimension d) {
+  switch (d) {
+    case Dimension::Length: return "\"2.9 cm\"";
+    case Dimension::Volume: return "\"100 mL\"";
+    case Dimension::Mass: return "\"250 g\"";
+    case Dimension::Density: return "\"1.10 g/mL\"";
+    case Dimension::Time: return "\"2 s\"";
+    case Dimension::Stress: return "\"25 Pa\"";
+    case Dimension::Viscosity: return "\"1.2 Pa.s\"";
+    case Dimension::Consistency: return "\"8 Pa.s^n\"";
+    case Dimension::Force: return "\"2.5 N\"";
+    case Dimension::Temperature: return "\"21.5 degC\"";
+    case Dimension::Dimensionless: return "0.5";
+  }
+  return "";
+}
+
+/// "a length, such as "2.9 cm" or a number in m"
+std::string expected_quantity(Dimension d) {
+  if (d == Dimension::Dimensionless) return "a number, such as 0.5";
+  return "a " + std::string(dimension_name(d)) + ", such as " + example_of(d) + " or a number in " +
+         std::string(si_unit_symbol(d));
+}
+
+/// The reader of one test description: the file name and the error helpers in one place.
+class DescriptionReader {
+ public:
+  explicit DescriptionReader(std::filesystem::path file) : file_(std::move(file)), name_(file_.string()) {}
+
+  TestDescription read();
+
+ private:
+  [[noreturn]] void fail(int line, const std::string& field, const std::string& message) const {
+    throw InputError(name_, line, field, message);
+  }
+
+  const toml::table* table(const toml::table& root, std::string_view name) const;
+  void check_keys(const toml::table& table, std::string_view section, const Names& allowed,
+                  const Names& other_kinds = {}, std::string_view kind = {}) const;
+  const toml::node& required(const toml::table& table, std::string_view section, std::string_view key,
+                             const std::string& expected) const;
+  std::string text(const toml::node& node, const std::string& field) const;
+  std::string name_in(const toml::node& node, const std::string& field, const Names& allowed,
+                      std::string_view what) const;
+  bool boolean(const toml::node& node, const std::string& field) const;
+  double quantity(const toml::node& node, const std::string& field, Dimension d, Range range) const;
+  /// How a quantity node was written, for messages.
+  std::string as_written(const toml::node& node) const;
+
+  void read_sample(const toml::table& root, TestDescription& out) const;
+  Rig read_rig(const toml::table& root) const;
+  void read_readings(const toml::table& root, TestDescription& out) const;
+  void read_fit(const toml::table& root, TestDescription& out) const;
+  void read_spec(const toml::table& root, TestDescription& out) const;
+
+  std::filesystem::path file_;
+  std::string name_;
+};
+
+const toml::table* DescriptionReader::table(const toml::table& root, std::string_view name) const {
+  const toml::node* node = root.get(name);
+  if (!node) return nullptr;
+  if (!node->is_table())
+    fail(line_of(*node), std::string(name),
+         "expected a table [" + std::string(name) + "], got " + std::string(type_name(*node)));
+  return node->as_table();
+}
+
+/// A table's keys in file order (toml++ iterates them sorted by name), so errors cite the first one written.
+std::vector<const toml::key*> keys_in_file_order(const toml::table& table) {
+  std::vector<const toml::key*> keys;
+  for (auto&& [key, node] : table) keys.push_back(&key);
+  std::stable_sort(keys.begin(), keys.end(), [](const toml::key* a, const toml::key* b) {
+    const auto& pa = a->source().begin;
+    const auto& pb = b->source().begin;
+    return pa.line != pb.line ? pa.line < pb.line : pa.column < pb.column;
+  });
+  return keys;
+}
+
+void DescriptionReader::check_keys(const toml::table& table, std::string_view section, const Names& allowed,
+                                   const Names& other_kinds, std::string_view kind) const {
+  for (const toml::key* key_ptr : keys_in_file_order(table)) {
+    const toml::key& key = *key_ptr;
+    const std::string_view k = key.str();
+    if (std::find(allowed.begin(), allowed.end(), k) != allowed.end()) continue;
+    const std::string field = std::string(section) + "." + std::string(k);
+    if (std::find(other_kinds.begin(), other_kinds.end(), k) != other_kinds.end())
+      fail(line_of(key), field,
+           "key '" + std::string(k) + "' does not apply to a " + std::string(kind) + " rig (expected: " +
+               join_names(allowed) + ")");
+    fail(line_of(key), field,
+         "unknown key '" + std::string(k) + "' in [" + std::string(section) + "]" + did_you_mean(k, allowed));
+  }
+}
+
+const toml::node& DescriptionReader::required(const toml::table& table, std::string_view section,
+                                              std::string_view key, const std::string& expected) const {
+  const toml::node* node = table.get(key);
+  if (!node)
+    fail(line_of(table), std::string(section) + "." + std::string(key),
+         "missing required key in [" + std::string(section) + "] (expected " + expected + ")");
+  return *node;
+}
+
+std::string DescriptionReader::text(const toml::node& node, const std::string& field) const {
+  const auto* s = node.as_string();
+  if (!s) fail(line_of(node), field, "expected a string, got " + std::string(type_name(node)));
+  const std::string value = s->get();
+  if (value.find_first_not_of(" \t") == std::string::npos) fail(line_of(node), field, "empty string (expected text)");
+  return value;
+}
+
+std::string DescriptionReader::name_in(const toml::node& node, const std::string& field, const Names& allowed,
+                                       std::string_view what) const {
+  const auto* s = node.as_string();
+  if (!s)
+    fail(line_of(node), field,
+         "expected a string, one of " + join_names(allowed) + ", got " + std::string(type_name(node)));
+  const std::string value = s->get();
+  if (std::find(allowed.begin(), allowed.end(), value) == allowed.end())
+    fail(line_of(node), field, "unknown " + std::string(what) + " '" + value + "'" + did_you_mean(value, allowed));
+  return value;
+}
+
+bool DescriptionReader::boolean(const toml::node& node, const std::string& field) const {
+  const auto* b = node.as_boolean();
+  if (!b) fail(line_of(node), field, "expected true or false, got " + std::string(type_name(node)));
+  return b->get();
+}
+
+std::string DescriptionReader::as_written(const toml::node& node) const {
+  if (const auto* s = node.as_string()) return s->get();
+  if (const auto* i = node.as_integer()) return fmt::format("{}", i->get());
+  if (const auto* f = node.as_floating_point()) return fmt::format("{}", f->get());
+  return std::string(type_name(node));
+}
+
+double DescriptionReader::quantity(const toml::node& node, const std::string& field, Dimension d,
+                                   Range range) const {
+  try {
+    if (const auto* s = node.as_string()) return parse_quantity(s->get(), d, range);
+    double value = 0;
+    if (const auto* i = node.as_integer())
+      value = static_cast<double>(i->get());
+    else if (const auto* f = node.as_floating_point())
+      value = f->get();
+    else
+      fail(line_of(node), field, "expected " + expected_quantity(d) + ", got " + std::string(type_name(node)));
+    check_range(value, d, range, as_written(node));
+    return value;
+  } catch (const UnitError& e) {
+    fail(line_of(node), field, e.what());
+  }
+}
+
+void DescriptionReader::read_sample(const toml::table& root, TestDescription& out) const {
+  const toml::table* sample = table(root, "sample");
+  if (!sample) fail(0, "sample", "missing table [sample] (expected at least id and density)");
+  check_keys(*sample, "sample", kSampleKeys);
+
+  out.sample_id = text(required(*sample, "sample", "id", "the sample's id, such as \"TS12-0412\""), "sample.id");
+  if (const toml::node* p = sample->get("product")) out.product = text(*p, "sample.product");
+
+  const toml::node& density = required(*sample, "sample", "density", expected_quantity(Dimension::Density));
+  out.density = quantity(density, "sample.density", Dimension::Density, Range::Positive);
+  if (out.density < kDensityMin || out.density > kDensityMax)
+    fail(line_of(density), "sample.density",
+         fmt::format("'{}' is {} kg/m3, outside any sauce or cream (expected {} to {} kg/m3; write a unit, "
+                     "such as \"1.10 g/mL\")",
+                     as_written(density), out.density, kDensityMin, kDensityMax));
+
+  if (const toml::node* t = sample->get("temperature")) {
+    const double kelvin = quantity(*t, "sample.temperature", Dimension::Temperature, Range::Positive);
+    if (kelvin < kTemperatureMin || kelvin > kTemperatureMax)
+      fail(line_of(*t), "sample.temperature",
+           fmt::format("'{}' is {} K, outside -50 to 150 degC (a bare number is in K; write a unit, such as "
+                       "\"21.5 degC\")",
+                       as_written(*t), kelvin));
+    out.temperature = kelvin;
+  }
+}
+
+Rig DescriptionReader::read_rig(const toml::table& root) const {
+  const toml::table* rig = table(root, "rig");
+  if (!rig) fail(0, "rig", "missing table [rig] (expected kind = channel | plate | squeeze | slump and its sizes)");
+  const std::string kind =
+      name_in(required(*rig, "rig", "kind", "channel, plate, squeeze or slump"), "rig.kind", kRigKinds, "rig kind");
+
+  const Names* own = kind == "channel" ? &kChannelKeys
+                     : kind == "plate" ? &kPlateKeys
+                     : kind == "squeeze" ? &kSqueezeKeys
+                                         : &kSlumpKeys;
+  Names others;
+  for (const Names* keys : {&kChannelKeys, &kPlateKeys, &kSqueezeKeys, &kSlumpKeys})
+    for (std::string_view k : *keys)
+      if (std::find(own->begin(), own->end(), k) == own->end()) others.push_back(k);
+  check_keys(*rig, "rig", *own, others, kind);
+
+  auto length = [&](std::string_view key, const char* what) {
+    const toml::node& node = required(*rig, "rig", key, expected_quantity(Dimension::Length) + ": " + what);
+    return quantity(node, "rig." + std::string(key), Dimension::Length, Range::Positive);
+  };
+  // volume, or fill_height times the footprint
+  auto volume_or_fill = [&](double footprint, const char* fill_meaning) {
+    const toml::node* volume = rig->get("volume");
+    const toml::node* fill = rig->get("fill_height");
+    if (volume && fill)
+      fail(line_of(*fill), "rig.fill_height", "give volume or fill_height, not both");
+    if (volume) return quantity(*volume, "rig.volume", Dimension::Volume, Range::Positive);
+    if (fill) return footprint * quantity(*fill, "rig.fill_height", Dimension::Length, Range::Positive);
+    fail(line_of(*rig), "rig.volume",
+         std::string("missing required key in [rig] (expected volume, such as \"100 mL\", or fill_height: ") +
+             fill_meaning + ")");
+  };
+
+  if (kind == "channel") {
+    ChannelRig c;
+    c.width = length("width", "the channel's width");
+    c.reservoir_length = length("reservoir_length", "the sample block's length behind the gate");
+    c.volume = volume_or_fill(c.width * c.reservoir_length, "the sample's depth behind the gate");
+    if (const toml::node* drag = rig->get("side_wall_drag")) c.side_wall_drag = boolean(*drag, "rig.side_wall_drag");
+    return c;
+  }
+  if (kind == "plate") {
+    PlateRig p;
+    p.ring_radius = length("ring_radius", "the ring's inner radius");
+    p.volume = volume_or_fill(std::numbers::pi * p.ring_radius * p.ring_radius, "the sample's depth in the ring");
+    return p;
+  }
+  if (kind == "squeeze") {
+    SqueezeRig s;
+    s.volume = quantity(required(*rig, "rig", "volume", expected_quantity(Dimension::Volume)), "rig.volume",
+                        Dimension::Volume, Range::Positive);
+    const toml::node* load = rig->get("load");
+    const toml::node* force = rig->get("force");
+    if (load && force) fail(line_of(*force), "rig.force", "give load (a mass) or force, not both");
+    if (load)
+      s.force = standard_gravity * quantity(*load, "rig.load", Dimension::Mass, Range::Positive);
+    else if (force)
+      s.force = quantity(*force, "rig.force", Dimension::Force, Range::Positive);
+    else
+      fail(line_of(*rig), "rig.load",
+           "missing required key in [rig] (expected load, the mass on the sample including the top plate, such "
+           "as \"250 g\", or force, such as \"2.5 N\")");
+    if (const toml::node* gap = rig->get("initial_gap"))
+      s.initial_gap = quantity(*gap, "rig.initial_gap", Dimension::Length, Range::Positive);
+    return s;
+  }
+  SlumpRig s;
+  s.radius = length("radius", "the cylinder's radius");
+  s.height = length("height", "the cylinder's height");
+  return s;
+}
+
+void DescriptionReader::read_readings(const toml::table& root, TestDescription& out) const {
+  const Rig& rig = out.setup.rig;
+  const std::string rig_kind(rig_kind_name(rig));
+  auto expected_readings = [&] {
+    Names names;
+    for (std::string_view n : reading_names())
+      if (rig_has_reading(rig, *reading_from_name(n))) names.push_back(n);
+    return join_names(names);
+  };
+
+  out.setup.reading = default_reading(rig);
+  const toml::table* readings = table(root, "readings");
+  if (!readings) return;
+  check_keys(*readings, "readings", kReadingsKeys);
+
+  const toml::node* file = readings->get("file");
+  const toml::node* files = readings->get("files");
+  const toml::node* final = readings->get("final");
+  const int sources = (file ? 1 : 0) + (files ? 1 : 0) + (final ? 1 : 0);
+  if (sources > 1) {
+    const toml::node* second = final ? final : files;
+    fail(line_of(*second), final ? "readings.final" : "readings.files",
+         "give one of file, files and final, not several");
+  }
+
+  std::optional<Reading> named;
+  const toml::node* reading_node = readings->get("reading");
+  if (reading_node) {
+    named = reading_from_name(name_in(*reading_node, "readings.reading", reading_names(), "reading"));
+    if (!rig_has_reading(rig, *named))
+      fail(line_of(*reading_node), "readings.reading",
+           "a " + rig_kind + " rig has no " + std::string(reading_names()[static_cast<std::size_t>(*named)]) +
+               " reading (expected " + expected_readings() + ")");
+    out.setup.reading = *named;
+  }
+
+  if (const toml::node* r = readings->get("resolution"))
+    out.resolution = quantity(*r, "readings.resolution", Dimension::Length, Range::Positive);
+
+  if (final) {
+    out.final_reading = quantity(*final, "readings.final", Dimension::Length, Range::NonNegative);
+    if (const auto* slump = std::get_if<SlumpRig>(&rig); slump && *out.final_reading > slump->height)
+      fail(line_of(*final), "readings.final",
+           fmt::format("slump '{}' is more than the cylinder's height {} m (expected 0 to the height)",
+                       as_written(*final), slump->height));
+    if (const auto* squeeze = std::get_if<SqueezeRig>(&rig);
+        squeeze && out.setup.reading == Reading::Gap && squeeze->initial_gap > 0 &&
+        *out.final_reading > squeeze->initial_gap)
+      fail(line_of(*final), "readings.final",
+           fmt::format("final gap '{}' is more than initial_gap {} m (expected the gap to close under the load)",
+                       as_written(*final), squeeze->initial_gap));
+    return;
+  }
+
+  // file or files: collect (path as written, node) pairs
+  std::vector<std::pair<std::string, const toml::node*>> listed;
+  std::string field;
+  if (file) {
+    field = "readings.file";
+    listed.emplace_back(text(*file, field), file);
+  } else if (files) {
+    field = "readings.files";
+    const toml::array* array = files->as_array();
+    if (!array)
+      fail(line_of(*files), field, "expected an array of file names, such as [\"a.csv\", \"b.csv\"], got " +
+                                       std::string(type_name(*files)));
+    if (array->empty()) fail(line_of(*files), field, "empty array (expected at least one readings file)");
+    for (const toml::node& element : *array) listed.emplace_back(text(element, field), &element);
+  } else {
+    return;  // no readings: enough to simulate
+  }
+  if (std::holds_alternative<SlumpRig>(rig))
+    fail(line_of(*listed.front().second), field,
+         "a slump rig has only a final reading (expected final = \"...\" instead of a readings file)");
+
+  const std::filesystem::path folder = file_.parent_path();
+  std::set<std::filesystem::path> seen;
+  for (const auto& [written, node] : listed) {
+    const std::filesystem::path resolved = (folder / written).lexically_normal();
+    if (!seen.insert(resolved).second)
+      fail(line_of(*node), field, "'" + written + "' is listed twice (expected each replicate once)");
+    std::error_code ec;
+    if (!std::filesystem::is_regular_file(resolved, ec))
+      fail(line_of(*node), field,
+           "readings file '" + written + "' not found (looked for '" + resolved.string() + "')");
+    ReadingSeries series = read_readings_csv(resolved);
+    const std::string kind_name(reading_names()[static_cast<std::size_t>(series.kind)]);
+    if (!rig_has_reading(rig, series.kind))
+      fail(line_of(*node), field,
+           "'" + written + "' has a " + kind_name + " column, which a " + rig_kind + " rig does not read (expected " +
+               expected_readings() + ")");
+    if (named && series.kind != *named)
+      fail(line_of(*reading_node), "readings.reading",
+           "reading = '" + std::string(reading_names()[static_cast<std::size_t>(*named)]) + "' but '" + written +
+               "' has a " + kind_name + " column (expected them to agree; or leave reading out)");
+    if (!out.series.empty() && series.kind != out.series.front().kind)
+      fail(line_of(*node), field,
+           "'" + written + "' has a " + kind_name + " column but '" + listed.front().first + "' has " +
+               std::string(reading_names()[static_cast<std::size_t>(out.series.front().kind)]) +
+               " (expected every replicate to give the same reading)");
+    out.series.push_back(std::move(series));
+  }
+  out.setup.reading = out.series.front().kind;
+}
+
+void DescriptionReader::read_fit(const toml::table& root, TestDescription& out) const {
+  const toml::table* fit = table(root, "fit");
+  if (!fit) return;
+  check_keys(*fit, "fit", kFitKeys);
+  if (const toml::node* model = fit->get("model")) {
+    const std::string name = name_in(*model, "fit.model", kModelNames, "model");
+    if (name != "auto") out.fit.model = law_from_name(name);
+  }
+  if (const toml::node* origin = fit->get("time_origin"))
+    out.fit.fit_time_origin = name_in(*origin, "fit.time_origin", kTimeOrigins, "time_origin") == "fit";
+  if (const toml::node* before = fit->get("ignore_before")) {
+    out.fit.ignore_before = quantity(*before, "fit.ignore_before", Dimension::Time, Range::NonNegative);
+    for (const ReadingSeries& s : out.series)
+      if (s.times.back() < out.fit.ignore_before)
+        fail(line_of(*before), "fit.ignore_before",
+             fmt::format("'{}' leaves no readings of '{}' to fit (its last is at {} s; expected a time before it)",
+                         as_written(*before), s.source, s.times.back()));
+  }
+}
+
+void DescriptionReader::read_spec(const toml::table& root, TestDescription& out) const {
+  const toml::table* spec = table(root, "spec");
+  if (!spec) return;
+  check_keys(*spec, "spec", kSpecKeys);
+  for (const toml::key* key : keys_in_file_order(*spec)) {
+    const toml::node& node = *spec->get(key->str());
+    const std::string parameter(key->str());
+    const std::string field = "spec." + parameter;
+    const Dimension d = parameter == "viscosity"      ? Dimension::Viscosity
+                        : parameter == "yield_stress" ? Dimension::Stress
+                        : parameter == "consistency"  ? Dimension::Consistency
+                                                      : Dimension::Dimensionless;
+    const char* example = d == Dimension::Viscosity      ? "[\"0.8 Pa.s\", \"1.5 Pa.s\"]"
+                          : d == Dimension::Stress       ? "[\"20 Pa\", \"35 Pa\"]"
+                          : d == Dimension::Consistency  ? "[\"2 Pa.s^n\", \"12 Pa.s^n\"]"
+                                                         : "[0.3, 0.6]";
+    const toml::array* bounds = node.as_array();
+    if (!bounds || bounds->size() != 2)
+      fail(line_of(node), field,
+           "expected [low, high], two values such as " + std::string(example) + ", got " +
+               (bounds ? std::to_string(bounds->size()) + (bounds->size() == 1 ? " value" : " values")
+                       : std::string(type_name(node))));
+    const toml::node& low_node = *bounds->get(0);
+    const toml::node& high_node = *bounds->get(1);
+    SpecLimit limit;
+    limit.parameter = parameter;
+    limit.low = quantity(low_node, field, d, Range::NonNegative);
+    limit.high = quantity(high_node, field, d, Range::NonNegative);
+    limit.line = line_of(node);
+    if (limit.low > limit.high)
+      fail(line_of(node), field,
+           "low bound '" + as_written(low_node) + "' is above high bound '" + as_written(high_node) +
+               "' (expected [low, high] with low <= high)");
+    out.spec.push_back(std::move(limit));
+  }
+}
+
+TestDescription DescriptionReader::read() {
+  std::error_code ec;
+  if (!std::filesystem::is_regular_file(file_, ec))
+    throw InputError(name_, 0, "",
+                     std::filesystem::exists(file_, ec) ? "not a regular file (expected a test description, .toml)"
+                                                        : "test description not found");
+  toml::table root;
+  try {
+    root = toml::parse_file(name_);
+  } catch (const toml::parse_error& e) {
+    throw InputError(name_, static_cast<int>(e.source().begin.line), "",
+                     "TOML syntax: " + std::string(e.description()), static_cast<int>(e.source().begin.column));
+  }
+
+  // Top level: only the five tables. A bare key here most often lost its table header.
+  for (const toml::key* key_ptr : keys_in_file_order(root)) {
+    const toml::key& key = *key_ptr;
+    const std::string_view k = key.str();
+    if (std::find(kTables.begin(), kTables.end(), k) != kTables.end()) continue;
+    for (const auto& [section, keys] : {std::pair{"sample", &kSampleKeys}, std::pair{"rig", &kChannelKeys},
+                                        std::pair{"rig", &kPlateKeys}, std::pair{"rig", &kSqueezeKeys},
+                                        std::pair{"rig", &kSlumpKeys}, std::pair{"readings", &kReadingsKeys},
+                                        std::pair{"fit", &kFitKeys}, std::pair{"spec", &kSpecKeys}})
+      if (std::find(keys->begin(), keys->end(), k) != keys->end())
+        fail(line_of(key), std::string(k),
+             "key '" + std::string(k) + "' is outside any table (expected it under [" + section + "])");
+    fail(line_of(key), std::string(k), "unknown table [" + std::string(k) + "]" + did_you_mean(k, kTables));
+  }
+
+  TestDescription out;
+  out.path = file_;
+  read_sample(root, out);
+  out.setup.rig = read_rig(root);
+  out.setup.density = out.density;
+  read_readings(root, out);
+  read_fit(root, out);
+  read_spec(root, out);
+  return out;
+}
+
+}  // namespace
+
+std::string_view rig_kind_name(const Rig& rig) {
+  if (std::holds_alternative<ChannelRig>(rig)) return "channel";
+  if (std::holds_alternative<PlateRig>(rig)) return "plate";
+  if (std::holds_alternative<SqueezeRig>(rig)) return "squeeze";
+  return "slump";
+}
+
+Reading default_reading(const Rig& rig) {
+  if (std::holds_alternative<ChannelRig>(rig)) return Reading::Front;
+  if (std::holds_alternative<PlateRig>(rig)) return Reading::Radius;
+  if (std::holds_alternative<SqueezeRig>(rig)) return Reading::Gap;
+  return Reading::Slump;
+}
+
+bool rig_has_reading(const Rig& rig, Reading reading) {
+  if (std::holds_alternative<ChannelRig>(rig)) return reading == Reading::Front;
+  if (std::holds_alternative<PlateRig>(rig)) return reading == Reading::Radius || reading == Reading::Diameter;
+  if (std::holds_alternative<SqueezeRig>(rig))
+    return reading == Reading::Gap || reading == Reading::Radius || reading == Reading::Diameter;
+  return reading == Reading::Slump;
+}
+
+TestDescription load_test_description(const std::filesystem::path& file) { return DescriptionReader(file).read(); }
+
+}  // namespace spreadfit::io
