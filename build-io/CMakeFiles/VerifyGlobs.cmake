@@ -6,6 +6,7 @@ cmake_policy(SET CMP0009 NEW)
 file(GLOB NEW_GLOB LIST_DIRECTORIES true "/work/main/models/*.cpp")
 set(OLD_GLOB
   "/work/main/models/closed_forms.cpp"
+  "/work/main/models/low_order.cpp"
   "/work/main/models/rheology.cpp"
   "/work/main/models/side_wall.cpp"
   "/work/main/models/thin_film.cpp"

@@ -191,7 +191,8 @@ void CsvReader::read_row(std::string_view line, int line_number) {
   } catch (const UnitError& e) {
     fail(line_number, cells[1].column, value_field_, e.what());
   }
-  if (t < 0) fail(line_number, cells[0].column, time_field_, "'" + cells[0].text + "' is negative (expected a time >= 0)");
+  if (t < 0)
+    fail(line_number, cells[0].column, time_field_, "'" + cells[0].text + "' is negative (expected a time >= 0)");
   if (!series_.times.empty() && !(t > series_.times.back()))
     fail(line_number, cells[0].column, time_field_,
          "time '" + cells[0].text + "' is not after '" + previous_time_text_ + "' on line " +

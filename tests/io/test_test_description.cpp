@@ -253,8 +253,8 @@ TEST_CASE("a missing readings file names the TOML file, line and field, and wher
 TEST_CASE("an error inside a readings file is reported against the CSV") {
   TempDir dir;
   const auto csv = dir.write("run.csv", "time [s],front [cm]\n0,0\n5,x\n");
-  const auto e = input_error_of(
-      [&] { load_test_description(dir.write("test.toml", kSample + kChannelRig + "[readings]\nfile = \"run.csv\"\n")); });
+  const auto toml = dir.write("test.toml", kSample + kChannelRig + "[readings]\nfile = \"run.csv\"\n");
+  const auto e = input_error_of([&] { load_test_description(toml); });
   CHECK(std::string(e.what()) ==
         csv.string() + ":3:3: front [cm]: 'x' is not a number (expected a finite decimal number such as 2.9)");
 }

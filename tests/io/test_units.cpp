@@ -178,8 +178,8 @@ TEST_CASE("convert_to_si applies a named unit, as CSV columns need") {
   CHECK(spreadfit::io::convert_to_si(3.1, "cm", Dimension::Length) == doctest::Approx(0.031).epsilon(kRelTol));
   CHECK(spreadfit::io::convert_to_si(1.5, "min", Dimension::Time) == 90.0);
   CHECK(spreadfit::io::convert_to_si(0.0, "degC", Dimension::Temperature) == 273.15);
-  CHECK_THROWS_WITH_AS(spreadfit::io::convert_to_si(3.1, "cn", Dimension::Length), "unknown unit 'cn'; did you mean 'cm'?",
-                       UnitError);
+  CHECK_THROWS_WITH_AS(spreadfit::io::convert_to_si(3.1, "cn", Dimension::Length),
+                       "unknown unit 'cn'; did you mean 'cm'?", UnitError);
   CHECK_THROWS_WITH_AS(spreadfit::io::convert_to_si(NAN, "cm", Dimension::Length), "value is not a finite number",
                        UnitError);
 }

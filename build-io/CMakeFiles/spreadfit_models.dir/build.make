@@ -83,10 +83,24 @@ CMakeFiles/spreadfit_models.dir/models/closed_forms.cpp.s: cmake_force
 	@$(CMAKE_COMMAND) -E cmake_echo_color --switch=$(COLOR) --green "Compiling CXX source to assembly CMakeFiles/spreadfit_models.dir/models/closed_forms.cpp.s"
 	/usr/bin/c++ $(CXX_DEFINES) $(CXX_INCLUDES) $(CXX_FLAGS) -S /work/main/models/closed_forms.cpp -o CMakeFiles/spreadfit_models.dir/models/closed_forms.cpp.s
 
+CMakeFiles/spreadfit_models.dir/models/low_order.cpp.o: CMakeFiles/spreadfit_models.dir/flags.make
+CMakeFiles/spreadfit_models.dir/models/low_order.cpp.o: /work/main/models/low_order.cpp
+CMakeFiles/spreadfit_models.dir/models/low_order.cpp.o: CMakeFiles/spreadfit_models.dir/compiler_depend.ts
+	@$(CMAKE_COMMAND) -E cmake_echo_color --switch=$(COLOR) --green --progress-dir=/work/main/build-io/CMakeFiles --progress-num=$(CMAKE_PROGRESS_2) "Building CXX object CMakeFiles/spreadfit_models.dir/models/low_order.cpp.o"
+	/usr/bin/c++ $(CXX_DEFINES) $(CXX_INCLUDES) $(CXX_FLAGS) -MD -MT CMakeFiles/spreadfit_models.dir/models/low_order.cpp.o -MF CMakeFiles/spreadfit_models.dir/models/low_order.cpp.o.d -o CMakeFiles/spreadfit_models.dir/models/low_order.cpp.o -c /work/main/models/low_order.cpp
+
+CMakeFiles/spreadfit_models.dir/models/low_order.cpp.i: cmake_force
+	@$(CMAKE_COMMAND) -E cmake_echo_color --switch=$(COLOR) --green "Preprocessing CXX source to CMakeFiles/spreadfit_models.dir/models/low_order.cpp.i"
+	/usr/bin/c++ $(CXX_DEFINES) $(CXX_INCLUDES) $(CXX_FLAGS) -E /work/main/models/low_order.cpp > CMakeFiles/spreadfit_models.dir/models/low_order.cpp.i
+
+CMakeFiles/spreadfit_models.dir/models/low_order.cpp.s: cmake_force
+	@$(CMAKE_COMMAND) -E cmake_echo_color --switch=$(COLOR) --green "Compiling CXX source to assembly CMakeFiles/spreadfit_models.dir/models/low_order.cpp.s"
+	/usr/bin/c++ $(CXX_DEFINES) $(CXX_INCLUDES) $(CXX_FLAGS) -S /work/main/models/low_order.cpp -o CMakeFiles/spreadfit_models.dir/models/low_order.cpp.s
+
 CMakeFiles/spreadfit_models.dir/models/rheology.cpp.o: CMakeFiles/spreadfit_models.dir/flags.make
 CMakeFiles/spreadfit_models.dir/models/rheology.cpp.o: /work/main/models/rheology.cpp
 CMakeFiles/spreadfit_models.dir/models/rheology.cpp.o: CMakeFiles/spreadfit_models.dir/compiler_depend.ts
-	@$(CMAKE_COMMAND) -E cmake_echo_color --switch=$(COLOR) --green --progress-dir=/work/main/build-io/CMakeFiles --progress-num=$(CMAKE_PROGRESS_2) "Building CXX object CMakeFiles/spreadfit_models.dir/models/rheology.cpp.o"
+	@$(CMAKE_COMMAND) -E cmake_echo_color --switch=$(COLOR) --green --progress-dir=/work/main/build-io/CMakeFiles --progress-num=$(CMAKE_PROGRESS_3) "Building CXX object CMakeFiles/spreadfit_models.dir/models/rheology.cpp.o"
 	/usr/bin/c++ $(CXX_DEFINES) $(CXX_INCLUDES) $(CXX_FLAGS) -MD -MT CMakeFiles/spreadfit_models.dir/models/rheology.cpp.o -MF CMakeFiles/spreadfit_models.dir/models/rheology.cpp.o.d -o CMakeFiles/spreadfit_models.dir/models/rheology.cpp.o -c /work/main/models/rheology.cpp
 
 CMakeFiles/spreadfit_models.dir/models/rheology.cpp.i: cmake_force
@@ -100,7 +114,7 @@ CMakeFiles/spreadfit_models.dir/models/rheology.cpp.s: cmake_force
 CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.o: CMakeFiles/spreadfit_models.dir/flags.make
 CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.o: /work/main/models/side_wall.cpp
 CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.o: CMakeFiles/spreadfit_models.dir/compiler_depend.ts
-	@$(CMAKE_COMMAND) -E cmake_echo_color --switch=$(COLOR) --green --progress-dir=/work/main/build-io/CMakeFiles --progress-num=$(CMAKE_PROGRESS_3) "Building CXX object CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.o"
+	@$(CMAKE_COMMAND) -E cmake_echo_color --switch=$(COLOR) --green --progress-dir=/work/main/build-io/CMakeFiles --progress-num=$(CMAKE_PROGRESS_4) "Building CXX object CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.o"
 	/usr/bin/c++ $(CXX_DEFINES) $(CXX_INCLUDES) $(CXX_FLAGS) -MD -MT CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.o -MF CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.o.d -o CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.o -c /work/main/models/side_wall.cpp
 
 CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.i: cmake_force
@@ -114,7 +128,7 @@ CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.s: cmake_force
 CMakeFiles/spreadfit_models.dir/models/thin_film.cpp.o: CMakeFiles/spreadfit_models.dir/flags.make
 CMakeFiles/spreadfit_models.dir/models/thin_film.cpp.o: /work/main/models/thin_film.cpp
 CMakeFiles/spreadfit_models.dir/models/thin_film.cpp.o: CMakeFiles/spreadfit_models.dir/compiler_depend.ts
-	@$(CMAKE_COMMAND) -E cmake_echo_color --switch=$(COLOR) --green --progress-dir=/work/main/build-io/CMakeFiles --progress-num=$(CMAKE_PROGRESS_4) "Building CXX object CMakeFiles/spreadfit_models.dir/models/thin_film.cpp.o"
+	@$(CMAKE_COMMAND) -E cmake_echo_color --switch=$(COLOR) --green --progress-dir=/work/main/build-io/CMakeFiles --progress-num=$(CMAKE_PROGRESS_5) "Building CXX object CMakeFiles/spreadfit_models.dir/models/thin_film.cpp.o"
 	/usr/bin/c++ $(CXX_DEFINES) $(CXX_INCLUDES) $(CXX_FLAGS) -MD -MT CMakeFiles/spreadfit_models.dir/models/thin_film.cpp.o -MF CMakeFiles/spreadfit_models.dir/models/thin_film.cpp.o.d -o CMakeFiles/spreadfit_models.dir/models/thin_film.cpp.o -c /work/main/models/thin_film.cpp
 
 CMakeFiles/spreadfit_models.dir/models/thin_film.cpp.i: cmake_force
@@ -128,6 +142,7 @@ CMakeFiles/spreadfit_models.dir/models/thin_film.cpp.s: cmake_force
 # Object files for target spreadfit_models
 spreadfit_models_OBJECTS = \
 "CMakeFiles/spreadfit_models.dir/models/closed_forms.cpp.o" \
+"CMakeFiles/spreadfit_models.dir/models/low_order.cpp.o" \
 "CMakeFiles/spreadfit_models.dir/models/rheology.cpp.o" \
 "CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.o" \
 "CMakeFiles/spreadfit_models.dir/models/thin_film.cpp.o"
@@ -136,12 +151,13 @@ spreadfit_models_OBJECTS = \
 spreadfit_models_EXTERNAL_OBJECTS =
 
 libspreadfit_models.a: CMakeFiles/spreadfit_models.dir/models/closed_forms.cpp.o
+libspreadfit_models.a: CMakeFiles/spreadfit_models.dir/models/low_order.cpp.o
 libspreadfit_models.a: CMakeFiles/spreadfit_models.dir/models/rheology.cpp.o
 libspreadfit_models.a: CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.o
 libspreadfit_models.a: CMakeFiles/spreadfit_models.dir/models/thin_film.cpp.o
 libspreadfit_models.a: CMakeFiles/spreadfit_models.dir/build.make
 libspreadfit_models.a: CMakeFiles/spreadfit_models.dir/link.txt
-	@$(CMAKE_COMMAND) -E cmake_echo_color --switch=$(COLOR) --green --bold --progress-dir=/work/main/build-io/CMakeFiles --progress-num=$(CMAKE_PROGRESS_5) "Linking CXX static library libspreadfit_models.a"
+	@$(CMAKE_COMMAND) -E cmake_echo_color --switch=$(COLOR) --green --bold --progress-dir=/work/main/build-io/CMakeFiles --progress-num=$(CMAKE_PROGRESS_6) "Linking CXX static library libspreadfit_models.a"
 	$(CMAKE_COMMAND) -P CMakeFiles/spreadfit_models.dir/cmake_clean_target.cmake
 	$(CMAKE_COMMAND) -E cmake_link_script CMakeFiles/spreadfit_models.dir/link.txt --verbose=$(VERBOSE)
 

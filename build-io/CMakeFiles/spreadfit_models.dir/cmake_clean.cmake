@@ -1,6 +1,8 @@
 file(REMOVE_RECURSE
   "CMakeFiles/spreadfit_models.dir/models/closed_forms.cpp.o"
   "CMakeFiles/spreadfit_models.dir/models/closed_forms.cpp.o.d"
+  "CMakeFiles/spreadfit_models.dir/models/low_order.cpp.o"
+  "CMakeFiles/spreadfit_models.dir/models/low_order.cpp.o.d"
   "CMakeFiles/spreadfit_models.dir/models/rheology.cpp.o"
   "CMakeFiles/spreadfit_models.dir/models/rheology.cpp.o.d"
   "CMakeFiles/spreadfit_models.dir/models/side_wall.cpp.o"

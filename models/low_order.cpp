@@ -1,0 +1,66 @@
+#include "models/low_order.hpp"
+
+#include <array>
+#include <boost/numeric/odeint.hpp>
+#include <cmath>
+#include <limits>
+#include <numbers>
+#include <stdexcept>
+
+#include "models/closed_forms.hpp"
+
+namespace spreadfit {
+
+LowOrderSolution solve_low_order(const SpreadingProblem& p, const std::vector<double>& times) {
+  validate(p.material);
+  if (!(p.initial_extent > 0) || !(p.initial_height > 0) || !(p.rho_g > 0))
+    throw std::invalid_argument("low-order model: initial_extent, initial_height and rho_g must be > 0");
+  const bool planar = p.geometry == Geometry::Planar;
+  const double L0 = p.initial_extent;
+  const double size = planar ? L0 * p.initial_height : std::numbers::pi * L0 * L0 * p.initial_height;
+  const Material& m = p.material;
+  const double n = m.flow_index;
+  LowOrderSolution out;
+  out.arrest_extent = std::numeric_limits<double>::infinity();
+  if (m.yield_stress > 0)
+    out.arrest_extent = planar ? closed_form::planar_arrest_length(p.rho_g, m.yield_stress, size)
+                               : closed_form::axisymmetric_arrest_radius(p.rho_g, m.yield_stress, size);
+  const double k = planar ? 3.0 : 5.0;
+  const double exponent = planar ? 2 * n + 3 : 3 * n + 5;
+  const double L = out.arrest_extent;
+
+  using State = std::array<double, 1>;
+  auto rhs = [&](const State& x, State& dxdt, double) {
+    const double xf = x[0] / L0;  // integrate in units of L0
+    const double t_sim = planar ? closed_form::planar_front_time(p.rho_g, m.consistency, n, size, x[0])
+                                : closed_form::axisymmetric_front_time(p.rho_g, m.consistency, n, size, x[0]);
+    double u = n / exponent * xf / t_sim;
+    if (std::isfinite(L)) {
+      const double ratio = x[0] / L;
+      u = ratio >= 1.0 ? 0.0 : u * std::pow(1.0 - std::pow(ratio, k), 1.0 + 1.0 / n);
+    }
+    dxdt[0] = u;
+  };
+  out.fronts.reserve(times.size());
+  if (times.empty()) return out;
+  if (L <= L0) {  // the block is already within its plastic-limit extent: no flow in this model
+    out.fronts.assign(times.size(), L0);
+    return out;
+  }
+  std::vector<double> obs{0.0};
+  obs.insert(obs.end(), times.begin(), times.end());
+  std::size_t seen = 0;
+  namespace ode = boost::numeric::odeint;
+  auto stepper = ode::make_controlled(1e-10, 1e-8, ode::runge_kutta_dopri5<State>());
+  auto scaled_rhs = [&](const State& y, State& dydt, double t) {
+    State xs{y[0] * L0};
+    rhs(xs, dydt, t);
+  };
+  State y{1.0};
+  ode::integrate_times(stepper, scaled_rhs, y, obs.begin(), obs.end(), 1e-6, [&](const State& s, double) {
+    if (seen++ > 0) out.fronts.push_back(std::min(s[0] * L0, L));
+  });
+  return out;
+}
+
+}  // namespace spreadfit
