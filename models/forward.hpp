@@ -40,3 +40,11 @@ bool rig_accepts_reading(const Rig& rig, Reading reading);
 std::string_view reading_name(Reading reading);
 
 }  // namespace spreadfit
+
+namespace spreadfit {
+/// The same readings from the one-state low-order model (models/low_order.hpp) for channel and plate rigs: a
+/// cheap surrogate for global searches. Squeeze and slump rigs fall back to the full model (already cheap).
+/// Non-finite values mark a failed solve.
+std::vector<double> predict_readings_low_order(const TestSetup& setup, const Material& material,
+                                               const std::vector<double>& times);
+}  // namespace spreadfit

@@ -8,6 +8,7 @@
 #include <stdexcept>
 
 #include "models/closed_forms.hpp"
+#include "models/side_wall.hpp"
 
 namespace spreadfit {
 
@@ -30,16 +31,21 @@ LowOrderSolution solve_low_order(const SpreadingProblem& p, const std::vector<do
   const double L = out.arrest_extent;
 
   using State = std::array<double, 1>;
-  auto rhs = [&](const State& x, State& dxdt, double) {
-    const double xf = x[0] / L0;  // integrate in units of L0
-    const double t_sim = planar ? closed_form::planar_front_time(p.rho_g, m.consistency, n, size, x[0])
-                                : closed_form::axisymmetric_front_time(p.rho_g, m.consistency, n, size, x[0]);
-    double u = n / exponent * xf / t_sim;
+  // Similarity time at front x: t(x) = (x^e / (P rho g A^(n+2) / K))^(1/n), e = 2n+3 or 3n+5; constants hoisted
+  // out of the right-hand side (the Beta functions in P are not cheap).
+  const double P = planar ? closed_form::planar_front_constant(n) : closed_form::axisymmetric_front_constant(n);
+  const double c = P * p.rho_g / m.consistency * std::pow(size, n + 2);
+  auto rhs = [&](const State& y, State& dydt, double) {
+    const double x = y[0] * L0;  // integrate in units of L0
+    const double t_sim = std::pow(std::pow(x, exponent) / c, 1.0 / n);
+    double u = n / exponent * y[0] / t_sim;
+    // Side walls slow the whole layer by the duct factor at its mean depth (planar channel only).
+    if (planar && p.channel_width > 0) u *= side_wall_flux_factor(size / x / p.channel_width);
     if (std::isfinite(L)) {
-      const double ratio = x[0] / L;
+      const double ratio = x / L;
       u = ratio >= 1.0 ? 0.0 : u * std::pow(1.0 - std::pow(ratio, k), 1.0 + 1.0 / n);
     }
-    dxdt[0] = u;
+    dydt[0] = u;
   };
   out.fronts.reserve(times.size());
   if (times.empty()) return out;
@@ -52,12 +58,8 @@ LowOrderSolution solve_low_order(const SpreadingProblem& p, const std::vector<do
   std::size_t seen = 0;
   namespace ode = boost::numeric::odeint;
   auto stepper = ode::make_controlled(1e-10, 1e-8, ode::runge_kutta_dopri5<State>());
-  auto scaled_rhs = [&](const State& y, State& dydt, double t) {
-    State xs{y[0] * L0};
-    rhs(xs, dydt, t);
-  };
   State y{1.0};
-  ode::integrate_times(stepper, scaled_rhs, y, obs.begin(), obs.end(), 1e-6, [&](const State& s, double) {
+  ode::integrate_times(stepper, rhs, y, obs.begin(), obs.end(), 1e-6, [&](const State& s, double) {
     if (seen++ > 0) out.fronts.push_back(std::min(s[0] * L0, L));
   });
   return out;

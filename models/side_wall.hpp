@@ -11,5 +11,7 @@ namespace spreadfit {
 
 /// Flux factor f in (0, 1] of an open rectangular channel of width W at depth h (f -> 1 as h/W -> 0).
 double side_wall_flux_factor(double depth_over_width);
+/// The same from the series itself (the fast version reads a table built from this).
+double side_wall_flux_factor_exact(double depth_over_width);
 
 }  // namespace spreadfit

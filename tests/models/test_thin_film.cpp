@@ -204,3 +204,11 @@ TEST_CASE("side-wall flux factor of an open rectangular channel") {
     previous = side_wall_flux_factor(r);
   }
 }
+
+TEST_CASE("the tabulated side-wall factor matches the series") {
+  double worst = 0.0;
+  for (double r = 1e-3; r < 5.0; r += 7.77e-4)
+    worst = std::max(worst, std::abs(side_wall_flux_factor(r) - side_wall_flux_factor_exact(r)));
+  INFO("worst interpolation error " << worst);
+  CHECK(worst < 1e-8);
+}

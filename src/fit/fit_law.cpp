@@ -1,0 +1,365 @@
+#include "src/fit/fit_law.hpp"
+
+#include <Eigen/Eigenvalues>
+#include <Eigen/LU>
+#include <algorithm>
+#include <boost/math/distributions/students_t.hpp>
+#include <cmath>
+#include <exception>
+#include <fmt/format.h>
+#include <limits>
+#include <nlopt.hpp>
+#include <stdexcept>
+
+#include "src/fit/fit_problem.hpp"
+#include "src/fit/levenberg_marquardt.hpp"
+
+namespace spreadfit {
+
+std::string_view fit_status_name(FitStatus s) {
+  switch (s) {
+    case FitStatus::Converged: return "converged";
+    case FitStatus::NotConverged: return "not converged";
+    case FitStatus::NotIdentifiable: return "not identifiable";
+    case FitStatus::ForwardFailure: return "forward model failed";
+    case FitStatus::InsufficientData: return "insufficient data";
+  }
+  return "unknown";
+}
+
+void FitOptions::validate() const {
+  if (!(ignore_before >= 0)) throw std::invalid_argument("fit option ignore_before must be >= 0 s");
+  if (max_iterations < 1) throw std::invalid_argument("fit option max_iterations must be >= 1");
+  if (global_evaluations < 0) throw std::invalid_argument("fit option global_evaluations must be >= 0");
+}
+
+double aicc(double ssr, int n, int k) {
+  const double base = n * std::log(std::max(ssr, 1e-300) / n) + 2.0 * k;
+  return n - k - 1 > 0 ? base + 2.0 * k * (k + 1) / (n - k - 1) : std::numeric_limits<double>::infinity();
+}
+
+namespace {
+
+std::string parameter_unit(const std::string& name) {
+  if (name == "yield_stress") return "Pa";
+  if (name == "viscosity") return "Pa.s";
+  if (name == "consistency") return "Pa.s^n";
+  if (name == "flow_index") return "-";
+  return "s";
+}
+
+std::string plain_name(const std::string& name) {
+  if (name == "yield_stress") return "yield stress";
+  if (name == "flow_index") return "flow index";
+  if (name == "time_origin") return "release time";
+  return name;
+}
+
+// Stage 1: DIRECT-L on the surrogate over the whole box.
+Eigen::VectorXd global_start(const FitProblem& problem, int evaluations) {
+  const int p = problem.size();
+  Eigen::VectorXd best = 0.5 * (problem.lower() + problem.upper());
+  if (evaluations <= 0) return best;
+  // Release times start at the box's upper end (just before the first reading), the least surprising guess.
+  for (int i = problem.material_parameters(); i < p; ++i) best[i] = problem.upper()[i];
+  double best_cost = std::numeric_limits<double>::infinity();
+  Eigen::VectorXd r;
+  auto objective = [&](const std::vector<double>& x) {
+    Eigen::VectorXd theta = Eigen::Map<const Eigen::VectorXd>(x.data(), p);
+    problem.surrogate_residuals(theta, r);
+    const double c = r.allFinite() ? 0.5 * r.squaredNorm() : 1e300;
+    if (c < best_cost) {
+      best_cost = c;
+      best = theta;
+    }
+    return c;
+  };
+  nlopt::opt opt(nlopt::GN_DIRECT_L, unsigned(p));
+  std::vector<double> lo(problem.lower().data(), problem.lower().data() + p);
+  std::vector<double> hi(problem.upper().data(), problem.upper().data() + p);
+  opt.set_lower_bounds(lo);
+  opt.set_upper_bounds(hi);
+  opt.set_maxeval(evaluations);
+  std::exception_ptr error;
+  std::function<double(const std::vector<double>&)> f = [&](const std::vector<double>& x) {
+    try {
+      return objective(x);
+    } catch (...) {
+      error = std::current_exception();
+      throw nlopt::forced_stop();
+    }
+  };
+  opt.set_min_objective(
+      [](unsigned n, const double* x, double*, void* data) -> double {
+        return (*static_cast<std::function<double(const std::vector<double>&)>*>(data))(
+            std::vector<double>(x, x + n));
+      },
+      &f);
+  std::vector<double> x(best.data(), best.data() + p);
+  double value = 0;
+  try {
+    opt.optimize(x, value);
+  } catch (const nlopt::forced_stop&) {
+  } catch (const std::exception&) {
+    // DIRECT stops by throwing when it exhausts its budget in some builds; the best point seen is kept.
+  }
+  if (error) std::rethrow_exception(error);
+  return best;
+}
+
+Eigen::VectorXd fd_steps(const FitProblem& problem) {
+  Eigen::VectorXd h(problem.size());
+  for (int i = 0; i < problem.size(); ++i)
+    h[i] = i < problem.material_parameters() ? 2e-2 : 5e-3 * std::max(1.0, problem.upper()[i] - problem.lower()[i]);
+  return h;
+}
+
+// One-sided profile-likelihood upper bound for parameter j (resting on its lower bound): the value where the
+// re-optimised cost exceeds the optimum by q^2/2 in units of s^2 (likelihood-ratio, Venzon & Moolgavkar 1988).
+double profile_upper(const FitProblem& problem, const LmResult& best, int j, double s2, double q, int& evals) {
+  const int p = problem.size();
+  const double target = best.cost + 0.5 * q * q * s2;
+  std::vector<int> free;
+  for (int i = 0; i < p; ++i)
+    if (i != j) free.push_back(i);
+  Eigen::VectorXd lo(free.size()), hi(free.size()), h(free.size());
+  const Eigen::VectorXd steps = fd_steps(problem);
+  for (std::size_t k = 0; k < free.size(); ++k) {
+    lo[k] = problem.lower()[free[k]];
+    hi[k] = problem.upper()[free[k]];
+    h[k] = steps[free[k]];
+  }
+  Eigen::VectorXd rest(free.size());
+  for (std::size_t k = 0; k < free.size(); ++k) rest[k] = best.x[free[k]];
+  auto cost_at = [&](double value) {
+    auto f = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
+      Eigen::VectorXd theta = best.x;
+      theta[j] = value;
+      for (std::size_t k = 0; k < free.size(); ++k) theta[free[k]] = x[k];
+      return problem.residuals(theta, r);
+    };
+    LmOptions o;
+    o.max_iterations = 8;
+    o.fd_step = h;
+    const LmResult sub = free.empty() ? LmResult{} : levenberg_marquardt(f, rest, lo, hi, o);
+    if (!free.empty() && sub.r.size() > 0) rest = sub.x;
+    ++evals;
+    return free.empty() ? 0.0 : sub.cost;
+  };
+  double a = best.x[j], b = a;
+  const double top = problem.upper()[j];
+  while (b < top) {
+    b = std::min(b + 0.5, top);
+    if (cost_at(b) > target) break;
+    a = b;
+    if (b >= top) return std::exp(top);
+  }
+  for (int it = 0; it < 4; ++it) {
+    const double m = 0.5 * (a + b);
+    (cost_at(m) > target ? b : a) = m;
+  }
+  return std::exp(0.5 * (a + b));
+}
+
+}  // namespace
+
+FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOptions& options,
+                  const std::vector<FitResult>& hints) {
+  options.validate();
+  if (series.empty()) throw std::invalid_argument("fit: no readings");
+  FitResult out;
+  out.law = law;
+  const FitProblem problem(series, law, options);
+  const int p = problem.size();
+  const int n = problem.points();
+  out.points = n;
+  out.names = problem.names();
+  if (n < p + 1) {
+    out.status = FitStatus::InsufficientData;
+    out.reason = fmt::format("{} readings cannot determine {} parameters and a reading uncertainty", n, p);
+    return out;
+  }
+  Eigen::VectorXd start = global_start(problem, options.global_evaluations);
+
+  std::string failure;
+  auto f = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return problem.residuals(x, r, &failure); };
+  if (!hints.empty()) {
+    Eigen::VectorXd r;
+    double best_cost = f(start, r) ? r.squaredNorm() : std::numeric_limits<double>::infinity();
+    for (const FitResult& h : hints) {
+      if (h.status != FitStatus::Converged && h.status != FitStatus::NotIdentifiable) continue;
+      const Eigen::VectorXd theta = problem.parameters(h.material, h.time_origins);
+      if (f(theta, r) && r.squaredNorm() < best_cost) {
+        best_cost = r.squaredNorm();
+        start = theta;
+      }
+    }
+  }
+  LmOptions lm;
+  lm.max_iterations = options.max_iterations;
+  lm.fd_step = fd_steps(problem);
+  // Coarse-to-fine: most iterations run on half the cells (about half the cost, ~0.3% model error), then the
+  // default resolution polishes the last digits and supplies the Jacobian for the intervals.
+  int coarse_evaluations = 0;
+  if (options.forward.cells >= 32) {
+    FitOptions coarse_options = options;
+    coarse_options.forward.cells = options.forward.cells / 2;
+    const FitProblem coarse(series, law, coarse_options);
+    auto fc = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return coarse.residuals(x, r); };
+    const LmResult c = levenberg_marquardt(fc, start, problem.lower(), problem.upper(), lm);
+    coarse_evaluations = coarse.evaluations();
+    if (c.r.size() == n) start = c.x;
+    lm.max_iterations = std::max(8, options.max_iterations / 3);
+    lm.initial_damping = 1e-6;
+  }
+  const LmResult best = levenberg_marquardt(f, start, problem.lower(), problem.upper(), lm);
+  out.iterations = best.iterations;
+  if (best.r.size() != n || best.jacobian.rows() != n) {
+    out.status = FitStatus::ForwardFailure;
+    out.reason = best.message + (failure.empty() ? "" : ": " + failure);
+    out.evaluations = problem.evaluations();
+    return out;
+  }
+  out.cost = best.cost;
+  out.material = problem.material(best.x);
+  out.time_origins = problem.time_origins(best.x);
+
+  // Residual statistics: unweighted rmse over all series, variance from the residuals unless stated.
+  double sq = 0.0;
+  {
+    Eigen::Index k = 0;
+    for (std::size_t s = 0; s < series.size(); ++s)
+      for (std::size_t i = 0; i < problem.fitted_times()[s].size(); ++i, ++k)
+        sq += std::pow(best.r[k] * problem.weight_sigma(s), 2);
+  }
+  out.rmse = std::sqrt(sq / n);
+  const int dof = n - p;
+  const double chi2 = 2.0 * best.cost;
+  const double s2 = problem.sigma_stated() ? std::max(1.0, chi2 / dof) : chi2 / dof;
+  out.sigma = std::sqrt(s2) * problem.weight_sigma(0);
+  out.aicc = aicc(chi2, n, p + 1);
+  const double q = boost::math::quantile(boost::math::complement(boost::math::students_t(double(dof)), 0.025));
+
+  // Covariance in log space. Columns of parameters on a bound are excluded (their interval comes from a profile).
+  const Eigen::MatrixXd JtJ = best.jacobian.transpose() * best.jacobian;
+  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig(JtJ);
+  const double max_ev = eig.eigenvalues().maxCoeff();
+  Eigen::VectorXd inv_ev = eig.eigenvalues();
+  for (Eigen::Index i = 0; i < inv_ev.size(); ++i)
+    inv_ev[i] = inv_ev[i] > 1e-12 * max_ev ? 1.0 / inv_ev[i] : std::numeric_limits<double>::infinity();
+  Eigen::MatrixXd cov = Eigen::MatrixXd::Zero(p, p);
+  for (Eigen::Index i = 0; i < p; ++i) {
+    if (std::isinf(inv_ev[i])) {
+      for (Eigen::Index a = 0; a < p; ++a)
+        for (Eigen::Index b = 0; b < p; ++b)
+          if (std::abs(eig.eigenvectors()(a, i) * eig.eigenvectors()(b, i)) > 1e-6)
+            cov(a, b) = std::numeric_limits<double>::infinity();
+      continue;
+    }
+    cov += s2 * inv_ev[i] * eig.eigenvectors().col(i) * eig.eigenvectors().col(i).transpose();
+  }
+  out.correlation = Eigen::MatrixXd::Identity(p, p);
+  for (int a = 0; a < p; ++a)
+    for (int b = 0; b < p; ++b)
+      if (a != b) {
+        const double c = cov(a, b) / std::sqrt(cov(a, a) * cov(b, b));
+        out.correlation(a, b) = std::isfinite(c) ? c : 1.0;
+      }
+
+  int identifiable = 0;
+  for (int i = 0; i < p; ++i) {
+    ParameterEstimate e;
+    e.name = problem.names()[i];
+    e.unit = parameter_unit(e.name);
+    const bool log_scale = i < problem.material_parameters();
+    const double se = std::sqrt(cov(i, i));
+    const double x = best.x[i];
+    const bool on_lower = x - problem.lower()[i] < 1e-3;
+    if (log_scale) {
+      e.value = std::exp(x);
+      e.lower = std::exp(x - q * se);
+      e.upper = std::exp(x + q * se);
+      e.identifiable = std::isfinite(se) && 2.0 * q * se < std::log(100.0);
+      if (on_lower && e.name == "yield_stress") {
+        int evals = 0;
+        e.upper_only = true;
+        e.lower = 0.0;
+        e.upper = profile_upper(problem, best, i, s2, q, evals);
+        e.identifiable = true;
+        out.warnings.push_back(fmt::format(
+            "the readings need no yield stress: only an upper bound ({:.3g} Pa) is supported; if the sample was "
+            "still spreading when readings ended, continue them until it stops",
+            e.upper));
+      }
+    } else {
+      e.value = x;
+      e.lower = x - q * se;
+      e.upper = x + q * se;
+      e.identifiable = std::isfinite(se);
+    }
+    if (log_scale && e.identifiable) ++identifiable;
+    if (log_scale && !e.identifiable)
+      out.warnings.push_back(fmt::format("the {} is not determined by these readings (95% interval spans more "
+                                         "than a factor of 100)",
+                                         plain_name(e.name)));
+    out.parameters.push_back(e);
+  }
+  for (int a = 0; a < problem.material_parameters(); ++a)
+    for (int b = a + 1; b < problem.material_parameters(); ++b)
+      if (std::abs(out.correlation(a, b)) > 0.95)
+        out.warnings.push_back(fmt::format(
+            "{} and {} are hard to separate from these readings (correlation {:.2f}): readings until the sample "
+            "stops, a longer test, or a second fill volume or rig would separate them",
+            plain_name(problem.names()[a]), plain_name(problem.names()[b]), out.correlation(a, b)));
+
+  out.evaluations = problem.evaluations() + coarse_evaluations;
+  if (!best.converged) {
+    out.status = FitStatus::NotConverged;
+    out.reason = best.message;
+  } else if (identifiable == 0) {
+    out.status = FitStatus::NotIdentifiable;
+    out.reason = "no material parameter is determined by these readings";
+  } else {
+    out.status = FitStatus::Converged;
+  }
+  return out;
+}
+
+ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& options) {
+  ModelChoice choice;
+  // Nested laws start from their simpler relatives: Newtonian -> power law, Bingham -> Herschel-Bulkley.
+  const FitResult newtonian = fit_law(series, Law::Newtonian, options);
+  const FitResult power = fit_law(series, Law::PowerLaw, options, {newtonian});
+  const FitResult bingham = fit_law(series, Law::Bingham, options, {newtonian});
+  const FitResult hb = fit_law(series, Law::HerschelBulkley, options, {power, bingham});
+  choice.candidates = {newtonian, power, bingham, hb};
+  double best = std::numeric_limits<double>::infinity();
+  for (const FitResult& r : choice.candidates)
+    if (r.converged()) best = std::min(best, r.aicc);
+  // Simplest law whose AICc is within 2 of the best (all_laws() is ordered simplest first; power law and Bingham
+  // have the same size, so the lower AICc of the two wins among them).
+  for (std::size_t i = 0; i < choice.candidates.size(); ++i) {
+    const FitResult& r = choice.candidates[i];
+    if (!r.converged() || r.aicc > best + 2.0) continue;
+    if (choice.chosen < 0) {
+      choice.chosen = int(i);
+      continue;
+    }
+    const FitResult& c = choice.candidates[std::size_t(choice.chosen)];
+    if (r.parameters.size() == c.parameters.size() && r.aicc < c.aicc) choice.chosen = int(i);
+  }
+  if (choice.chosen < 0) {
+    choice.explanation = "no law could be fitted to these readings";
+    return choice;
+  }
+  const FitResult& c = choice.candidates[std::size_t(choice.chosen)];
+  if (c.aicc > best + 1e-9)
+    choice.explanation = fmt::format("{} chosen: within {:.1f} of the best AICc with fewer parameters (the evidence "
+                                     "for a more complex law is weak)",
+                                     law_name(c.law), c.aicc - best);
+  else
+    choice.explanation = fmt::format("{} chosen: lowest AICc", law_name(c.law));
+  return choice;
+}
+
+}  // namespace spreadfit

@@ -1,0 +1,43 @@
+// Fitting a law to readings: starting point from a global search on the low-order surrogate, polish by
+// Levenberg-Marquardt on the full model, intervals from the Jacobian (profile likelihood where one-sided), and
+// model choice by AICc.
+//
+// Stages and why:
+//  1. Global: NLopt GN_DIRECT_L (Gablonsky & Kelley 2001) on the one-state low-order model (microseconds a
+//     solve), over the whole bounded log-parameter box. Deterministic, needs no start, and cheap enough here to
+//     sample every law's box; the surrogate is within ~15% of the full model, so it lands in the right basin.
+//  2. Local: Levenberg-Marquardt with a forward-difference Jacobian on the full model (Eigen), the natural
+//     method for a small least-squares problem: quadratic convergence near the optimum, and the Jacobian it ends
+//     with gives the covariance. Each iteration costs (parameters + 1) forward solves.
+//  3. Uncertainty: covariance s^2 (J^T J)^-1 in log space, Student-t 95% intervals; a parameter resting on its
+//     lower bound (a yield stress the data do not need) gets a one-sided profile-likelihood upper bound.
+#pragma once
+
+#include <vector>
+
+#include "src/fit/fit_types.hpp"
+
+namespace spreadfit {
+
+/// Fits one law. Never throws for numerical trouble: the status and reason say what happened.
+/// Throws std::invalid_argument for invalid options or empty data.
+/// `hints` are materials from related fits (e.g. the power law for Herschel-Bulkley); the polish starts from
+/// whichever of them or the global stage's point fits the full model best.
+FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOptions& options = {},
+                  const std::vector<FitResult>& hints = {});
+
+struct ModelChoice {
+  std::vector<FitResult> candidates;  ///< every law tried, in all_laws() order
+  int chosen = -1;                    ///< index into candidates, -1 if none converged
+  std::string explanation;            ///< plain words: why this law
+};
+
+/// Fits every law the data can support and picks by AICc, preferring the simpler law when the evidence is weak
+/// (AICc within 2 of the best; Burnham & Anderson 2002).
+ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& options = {});
+
+/// Corrected Akaike information criterion for least squares with k estimated parameters (variance included):
+/// n ln(SSR/n) + 2k + 2k(k+1)/(n-k-1) (Hurvich & Tsai 1989).
+double aicc(double weighted_ssr, int points, int k);
+
+}  // namespace spreadfit

@@ -1,0 +1,134 @@
+#include "src/fit/fit_problem.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <stdexcept>
+
+namespace spreadfit {
+
+namespace {
+// Physical bounds (common practice for foods and cosmetics, no source): yield stress 0.01 Pa - 10 kPa,
+// consistency / viscosity 1e-4 - 1e5 Pa s^n, flow index 0.1 - 2.
+constexpr double tau_min = 1e-2, tau_max = 1e4;
+constexpr double k_min = 1e-4, k_max = 1e5;
+constexpr double n_min = 0.1, n_max = 2.0;
+// Reading weight when no resolution is stated: the variance is then estimated from the residuals, so this only
+// fixes the scale of the weighted sum.
+constexpr double nominal_sigma = 1e-3;
+}  // namespace
+
+FitProblem::FitProblem(const std::vector<FitSeries>& series, Law law, const FitOptions& options)
+    : series_(series), law_(law), options_(options) {
+  std::vector<double> lo, hi;
+  auto add = [&](const std::string& name, double a, double b) {
+    names_.push_back(name);
+    lo.push_back(a);
+    hi.push_back(b);
+  };
+  const bool has_tau = law == Law::Bingham || law == Law::HerschelBulkley;
+  const bool has_n = law == Law::PowerLaw || law == Law::HerschelBulkley;
+  if (has_tau) add("yield_stress", std::log(tau_min), std::log(tau_max));
+  add(has_n ? "consistency" : "viscosity", std::log(k_min), std::log(k_max));
+  if (has_n) add("flow_index", std::log(n_min), std::log(n_max));
+  material_count_ = int(names_.size());
+
+  for (const FitSeries& s : series_) {
+    std::vector<double> t, v;
+    for (std::size_t i = 0; i < s.times.size(); ++i)
+      if (s.times[i] >= options.ignore_before) {
+        t.push_back(s.times[i]);
+        v.push_back(s.values[i]);
+      }
+    points_ += int(t.size());
+    sigma_.push_back(s.sigma.value_or(nominal_sigma));
+    if (!s.sigma) sigma_stated_ = false;
+    // A release time needs a curve to be identified: at least three points on a rig that evolves in time.
+    const bool timed = !std::holds_alternative<SlumpRig>(s.setup.rig);
+    if (options.fit_time_origin && timed && t.size() >= 3) {
+      origin_index_.push_back(int(names_.size()));
+      const double first = t.front();
+      const double span = t.back() - first;
+      add("time_origin", first - std::max(5.0, 0.5 * span), first - 1e-3 * std::max(span, 1.0));
+    } else {
+      origin_index_.push_back(-1);
+    }
+    times_.push_back(std::move(t));
+    values_.push_back(std::move(v));
+  }
+  lower_ = Eigen::Map<Eigen::VectorXd>(lo.data(), Eigen::Index(lo.size()));
+  upper_ = Eigen::Map<Eigen::VectorXd>(hi.data(), Eigen::Index(hi.size()));
+}
+
+Material FitProblem::material(const Eigen::VectorXd& theta) const {
+  Material m;
+  int i = 0;
+  if (law_ == Law::Bingham || law_ == Law::HerschelBulkley) m.yield_stress = std::exp(theta[i++]);
+  m.consistency = std::exp(theta[i++]);
+  if (law_ == Law::PowerLaw || law_ == Law::HerschelBulkley) m.flow_index = std::exp(theta[i++]);
+  return m;
+}
+
+std::vector<double> FitProblem::time_origins(const Eigen::VectorXd& theta) const {
+  std::vector<double> t0;
+  for (int idx : origin_index_) t0.push_back(idx >= 0 ? theta[idx] : 0.0);
+  return t0;
+}
+
+Eigen::VectorXd FitProblem::parameters(const Material& m, const std::vector<double>& t0) const {
+  Eigen::VectorXd theta(size());
+  int i = 0;
+  if (law_ == Law::Bingham || law_ == Law::HerschelBulkley) theta[i++] = std::log(std::max(m.yield_stress, tau_min));
+  theta[i++] = std::log(m.consistency);
+  if (law_ == Law::PowerLaw || law_ == Law::HerschelBulkley) theta[i++] = std::log(m.flow_index);
+  for (std::size_t s = 0; s < origin_index_.size(); ++s)
+    if (origin_index_[s] >= 0) theta[origin_index_[s]] = s < t0.size() ? t0[s] : 0.0;
+  return theta.cwiseMax(lower_).cwiseMin(upper_);
+}
+
+std::vector<double> FitProblem::shifted(const std::vector<double>& t, double t0) const {
+  std::vector<double> out(t.size());
+  for (std::size_t i = 0; i < t.size(); ++i) out[i] = std::max(t[i] - t0, 0.0);
+  return out;
+}
+
+bool FitProblem::predict(const Eigen::VectorXd& theta, std::size_t s, const std::vector<double>& times,
+                         std::vector<double>& out, std::string* failure) const {
+  const int idx = origin_index_[s];
+  const double t0 = idx >= 0 ? theta[idx] : 0.0;
+  ++evaluations_;
+  const ForwardResult r = predict_readings(series_[s].setup, material(theta), shifted(times, t0), options_.forward);
+  if (!r.ok()) {
+    if (failure) *failure = r.message;
+    return false;
+  }
+  out = r.readings;
+  return true;
+}
+
+bool FitProblem::residuals(const Eigen::VectorXd& theta, Eigen::VectorXd& r, std::string* failure) const {
+  r.resize(points_);
+  Eigen::Index k = 0;
+  std::vector<double> pred;
+  for (std::size_t s = 0; s < series_.size(); ++s) {
+    if (times_[s].empty()) continue;
+    if (!predict(theta, s, times_[s], pred, failure)) return false;
+    for (std::size_t i = 0; i < pred.size(); ++i) r[k++] = (pred[i] - values_[s][i]) / sigma_[s];
+  }
+  return r.allFinite();
+}
+
+void FitProblem::surrogate_residuals(const Eigen::VectorXd& theta, Eigen::VectorXd& r) const {
+  r.resize(points_);
+  Eigen::Index k = 0;
+  const Material m = material(theta);
+  for (std::size_t s = 0; s < series_.size(); ++s) {
+    if (times_[s].empty()) continue;
+    const int idx = origin_index_[s];
+    const std::vector<double> pred =
+        predict_readings_low_order(series_[s].setup, m, shifted(times_[s], idx >= 0 ? theta[idx] : 0.0));
+    for (std::size_t i = 0; i < pred.size(); ++i) r[k++] = (pred[i] - values_[s][i]) / sigma_[s];
+  }
+}
+
+}  // namespace spreadfit

@@ -1,0 +1,106 @@
+#include "src/fit/levenberg_marquardt.hpp"
+
+#include <Eigen/Cholesky>
+#include <Eigen/QR>
+#include <algorithm>
+#include <cmath>
+
+namespace spreadfit {
+
+bool finite_difference_jacobian(const ResidualFunction& f, const Eigen::VectorXd& x, const Eigen::VectorXd& r,
+                                const Eigen::VectorXd& upper, const Eigen::VectorXd& step, Eigen::MatrixXd& J) {
+  J.resize(r.size(), x.size());
+  Eigen::VectorXd xp = x, rp;
+  for (Eigen::Index j = 0; j < x.size(); ++j) {
+    double h = step[j];
+    if (x[j] + h > upper[j]) h = -h;
+    xp[j] = x[j] + h;
+    if (!f(xp, rp) || rp.size() != r.size()) return false;
+    J.col(j) = (rp - r) / h;
+    xp[j] = x[j];
+  }
+  return true;
+}
+
+LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x0, const Eigen::VectorXd& lower,
+                             const Eigen::VectorXd& upper, const LmOptions& o) {
+  LmResult out;
+  out.x = x0.cwiseMax(lower).cwiseMin(upper);
+  if (!f(out.x, out.r)) {
+    out.message = "the model could not be evaluated at the starting point";
+    return out;
+  }
+  out.cost = 0.5 * out.r.squaredNorm();
+  double lambda = -1.0;
+  Eigen::VectorXd trial_r;
+  for (out.iterations = 0; out.iterations < o.max_iterations; ++out.iterations) {
+    if (!finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian)) {
+      out.message = "the model failed while differentiating";
+      return out;
+    }
+    const Eigen::MatrixXd JtJ = out.jacobian.transpose() * out.jacobian;
+    const Eigen::VectorXd g = out.jacobian.transpose() * out.r;
+    if (lambda < 0) lambda = o.initial_damping * JtJ.diagonal().maxCoeff();
+    // Statistical convergence: the undamped Gauss-Newton step would lower the cost by 0.5 g^T (J^T J)^-1 g; once
+    // that is a negligible fraction of the residual variance s^2 = |r|^2 / (m - p), further steps move the
+    // parameters by a negligible fraction of their standard errors (the objective's numerical noise would
+    // otherwise keep the iteration busy for nothing).
+    {
+      const Eigen::Index m = out.r.size(), p = out.x.size();
+      const double s2 = out.r.squaredNorm() / double(std::max<Eigen::Index>(1, m - p));
+      const Eigen::VectorXd gn = JtJ.completeOrthogonalDecomposition().solve(g);
+      const double predicted = 0.5 * g.dot(gn);
+      if (std::isfinite(predicted) && predicted <= o.decrease_tolerance * s2) {
+        out.converged = true;
+        out.message = "predicted decrease below decrease_tolerance of the residual variance";
+        return out;
+      }
+    }
+    bool accepted = false;
+    for (int attempt = 0; attempt < 12 && !accepted; ++attempt) {
+      Eigen::MatrixXd A = JtJ;
+      // Marquardt's scaling: damp each parameter by its own curvature (floored so a flat direction is damped too).
+      const double floor = 1e-12 * std::max(JtJ.diagonal().maxCoeff(), 1e-300);
+      for (Eigen::Index j = 0; j < A.rows(); ++j) A(j, j) += lambda * std::max(JtJ(j, j), floor);
+      const Eigen::VectorXd dx = -A.ldlt().solve(g);
+      const Eigen::VectorXd x_new = (out.x + dx).cwiseMax(lower).cwiseMin(upper);
+      const double step = (x_new - out.x).cwiseAbs().maxCoeff();
+      if (!(step > o.step_tolerance)) {
+        out.converged = true;
+        out.message = "parameter change below step_tolerance";
+        return out;
+      }
+      if (f(x_new, trial_r) && trial_r.allFinite()) {
+        const double c = 0.5 * trial_r.squaredNorm();
+        if (c < out.cost) {
+          const double decrease = (out.cost - c) / std::max(out.cost, 1e-300);
+          out.x = x_new;
+          out.r = trial_r;
+          out.cost = c;
+          lambda = std::max(lambda / 5.0, 1e-12);
+          accepted = true;
+          if (decrease < o.cost_tolerance) {
+            out.converged = true;
+            out.message = "relative cost decrease below cost_tolerance";
+            // Keep the Jacobian at the final point for the covariance.
+            finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
+            return out;
+          }
+          continue;
+        }
+      }
+      lambda *= 4.0;
+    }
+    if (!accepted) {
+      // No damped step improves the cost: at a (numerical) minimum for this model's smoothness.
+      out.converged = true;
+      out.message = "no further decrease possible";
+      return out;
+    }
+  }
+  out.message = "stopped after max_iterations (" + std::to_string(o.max_iterations) + ")";
+  finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
+  return out;
+}
+
+}  // namespace spreadfit

@@ -1,0 +1,42 @@
+#include "src/qc/verdict.hpp"
+
+namespace spreadfit {
+
+std::string_view verdict_status_name(Verdict::Status s) {
+  switch (s) {
+    case Verdict::Status::Pass: return "pass";
+    case Verdict::Status::Fail: return "fail";
+    case Verdict::Status::None: return "none";
+  }
+  return "none";
+}
+
+Verdict judge(const FitResult& result, const std::vector<io::SpecLimit>& limits) {
+  Verdict v;
+  if (limits.empty()) return v;
+  v.status = Verdict::Status::Pass;
+  for (const io::SpecLimit& limit : limits) {
+    SpecCheck c;
+    c.parameter = limit.parameter;
+    c.low = limit.low;
+    c.high = limit.high;
+    const ParameterEstimate* found = nullptr;
+    // A spec on "viscosity" applies to a law's consistency when n = 1 and vice versa is not meaningful; match names.
+    for (const ParameterEstimate& p : result.parameters)
+      if (p.name == limit.parameter) found = &p;
+    if (!result.converged() || found == nullptr) {
+      c.available = false;
+      c.pass = false;
+    } else {
+      c.value = found->value;
+      c.pass = found->value >= limit.low && found->value <= limit.high;
+      c.marginal = (found->lower < limit.low && found->upper >= limit.low) ||
+                   (found->lower <= limit.high && found->upper > limit.high);
+    }
+    if (!c.pass) v.status = Verdict::Status::Fail;
+    v.checks.push_back(c);
+  }
+  return v;
+}
+
+}  // namespace spreadfit

@@ -1,0 +1,28 @@
+// Everything reported for one material: the tests it came from, the candidate fits, the chosen result and the
+// verdict. Built by the fit command, read by the table, JSON and history writers.
+#pragma once
+
+#include <string>
+#include <vector>
+
+#include "src/fit/fit_law.hpp"
+#include "src/io/test_description.hpp"
+#include "src/qc/verdict.hpp"
+
+namespace spreadfit {
+
+struct FitOutcome {
+  std::vector<io::TestDescription> tests;  ///< one or more tests of the same sample id (joint fit)
+  std::vector<FitResult> candidates;       ///< every law tried (one when a law was named)
+  int chosen = -1;                         ///< index into candidates; -1 when none converged
+  std::string choice_explanation;
+  Verdict verdict;
+  const FitResult* result() const { return chosen >= 0 ? &candidates[std::size_t(chosen)] : nullptr; }
+};
+
+/// The caution printed with every result that may feed a release decision.
+inline constexpr const char* bench_caution =
+    "Estimates from a bench test: confirm against a calibrated rheometer and follow the plant's QA procedures "
+    "and local rules before releasing a batch.";
+
+}  // namespace spreadfit

@@ -1,0 +1,123 @@
+#include "src/report/result_json.hpp"
+
+#include "src/version.hpp"
+
+namespace spreadfit {
+
+namespace {
+
+nlohmann::json rig_json(const io::TestDescription& t) {
+  nlohmann::json j;
+  j["kind"] = std::string(io::rig_kind_name(t.setup.rig));
+  j["reading"] = std::string(reading_name(t.setup.reading));
+  std::visit(
+      [&](const auto& rig) {
+        using R = std::decay_t<decltype(rig)>;
+        if constexpr (std::is_same_v<R, ChannelRig>) {
+          j["width_m"] = rig.width;
+          j["reservoir_length_m"] = rig.reservoir_length;
+          j["volume_m3"] = rig.volume;
+          j["side_wall_drag"] = rig.side_wall_drag;
+        } else if constexpr (std::is_same_v<R, PlateRig>) {
+          j["ring_radius_m"] = rig.ring_radius;
+          j["volume_m3"] = rig.volume;
+        } else if constexpr (std::is_same_v<R, SqueezeRig>) {
+          j["volume_m3"] = rig.volume;
+          j["force_N"] = rig.force;
+          if (rig.initial_gap > 0) j["initial_gap_m"] = rig.initial_gap;
+        } else {
+          j["radius_m"] = rig.radius;
+          j["height_m"] = rig.height;
+        }
+      },
+      t.setup.rig);
+  j["source"] = t.path.string();
+  return j;
+}
+
+}  // namespace
+
+nlohmann::json result_json(const FitOutcome& o) {
+  using nlohmann::json;
+  const io::TestDescription& first = o.tests.front();
+  json j;
+  j["sample"] = {{"id", first.sample_id}, {"density_kg_m3", first.density}};
+  if (!first.product.empty()) j["sample"]["product"] = first.product;
+  if (first.temperature) j["sample"]["temperature_K"] = *first.temperature;
+  if (o.tests.size() == 1) {
+    j["rig"] = rig_json(first);
+  } else {
+    j["rig"] = json::array();
+    for (const auto& t : o.tests) j["rig"].push_back(rig_json(t));
+  }
+  const FitResult* r = o.result();
+  j["model"] = r ? json(std::string(law_name(r->law))) : json(nullptr);
+  j["parameters"] = json::object();
+  if (r) {
+    int origins = 0;
+    for (const auto& p : r->parameters) origins += p.name == "time_origin";
+    for (const auto& p : r->parameters) {
+      if (p.name == "time_origin" && origins > 1) continue;  // listed per series under fit.time_origins
+      json e = {{"value", p.value}, {"unit", p.unit}, {"ci95", {p.lower, p.upper}}};
+      if (p.upper_only) e["upper_bound_only"] = true;
+      if (!p.identifiable) e["identifiable"] = false;
+      j["parameters"][p.name] = e;
+    }
+  }
+  json fit;
+  const FitResult* shown = r ? r : (o.candidates.empty() ? nullptr : &o.candidates.front());
+  fit["converged"] = r != nullptr;
+  if (shown) {
+    if (r) {
+      fit["rmse"] = r->rmse;
+      fit["rmse_unit"] = "m";
+      fit["reading_sigma"] = r->sigma;
+      fit["aicc"] = std::isfinite(r->aicc) ? json(r->aicc) : json(nullptr);
+      fit["iterations"] = r->iterations;
+      if (r->time_origins.size() > 1) fit["time_origins"] = r->time_origins;
+      json corr = json::array();
+      for (Eigen::Index a = 0; a < r->correlation.rows(); ++a) {
+        json row = json::array();
+        for (Eigen::Index b = 0; b < r->correlation.cols(); ++b) row.push_back(r->correlation(a, b));
+        corr.push_back(row);
+      }
+      fit["correlation"] = {{"parameters", r->names}, {"matrix", corr}};
+    }
+    fit["points"] = shown->points;
+  }
+  int evaluations = 0;
+  json candidates = json::array();
+  for (const auto& c : o.candidates) {
+    evaluations += c.evaluations;
+    json e = {{"model", std::string(law_name(c.law))}, {"status", std::string(fit_status_name(c.status))}};
+    e["aicc"] = c.converged() && std::isfinite(c.aicc) ? json(c.aicc) : json(nullptr);
+    if (!c.reason.empty()) e["reason"] = c.reason;
+    candidates.push_back(e);
+  }
+  fit["evaluations"] = evaluations;
+  fit["candidates"] = candidates;
+  if (!o.choice_explanation.empty()) fit["choice"] = o.choice_explanation;
+  json warnings = json::array();
+  if (r)
+    for (const auto& w : r->warnings) warnings.push_back(w);
+  if (!r)
+    for (const auto& c : o.candidates)
+      if (!c.reason.empty()) warnings.push_back(std::string(law_name(c.law)) + ": " + c.reason);
+  fit["warnings"] = warnings;
+  j["fit"] = fit;
+
+  json checks = json::array();
+  for (const auto& c : o.verdict.checks) {
+    json e = {{"parameter", c.parameter}, {"low", c.low}, {"high", c.high}, {"pass", c.pass}};
+    if (c.available) e["value"] = c.value;
+    else e["value"] = nullptr;
+    if (c.marginal) e["marginal"] = true;
+    checks.push_back(e);
+  }
+  j["verdict"] = {{"status", std::string(verdict_status_name(o.verdict.status))}, {"checks", checks}};
+  j["caution"] = bench_caution;
+  j["software"] = {{"name", std::string(software_name)}, {"version", std::string(software_version())}};
+  return j;
+}
+
+}  // namespace spreadfit
