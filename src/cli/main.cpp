@@ -1,1 +1,152 @@
-int main() { return 0; }
+// The spreadfit command: parses the command line (CLI11), runs a subcommand, and is the one place where
+// exceptions become messages and exit codes (interface.md, "Exit codes"):
+//   io::InputError, std::invalid_argument, usage errors   -> "spreadfit: <message>" on stderr, exit 2
+//   any other exception, or stdout that cannot be written -> "spreadfit: <message>" on stderr, exit 3
+#include <fmt/format.h>
+
+#include <CLI/CLI.hpp>
+#include <exception>
+#include <filesystem>
+#include <iostream>
+#include <optional>
+#include <stdexcept>
+#include <string>
+#include <vector>
+
+#include "src/cli/exit_codes.hpp"
+#include "src/cli/fit_command.hpp"
+#include "src/cli/simulate_command.hpp"
+#include "src/io/input_error.hpp"
+#include "src/version.hpp"
+
+namespace {
+
+using spreadfit::cli::ExitCode;
+using spreadfit::cli::to_int;
+
+const char* const kModelHelp = "newtonian | power-law | bingham | herschel-bulkley";
+
+/// An optional path on the command line: the text CLI11 fills and the option that says whether it was given.
+/// Held where it is declared (CLI11 keeps a reference to `value`), never copied.
+struct PathOption {
+  std::string value;
+  CLI::Option* option = nullptr;
+
+  void add_to(CLI::App& app, const std::string& name, const std::string& type, const std::string& help) {
+    option = app.add_option(name, value, help)->type_name(type);
+  }
+  std::optional<std::filesystem::path> get() const {
+    if (option == nullptr || option->count() == 0) return std::nullopt;
+    return std::filesystem::path(value);
+  }
+};
+
+int run(int argc, char** argv) {
+  CLI::App app(
+      "spreadfit: rheological parameters of sauces and creams from spread-versus-time readings of "
+      "gravity-driven bench tests (gated channel, plate, parallel-plate squeeze, cylinder slump).",
+      std::string(spreadfit::software_name));
+  app.set_version_flag("--version",
+                       std::string(spreadfit::software_name) + " " + std::string(spreadfit::software_version()));
+  app.require_subcommand(1);
+  app.footer(
+      "Exit codes: 0 done (all within spec), 1 done (out of spec), 2 bad input or usage, 3 numerical "
+      "failure.");
+
+  // --- fit ---------------------------------------------------------------------------------------------------
+  CLI::App* fit = app.add_subcommand("fit", "Fit thin-film models to the readings of one or more tests.");
+  std::vector<std::string> fit_tests;
+  std::string fit_model;
+  fit->add_option("TEST.toml", fit_tests, "Test descriptions (TOML), one per test")->required()->type_name("");
+  fit->add_option("--model", fit_model,
+                  std::string("Model to fit: ") + kModelHelp +
+                      " | auto (choose by AICc); default: as each test's [fit] model says")
+      ->type_name("NAME");
+  PathOption fit_json, fit_plot, fit_out_dir, fit_db, fit_specs, fit_csv;
+  fit_json.add_to(*fit, "--json", "FILE", "Write the results as JSON to FILE");
+  fit_plot.add_to(*fit, "--plot", "FILE.svg",
+                  "Draw readings, fitted curve, uncertainty band and residuals to FILE.svg");
+  fit_out_dir.add_to(*fit, "--out-dir", "DIR", "Write one result file per test into DIR");
+  fit_db.add_to(*fit, "--db", "FILE", "Append the results to the batch history FILE");
+  fit_specs.add_to(*fit, "--specs", "FILE", "Read product specifications from FILE");
+  fit_csv.add_to(*fit, "--csv", "FILE", "Write the results as a CSV table to FILE");
+
+  // --- simulate ----------------------------------------------------------------------------------------------
+  CLI::App* simulate = app.add_subcommand(
+      "simulate", "Predict a test's readings for a given material (the forward model alone); CSV on stdout.");
+  std::string simulate_test;
+  spreadfit::cli::SimulateCommandOptions simulate_options;
+  std::string simulate_times;
+  simulate->add_option("TEST.toml", simulate_test, "Test description (TOML): rig, density and reading")
+      ->required()
+      ->type_name("");
+  simulate->add_option("--model", simulate_options.model, std::string("Model: ") + kModelHelp)
+      ->required()
+      ->type_name("NAME");
+  simulate
+      ->add_option("--set", simulate_options.set,
+                   "PARAM=VALUE: viscosity [Pa s], yield_stress [Pa], consistency [Pa s^n], flow_index [-], "
+                   "time_origin [s]; VALUE in SI or with a unit, e.g. yield_stress=\"25 Pa\"")
+      ->type_name("PARAM=VALUE");
+  CLI::Option* times_option =
+      simulate
+          ->add_option("--times", simulate_times,
+                       fmt::format("Times to simulate, in s or with a unit (default: the readings' times, else "
+                                   "{} spaced in log t from {} s to {} s; a slump rig: {} s)",
+                                   spreadfit::cli::default_time_count, spreadfit::cli::default_first_time,
+                                   spreadfit::cli::default_last_time, spreadfit::cli::default_last_time))
+          ->type_name("T1,T2,...");
+
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::Success& e) {  // --help, --help-all, --version
+    return app.exit(e, std::cout, std::cerr);
+  } catch (const CLI::ParseError& e) {
+    const CLI::App* chosen = fit->parsed() ? fit : simulate->parsed() ? simulate : nullptr;
+    std::cerr << "spreadfit: " << e.what() << '\n'
+              << "Run 'spreadfit " << (chosen ? chosen->get_name() + " " : std::string()) << "--help' for usage.\n";
+    return to_int(ExitCode::BadInput);
+  }
+
+  if (simulate->parsed()) {
+    simulate_options.test = simulate_test;
+    if (times_option->count() > 0) simulate_options.times = simulate_times;
+    return spreadfit::cli::run_simulate_command(simulate_options, std::cout, std::cerr);
+  }
+  spreadfit::cli::FitCommandOptions options;
+  options.tests.assign(fit_tests.begin(), fit_tests.end());
+  options.model = fit_model;
+  options.json = fit_json.get();
+  options.plot = fit_plot.get();
+  options.out_dir = fit_out_dir.get();
+  options.db = fit_db.get();
+  options.specs = fit_specs.get();
+  options.csv = fit_csv.get();
+  return spreadfit::cli::run_fit_command(options, std::cout, std::cerr);
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  try {
+    const int code = run(argc, argv);
+    // A full disk or a closed pipe must not pass for a finished run.
+    if (!std::cout.flush()) {
+      std::cerr << "spreadfit: cannot write to standard output\n";
+      return to_int(ExitCode::NumericalFailure);
+    }
+    return code;
+  } catch (const spreadfit::io::InputError& e) {
+    std::cerr << "spreadfit: " << e.what() << '\n';
+    return to_int(ExitCode::BadInput);
+  } catch (const std::invalid_argument& e) {
+    std::cerr << "spreadfit: " << e.what() << '\n';
+    return to_int(ExitCode::BadInput);
+  } catch (const std::exception& e) {
+    std::cerr << "spreadfit: " << e.what() << '\n';
+    return to_int(ExitCode::NumericalFailure);
+  } catch (...) {
+    std::cerr << "spreadfit: unexpected error of an unknown kind\n";
+    return to_int(ExitCode::NumericalFailure);
+  }
+}

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <boost/math/distributions/students_t.hpp>
 #include <cmath>
+#include <cstdlib>
 #include <exception>
 #include <fmt/format.h>
 #include <limits>
@@ -55,53 +56,48 @@ std::string plain_name(const std::string& name) {
   return name;
 }
 
-// Stage 1: DIRECT-L on the surrogate over the whole box.
+// Stage 1: DIRECT-L on the surrogate over the box of the material parameters; release times are held at the
+// upper end of their range (just before the first reading), the least surprising guess, and left to the polish:
+// DIRECT's cost grows quickly with the dimension and the release times are nuisance parameters.
 Eigen::VectorXd global_start(const FitProblem& problem, int evaluations) {
   const int p = problem.size();
+  const int pm = problem.material_parameters();
   Eigen::VectorXd best = 0.5 * (problem.lower() + problem.upper());
+  for (int i = pm; i < p; ++i) best[i] = problem.upper()[i];
   if (evaluations <= 0) return best;
-  // Release times start at the box's upper end (just before the first reading), the least surprising guess.
-  for (int i = problem.material_parameters(); i < p; ++i) best[i] = problem.upper()[i];
   double best_cost = std::numeric_limits<double>::infinity();
-  Eigen::VectorXd r;
-  auto objective = [&](const std::vector<double>& x) {
-    Eigen::VectorXd theta = Eigen::Map<const Eigen::VectorXd>(x.data(), p);
-    problem.surrogate_residuals(theta, r);
-    const double c = r.allFinite() ? 0.5 * r.squaredNorm() : 1e300;
-    if (c < best_cost) {
-      best_cost = c;
-      best = theta;
-    }
-    return c;
-  };
-  nlopt::opt opt(nlopt::GN_DIRECT_L, unsigned(p));
-  std::vector<double> lo(problem.lower().data(), problem.lower().data() + p);
-  std::vector<double> hi(problem.upper().data(), problem.upper().data() + p);
-  opt.set_lower_bounds(lo);
-  opt.set_upper_bounds(hi);
-  opt.set_maxeval(evaluations);
+  Eigen::VectorXd r, theta = best;
   std::exception_ptr error;
-  std::function<double(const std::vector<double>&)> f = [&](const std::vector<double>& x) {
+  std::function<double(const double*)> objective = [&](const double* x) {
     try {
-      return objective(x);
+      for (int i = 0; i < pm; ++i) theta[i] = x[i];
+      problem.surrogate_residuals(theta, r);
+      const double c = r.allFinite() ? 0.5 * r.squaredNorm() : 1e300;
+      if (c < best_cost) {
+        best_cost = c;
+        best = theta;
+      }
+      return c;
     } catch (...) {
       error = std::current_exception();
       throw nlopt::forced_stop();
     }
   };
+  nlopt::opt opt(nlopt::GN_DIRECT_L, unsigned(pm));
+  opt.set_lower_bounds(std::vector<double>(problem.lower().data(), problem.lower().data() + pm));
+  opt.set_upper_bounds(std::vector<double>(problem.upper().data(), problem.upper().data() + pm));
+  opt.set_maxeval(evaluations);
   opt.set_min_objective(
-      [](unsigned n, const double* x, double*, void* data) -> double {
-        return (*static_cast<std::function<double(const std::vector<double>&)>*>(data))(
-            std::vector<double>(x, x + n));
+      [](unsigned, const double* x, double*, void* data) -> double {
+        return (*static_cast<std::function<double(const double*)>*>(data))(x);
       },
-      &f);
-  std::vector<double> x(best.data(), best.data() + p);
+      &objective);
+  std::vector<double> x(best.data(), best.data() + pm);
   double value = 0;
   try {
     opt.optimize(x, value);
-  } catch (const nlopt::forced_stop&) {
   } catch (const std::exception&) {
-    // DIRECT stops by throwing when it exhausts its budget in some builds; the best point seen is kept.
+    // forced_stop, or a budget-exhausted signal in some builds: the best point seen is kept either way.
   }
   if (error) std::rethrow_exception(error);
   return best;
@@ -207,12 +203,16 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
     const FitProblem coarse(series, law, coarse_options);
     auto fc = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return coarse.residuals(x, r); };
     const LmResult c = levenberg_marquardt(fc, start, problem.lower(), problem.upper(), lm);
+    if (std::getenv("SPREADFIT_TRACE"))
+      fmt::print(stderr, "{} coarse: {} iterations, cost {:.6g}, {}\n", law_name(law), c.iterations, c.cost, c.message);
     coarse_evaluations = coarse.evaluations();
     if (c.r.size() == n) start = c.x;
     lm.max_iterations = std::max(8, options.max_iterations / 3);
     lm.initial_damping = 1e-6;
   }
   const LmResult best = levenberg_marquardt(f, start, problem.lower(), problem.upper(), lm);
+  if (std::getenv("SPREADFIT_TRACE"))
+    fmt::print(stderr, "{} fine: {} iterations, cost {:.6g}, {}\n", law_name(law), best.iterations, best.cost, best.message);
   out.iterations = best.iterations;
   if (best.r.size() != n || best.jacobian.rows() != n) {
     out.status = FitStatus::ForwardFailure;
@@ -275,6 +275,7 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
     const double se = std::sqrt(cov(i, i));
     const double x = best.x[i];
     const bool on_lower = x - problem.lower()[i] < 1e-3;
+    const bool on_upper = problem.upper()[i] - x < 1e-3;
     if (log_scale) {
       e.value = std::exp(x);
       e.lower = std::exp(x - q * se);
@@ -290,6 +291,18 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
             "the readings need no yield stress: only an upper bound ({:.3g} Pa) is supported; if the sample was "
             "still spreading when readings ended, continue them until it stops",
             e.upper));
+      }
+      if (on_lower && e.name != "yield_stress") {
+        e.identifiable = false;
+        out.warnings.push_back(fmt::format("the {} rests on its lower limit ({:.3g} {}): the readings do not "
+                                           "determine it",
+                                           plain_name(e.name), e.value, e.unit));
+      }
+      if (on_upper) {
+        e.identifiable = false;
+        out.warnings.push_back(fmt::format("the {} rests on its upper limit ({:.3g} {}): the readings barely changed, "
+                                           "so only a lower bound could follow",
+                                           plain_name(e.name), e.value, e.unit));
       }
     } else {
       e.value = x;

@@ -32,14 +32,29 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
   }
   out.cost = 0.5 * out.r.squaredNorm();
   double lambda = -1.0;
+  int stalls = 0;
   Eigen::VectorXd trial_r;
   for (out.iterations = 0; out.iterations < o.max_iterations; ++out.iterations) {
     if (!finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian)) {
       out.message = "the model failed while differentiating";
       return out;
     }
-    const Eigen::MatrixXd JtJ = out.jacobian.transpose() * out.jacobian;
-    const Eigen::VectorXd g = out.jacobian.transpose() * out.r;
+    Eigen::MatrixXd JtJ = out.jacobian.transpose() * out.jacobian;
+    Eigen::VectorXd g = out.jacobian.transpose() * out.r;
+    // Active set: a parameter on a bound that the gradient pushes further out is held there (its row and column
+    // decoupled), so the step and the convergence test concern the free parameters only.
+    for (Eigen::Index j = 0; j < g.size(); ++j) {
+      const double span = upper[j] - lower[j];
+      const bool at_lower = out.x[j] <= lower[j] + 1e-9 * span && g[j] > 0;
+      const bool at_upper = out.x[j] >= upper[j] - 1e-9 * span && g[j] < 0;
+      if (at_lower || at_upper) {
+        const double d = std::max(JtJ(j, j), 1e-300);
+        JtJ.row(j).setZero();
+        JtJ.col(j).setZero();
+        JtJ(j, j) = d;
+        g[j] = 0.0;
+      }
+    }
     if (lambda < 0) lambda = o.initial_damping * JtJ.diagonal().maxCoeff();
     // Statistical convergence: the undamped Gauss-Newton step would lower the cost by 0.5 g^T (J^T J)^-1 g; once
     // that is a negligible fraction of the residual variance s^2 = |r|^2 / (m - p), further steps move the
@@ -74,14 +89,19 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
         const double c = 0.5 * trial_r.squaredNorm();
         if (c < out.cost) {
           const double decrease = (out.cost - c) / std::max(out.cost, 1e-300);
+          // A decrease that is a negligible fraction of the residual variance is a stall (a flat valley: the data
+          // do not pin the parameters down); two in a row end the search with the point reached.
+          const double s2 = trial_r.squaredNorm() / double(std::max<Eigen::Index>(1, trial_r.size() - out.x.size()));
+          stalls = (out.cost - c) < o.stall_tolerance * s2 ? stalls + 1 : 0;
           out.x = x_new;
           out.r = trial_r;
           out.cost = c;
           lambda = std::max(lambda / 5.0, 1e-12);
           accepted = true;
-          if (decrease < o.cost_tolerance) {
+          if (decrease < o.cost_tolerance || stalls >= 2) {
             out.converged = true;
-            out.message = "relative cost decrease below cost_tolerance";
+            out.message = stalls >= 2 ? "cost stationary within the residual variance (stall_tolerance)"
+                                      : "relative cost decrease below cost_tolerance";
             // Keep the Jacobian at the final point for the covariance.
             finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
             return out;

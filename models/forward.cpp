@@ -1,0 +1,182 @@
+#include "models/forward.hpp"
+
+#include <cmath>
+#include <numbers>
+#include <stdexcept>
+#include <string>
+
+#include "models/slump.hpp"
+#include "models/squeeze_flow.hpp"
+#include "models/low_order.hpp"
+#include "models/thin_film.hpp"
+#include <limits>
+
+namespace spreadfit {
+
+namespace {
+
+using std::numbers::pi;
+
+void require_positive(double v, const char* field) {
+  if (!(v > 0) || !std::isfinite(v)) throw std::invalid_argument(std::string(field) + " must be a finite value > 0");
+}
+
+SpreadingOptions spreading_options(const ForwardOptions& o) {
+  SpreadingOptions s;
+  s.cells = o.cells;
+  s.rel_tol = o.rel_tol;
+  s.max_steps = o.max_steps;
+  return s;
+}
+
+void copy_solution(const SpreadingSolution& s, double offset, double scale, ForwardResult& out) {
+  out.steps = s.steps;
+  if (!s.ok) {
+    out.status = SolveStatus::StepLimit;
+    out.message = s.message;
+    return;
+  }
+  out.readings.reserve(s.fronts.size());
+  for (double x : s.fronts) out.readings.push_back(scale * (x - offset));
+}
+
+ForwardResult channel(const ChannelRig& rig, const TestSetup& setup, const Material& m,
+                      const std::vector<double>& times, const ForwardOptions& o) {
+  require_positive(rig.width, "rig.width");
+  require_positive(rig.reservoir_length, "rig.reservoir_length");
+  require_positive(rig.volume, "rig.volume");
+  SpreadingProblem p;
+  p.geometry = Geometry::Planar;
+  p.initial_extent = rig.reservoir_length;
+  p.initial_height = rig.volume / (rig.width * rig.reservoir_length);
+  p.rho_g = setup.density * setup.gravity;
+  p.material = m;
+  p.channel_width = rig.side_wall_drag ? rig.width : 0.0;
+  ForwardResult out;
+  copy_solution(solve_spreading(p, times, spreading_options(o)), rig.reservoir_length, 1.0, out);
+  if (!rig.side_wall_drag && p.initial_height > 0.1 * rig.width)
+    out.notes.push_back("side-wall drag is off although the initial depth is " +
+                        std::to_string(p.initial_height / rig.width).substr(0, 4) +
+                        "x the channel width: the planar model overestimates the flow while the layer is deep");
+  return out;
+}
+
+ForwardResult plate(const PlateRig& rig, const TestSetup& setup, const Material& m, const std::vector<double>& times,
+                    const ForwardOptions& o) {
+  require_positive(rig.ring_radius, "rig.ring_radius");
+  require_positive(rig.volume, "rig.volume");
+  SpreadingProblem p;
+  p.geometry = Geometry::Axisymmetric;
+  p.initial_extent = rig.ring_radius;
+  p.initial_height = rig.volume / (pi * rig.ring_radius * rig.ring_radius);
+  p.rho_g = setup.density * setup.gravity;
+  p.material = m;
+  ForwardResult out;
+  copy_solution(solve_spreading(p, times, spreading_options(o)), 0.0, setup.reading == Reading::Diameter ? 2.0 : 1.0,
+                out);
+  return out;
+}
+
+ForwardResult squeeze(const SqueezeRig& rig, const TestSetup& setup, const Material& m,
+                      const std::vector<double>& times, const ForwardOptions& o) {
+  SqueezeOptions so;
+  so.max_steps = o.max_steps;
+  const SqueezeSolution s = solve_squeeze(rig, m, times, so);
+  ForwardResult out;
+  out.steps = s.steps;
+  if (!s.ok) {
+    out.status = SolveStatus::Failed;
+    out.message = s.message;
+    return out;
+  }
+  for (double h : s.gaps) {
+    const double radius = std::sqrt(rig.volume / (pi * h));
+    switch (setup.reading) {
+      case Reading::Gap: out.readings.push_back(h); break;
+      case Reading::Radius: out.readings.push_back(radius); break;
+      default: out.readings.push_back(2.0 * radius); break;
+    }
+  }
+  return out;
+}
+
+ForwardResult slump(const SlumpRig& rig, const TestSetup& setup, const Material& m, const std::vector<double>& times) {
+  const SlumpPrediction s = predict_slump(rig, m, setup.density, setup.gravity);
+  ForwardResult out;
+  out.readings.assign(times.size(), s.slump);
+  out.notes = s.warnings;
+  out.notes.insert(out.notes.begin(), std::string("slump model regime: ") + std::string(slump_regime_name(s.regime)) +
+                                          " (static final slump, the same at every time)");
+  return out;
+}
+
+}  // namespace
+
+std::string_view reading_name(Reading reading) {
+  switch (reading) {
+    case Reading::Front: return "front";
+    case Reading::Radius: return "radius";
+    case Reading::Diameter: return "diameter";
+    case Reading::Gap: return "gap";
+    case Reading::Slump: return "slump";
+  }
+  return "unknown";
+}
+
+bool rig_accepts_reading(const Rig& rig, Reading r) {
+  if (std::holds_alternative<ChannelRig>(rig)) return r == Reading::Front;
+  if (std::holds_alternative<PlateRig>(rig)) return r == Reading::Radius || r == Reading::Diameter;
+  if (std::holds_alternative<SqueezeRig>(rig)) return r == Reading::Gap || r == Reading::Radius || r == Reading::Diameter;
+  return r == Reading::Slump;
+}
+
+ForwardResult predict_readings(const TestSetup& setup, const Material& m, const std::vector<double>& times,
+                               const ForwardOptions& options) {
+  validate(m);
+  require_positive(setup.density, "sample.density");
+  require_positive(setup.gravity, "gravity");
+  if (!rig_accepts_reading(setup.rig, setup.reading))
+    throw std::invalid_argument("the rig does not read '" + std::string(reading_name(setup.reading)) + "'");
+  return std::visit(
+      [&](const auto& rig) -> ForwardResult {
+        using R = std::decay_t<decltype(rig)>;
+        if constexpr (std::is_same_v<R, ChannelRig>) return channel(rig, setup, m, times, options);
+        else if constexpr (std::is_same_v<R, PlateRig>) return plate(rig, setup, m, times, options);
+        else if constexpr (std::is_same_v<R, SqueezeRig>) return squeeze(rig, setup, m, times, options);
+        else return slump(rig, setup, m, times);
+      },
+      setup.rig);
+}
+
+}  // namespace spreadfit
+
+namespace spreadfit {
+
+std::vector<double> predict_readings_low_order(const TestSetup& setup, const Material& m,
+                                               const std::vector<double>& times) {
+  const Rig& rig = setup.rig;
+  SpreadingProblem p;
+  p.rho_g = setup.density * setup.gravity;
+  p.material = m;
+  double offset = 0.0, scale = 1.0;
+  if (const auto* c = std::get_if<ChannelRig>(&rig)) {
+    p.geometry = Geometry::Planar;
+    p.initial_extent = c->reservoir_length;
+    p.initial_height = c->volume / (c->width * c->reservoir_length);
+    offset = c->reservoir_length;
+    p.channel_width = c->side_wall_drag ? c->width : 0.0;
+  } else if (const auto* pl = std::get_if<PlateRig>(&rig)) {
+    p.geometry = Geometry::Axisymmetric;
+    p.initial_extent = pl->ring_radius;
+    p.initial_height = pl->volume / (std::numbers::pi * pl->ring_radius * pl->ring_radius);
+    if (setup.reading == Reading::Diameter) scale = 2.0;
+  } else {
+    const ForwardResult r = predict_readings(setup, m, times);
+    return r.ok() ? r.readings : std::vector<double>(times.size(), std::numeric_limits<double>::quiet_NaN());
+  }
+  std::vector<double> out = solve_low_order(p, times).fronts;
+  for (double& x : out) x = scale * (x - offset);
+  return out;
+}
+
+}  // namespace spreadfit

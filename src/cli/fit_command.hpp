@@ -1,0 +1,27 @@
+// `spreadfit fit`: fit thin-film models to the readings of one or more bench tests (interface.md).
+// main parses the command line into FitCommandOptions and calls run_fit_command.
+#pragma once
+
+#include <filesystem>
+#include <optional>
+#include <ostream>
+#include <string>
+#include <vector>
+
+namespace spreadfit::cli {
+
+struct FitCommandOptions {
+  std::vector<std::filesystem::path> tests;      ///< test descriptions (TOML), at least one
+  std::string model;                             ///< --model as written; empty = as each test says
+  std::optional<std::filesystem::path> json;     ///< --json FILE
+  std::optional<std::filesystem::path> plot;     ///< --plot FILE.svg
+  std::optional<std::filesystem::path> out_dir;  ///< --out-dir DIR
+  std::optional<std::filesystem::path> db;       ///< --db FILE
+  std::optional<std::filesystem::path> specs;    ///< --specs FILE
+  std::optional<std::filesystem::path> csv;      ///< --csv FILE
+};
+
+/// Runs the fit subcommand; returns the exit code (interface.md). Throws io::InputError for bad input.
+int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::ostream& err);
+
+}  // namespace spreadfit::cli

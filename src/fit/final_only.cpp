@@ -1,0 +1,82 @@
+#include "src/fit/final_only.hpp"
+
+#include <boost/math/tools/roots.hpp>
+#include <cmath>
+#include <fmt/format.h>
+#include <numbers>
+
+#include "models/closed_forms.hpp"
+#include "models/slump.hpp"
+
+namespace spreadfit {
+
+namespace {
+using std::numbers::pi;
+constexpr double default_sigma = 1e-3;  // a ruler read to the millimetre (common practice, no source)
+}  // namespace
+
+FitResult fit_final_reading(const TestSetup& setup, double reading, std::optional<double> sigma) {
+  FitResult out;
+  out.law = Law::Bingham;
+  out.points = 1;
+  out.sigma = sigma.value_or(default_sigma);
+  const double rho_g = setup.density * setup.gravity;
+  double tau = 0, dlog_tau = 0;  // estimate and |d ln tau / d reading|
+  if (const auto* c = std::get_if<ChannelRig>(&setup.rig)) {
+    const double L = c->reservoir_length + reading;
+    tau = closed_form::planar_yield_stress_from_length(rho_g, c->volume / c->width, L);
+    dlog_tau = 3.0 / L;
+  } else if (const auto* p = std::get_if<PlateRig>(&setup.rig)) {
+    const double R = setup.reading == Reading::Diameter ? reading / 2 : reading;
+    tau = closed_form::axisymmetric_yield_stress_from_radius(rho_g, p->volume, R);
+    dlog_tau = 5.0 / R * (setup.reading == Reading::Diameter ? 0.5 : 1.0);
+  } else if (const auto* s = std::get_if<SqueezeRig>(&setup.rig)) {
+    double h = reading, dh = 1.0;  // gap and d gap / d reading
+    if (setup.reading != Reading::Gap) {
+      const double R = setup.reading == Reading::Diameter ? reading / 2 : reading;
+      h = s->volume / (pi * R * R);
+      dh = 2.0 * h / R * (setup.reading == Reading::Diameter ? 0.5 : 1.0);
+    }
+    // tau_y = 3 F h / (2 pi R^3) with R^3 = (V/(pi h))^(3/2): tau_y = 3 F h^(5/2) / (2 pi (V/pi)^(3/2)).
+    tau = 3.0 * s->force * std::pow(h, 2.5) / (2.0 * pi * std::pow(s->volume / pi, 1.5));
+    dlog_tau = 2.5 / h * dh;
+  } else {
+    const auto& rig = std::get<SlumpRig>(setup.rig);
+    if (!(reading > 0) || reading >= rig.height) {
+      out.status = FitStatus::NotIdentifiable;
+      out.reason = reading > 0 ? "the sample collapsed completely: a slump test gives no yield stress then"
+                               : "no slump: the yield stress is only bounded from below (tau_y >= rho g H0 / 2)";
+      return out;
+    }
+    auto slump_at = [&](double log_tau) {
+      return predict_slump(rig, Material{std::exp(log_tau), 1.0, 1.0}, setup.density, setup.gravity).slump - reading;
+    };
+    // The slump falls monotonically from H0 to 0 as tau_y rises to rho g H0 / 2: bracket in log tau.
+    const double top = std::log(0.5 * rho_g * rig.height);
+    boost::math::tools::eps_tolerance<double> tol(40);
+    std::uintmax_t iterations = 100;
+    const auto [a, b] = boost::math::tools::toms748_solve(slump_at, top - 25.0, top, tol, iterations);
+    const double x = 0.5 * (a + b);
+    tau = std::exp(x);
+    const double h = 1e-4;
+    dlog_tau = std::abs(1.0 / ((slump_at(x + h) - slump_at(x - h)) / (2 * h)));
+  }
+  const double se = dlog_tau * out.sigma;
+  ParameterEstimate e;
+  e.name = "yield_stress";
+  e.unit = "Pa";
+  e.value = tau;
+  e.lower = tau * std::exp(-1.96 * se);
+  e.upper = tau * std::exp(1.96 * se);
+  out.parameters.push_back(e);
+  out.names = {"yield_stress"};
+  out.material.yield_stress = tau;
+  out.correlation = Eigen::MatrixXd::Identity(1, 1);
+  out.status = FitStatus::Converged;
+  out.warnings.push_back(
+      "estimated from a single final reading by the plastic-limit relation: it assumes the sample had stopped and "
+      "had yielded throughout; no viscosity or flow index can be estimated");
+  return out;
+}
+
+}  // namespace spreadfit

@@ -1,0 +1,149 @@
+// spreadfit benchmark: forward-solve times and accuracy at the default resolution, low-order model distance, and
+// fit times. Run by scripts/bench; prints a table. No thresholds here (timing belongs in no unit test).
+#include <algorithm>
+#include <chrono>
+#include <cmath>
+#include <cstdio>
+#include <functional>
+#include <random>
+#include <vector>
+
+#include "models/forward.hpp"
+#include "models/low_order.hpp"
+#include "models/thin_film.hpp"
+#include "src/fit/fit_law.hpp"
+
+using namespace spreadfit;
+
+namespace {
+
+double median_ms(const std::function<void()>& f, int repeats) {
+  std::vector<double> t;
+  for (int i = 0; i < repeats; ++i) {
+    const auto a = std::chrono::steady_clock::now();
+    f();
+    t.push_back(std::chrono::duration<double, std::milli>(std::chrono::steady_clock::now() - a).count());
+  }
+  std::sort(t.begin(), t.end());
+  return t[t.size() / 2];
+}
+
+TestSetup channel() {
+  TestSetup s;
+  s.rig = ChannelRig{0.05, 0.05, 1e-4, true};
+  s.density = 1100;
+  s.reading = Reading::Front;
+  return s;
+}
+TestSetup plate() {
+  TestSetup s;
+  s.rig = PlateRig{0.03, 6e-5};
+  s.density = 1000;
+  s.reading = Reading::Radius;
+  return s;
+}
+TestSetup squeeze() {
+  TestSetup s;
+  s.rig = SqueezeRig{2e-6, 4.9, 8e-3};
+  s.density = 1000;
+  s.reading = Reading::Gap;
+  return s;
+}
+TestSetup slump() {
+  TestSetup s;
+  s.rig = SlumpRig{0.05, 0.1};
+  s.density = 1100;
+  s.reading = Reading::Slump;
+  return s;
+}
+
+struct Law_ {
+  const char* name;
+  Material m;
+};
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  const bool quick = argc > 1 && std::string(argv[1]) == "--quick";
+  const int repeats = quick ? 5 : 21;
+  std::vector<double> times;
+  for (int i = 1; i <= 30; ++i) times.push_back(4.0 * i);  // a 120 s test, 30 readings
+
+  const Law_ laws[] = {{"newtonian", {0, 5.0, 1.0}},
+                       {"power-law", {0, 10.0, 0.4}},
+                       {"bingham", {30, 2.0, 1.0}},
+                       {"herschel-bulkley", {20, 10.0, 0.4}}};
+  struct Rig_ {
+    const char* name;
+    TestSetup setup;
+  };
+  const Rig_ rigs[] = {{"channel", channel()}, {"plate", plate()}, {"squeeze", squeeze()}, {"slump", slump()}};
+
+  std::printf("Forward solve, 120 s test with 30 readings (median of %d runs)\n", repeats);
+  std::printf("%-9s %-17s %10s %8s %16s\n", "rig", "law", "time [ms]", "steps", "error vs 4x finer");
+  for (const Rig_& r : rigs) {
+    for (const Law_& l : laws) {
+      ForwardResult res;
+      const double ms = median_ms([&] { res = predict_readings(r.setup, l.m, times); }, repeats);
+      ForwardOptions fine;
+      fine.cells *= 4;
+      fine.rel_tol /= 100;
+      const ForwardResult ref = predict_readings(r.setup, l.m, times, fine);
+      double err = 0.0;
+      for (std::size_t i = 0; i < times.size(); ++i)
+        if (ref.readings[i] > 0) err = std::max(err, std::abs(res.readings[i] / ref.readings[i] - 1.0));
+      std::printf("%-9s %-17s %10.3f %8zu %15.3f%%\n", r.name, l.name, ms, res.steps, 100 * err);
+    }
+  }
+
+  std::printf("\nLow-order front model vs method of lines (largest |relative difference| over t = 4..120 s)\n");
+  for (Geometry g : {Geometry::Planar, Geometry::Axisymmetric}) {
+    double worst = 0.0, sum = 0.0;
+    int count = 0;
+    for (double tau : {0.0, 5.0, 20.0, 50.0})
+      for (double K : {1.0, 5.0, 20.0})
+        for (double n : {0.3, 0.5, 0.8, 1.0}) {
+          SpreadingProblem p;
+          p.geometry = g;
+          p.initial_extent = g == Geometry::Planar ? 0.05 : 0.03;
+          p.initial_height = g == Geometry::Planar ? 0.04 : 0.021;
+          p.rho_g = 1050 * standard_gravity;
+          p.material = {tau, K, n};
+          const auto full = solve_spreading(p, times);
+          const auto lo = solve_low_order(p, times);
+          double e = 0.0;
+          for (std::size_t i = 0; i < times.size(); ++i) e = std::max(e, std::abs(lo.fronts[i] / full.fronts[i] - 1));
+          worst = std::max(worst, e);
+          sum += e;
+          ++count;
+        }
+    std::printf("  %-12s over %d materials: mean %.1f%%, worst %.1f%%\n",
+                g == Geometry::Planar ? "planar" : "axisymmetric", count, 100 * sum / count, 100 * worst);
+  }
+
+  std::printf("\nFits of a 30-point curve with 0.5 mm reading noise (median of %d)\n", quick ? 3 : 7);
+  std::printf("%-9s %-17s %-8s %10s %8s\n", "rig", "true law", "fit", "time [ms]", "solves");
+  for (const Rig_& r : {rigs[0], rigs[1]}) {
+    const Material truth = {20, 10.0, 0.4};
+    FitSeries s;
+    s.setup = r.setup;
+    for (int i = 1; i <= 30; ++i) s.times.push_back(2.0 * i);
+    std::vector<double> shifted;
+    for (double t : s.times) shifted.push_back(t - 0.3);
+    s.values = predict_readings(r.setup, truth, shifted).readings;
+    std::mt19937 rng(5);
+    std::normal_distribution<double> noise(0, 5e-4);
+    for (double& v : s.values) v += noise(rng);
+    s.sigma = 5e-4;
+    int solves = 0;
+    double ms = median_ms([&] { solves = fit_law({s}, Law::HerschelBulkley).evaluations; }, quick ? 3 : 7);
+    std::printf("%-9s %-17s %-8s %10.1f %8d\n", r.name, "herschel-bulkley", "HB", ms, solves);
+    ModelChoice c;
+    ms = median_ms([&] { c = fit_auto({s}); }, quick ? 3 : 7);
+    solves = 0;
+    for (const auto& f : c.candidates) solves += f.evaluations;
+    std::printf("%-9s %-17s %-8s %10.1f %8d\n", r.name, "herschel-bulkley", "auto", ms, solves);
+  }
+  return 0;
+}

@@ -1,0 +1,66 @@
+// Monte Carlo coverage of the 95% intervals (design notes, section 4: "the 95% intervals must cover the truth in
+// about 95% of Monte Carlo trials"). Heavy: its own ctest label through the test-case name prefix "montecarlo".
+#include <doctest/doctest.h>
+
+#include <cstdio>
+#include <map>
+#include <string>
+
+#include "src/fit/fit_law.hpp"
+#include "fit_test_support.hpp"
+
+using namespace spreadfit;
+using namespace spreadfit::testing;
+
+namespace {
+struct Coverage {
+  int trials = 0, failed = 0;
+  std::map<std::string, int> covered;
+};
+
+Coverage run(const TestSetup& setup, Law law, const Material& truth, double sigma, int trials) {
+  Coverage c;
+  for (int k = 0; k < trials; ++k) {
+    const FitResult r = fit_law({synthetic(setup, truth, sigma, 1000u + unsigned(k))}, law);
+    if (!r.converged()) {
+      ++c.failed;
+      continue;
+    }
+    ++c.trials;
+    for (const auto& p : r.parameters) {
+      const double t = p.name == "yield_stress"  ? truth.yield_stress
+                       : p.name == "flow_index"  ? truth.flow_index
+                       : p.name == "time_origin" ? 0.3
+                                                 : truth.consistency;
+      c.covered[p.name] += (p.lower <= t && t <= p.upper) ? 1 : 0;
+    }
+  }
+  return c;
+}
+}  // namespace
+
+TEST_CASE("montecarlo: 95% intervals cover the truth in 90-99% of noisy replicates") {
+  struct Case {
+    const char* name;
+    TestSetup setup;
+    Law law;
+    Material truth;
+  };
+  TestSetup plate = plate_setup();
+  const Case cases[] = {
+      {"herschel-bulkley plate", plate, Law::HerschelBulkley, {15, 8.0, 0.45}},
+      {"bingham channel", channel_setup(), Law::Bingham, {30, 2.0, 1.0}},
+  };
+  for (const Case& c : cases) {
+    const Coverage cov = run(c.setup, c.law, c.truth, 5e-4, 100);
+    for (const auto& [name, n] : cov.covered) {
+      const double rate = double(n) / cov.trials;
+      std::printf("coverage %s %s: %.3f over %d fits (%d not converged)\n", c.name, name.c_str(), rate, cov.trials,
+                  cov.failed);
+      INFO(std::string(c.name) << " " << name << ": " << rate);
+      CHECK(rate >= 0.90);
+      CHECK(rate <= 0.99);
+    }
+    CHECK(cov.failed <= 5);
+  }
+}
