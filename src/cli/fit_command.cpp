@@ -83,6 +83,14 @@ std::string file_stem_safe(const std::string& id) {
 }  // namespace
 
 int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::ostream& err) {
+  // Reports, batch history and spec catalogues come in a later release: refuse rather than silently ignore.
+  const std::pair<const std::optional<std::filesystem::path>*, const char*> later[] = {
+      {&options.plot, "--plot"}, {&options.db, "--db"}, {&options.specs, "--specs"}, {&options.csv, "--csv"}};
+  for (const auto& [value, name] : later)
+    if (*value)
+      throw io::InputError("", 0, name,
+                           "not available in this version (planned: SVG reports, batch history, spec catalogues "
+                           "and CSV summaries); use --json or --out-dir");
   std::optional<Law> forced;
   if (!options.model.empty() && options.model != "auto") {
     forced = law_from_name(options.model);

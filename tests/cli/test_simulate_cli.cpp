@@ -22,6 +22,7 @@
 #include <vector>
 
 #include "src/version.hpp"
+#include "tests/cli/cli_test_support.hpp"
 #include "tests/io/io_test_support.hpp"
 
 using spreadfit::io::test::TempDir;
@@ -29,35 +30,6 @@ using spreadfit::io::test::TempDir;
 namespace {
 
 constexpr double kGravity = 9.80665;  // m/s^2, standard gravity (3rd CGPM, 1901), as the test descriptions use
-
-/// What one run of the binary gave.
-struct Run {
-  std::string command;
-  int exit_code = -1;
-  std::string out, err;
-};
-
-std::string read_text(const std::filesystem::path& file) {
-  std::ifstream in(file, std::ios::binary);
-  return {std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
-}
-
-/// A shell word: the text in single quotes (the scratch paths and arguments here hold no single quote).
-std::string quoted(const std::string& text) {
-  REQUIRE(text.find('\'') == std::string::npos);
-  return "'" + text + "'";
-}
-
-/// Runs `spreadfit ARGUMENTS` (already quoted for the shell) with stdout and stderr captured in `dir`.
-Run run_spreadfit(const TempDir& dir, const std::string& arguments) {
-  const auto out = dir.path() / "stdout.txt";
-  const auto err = dir.path() / "stderr.txt";
-  const std::string command =
-      quoted(SPREADFIT_BINARY) + " " + arguments + " >" + quoted(out.string()) + " 2>" + quoted(err.string());
-  const int status = std::system(command.c_str());
-  REQUIRE_MESSAGE(WIFEXITED(status), "the command did not exit normally: " << command);
-  return Run{command, WEXITSTATUS(status), read_text(out), read_text(err)};
-}
 
 /// The simulate CSV split into its header and numeric rows; fails the test on anything malformed.
 struct SimulatedCsv {

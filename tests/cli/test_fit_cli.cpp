@@ -1,0 +1,132 @@
+// `spreadfit fit` end to end: readings simulated by the binary itself from a material, fitted back, with the
+// result JSON, verdicts and exit codes of interface.md checked. Sample ids and rigs are invented.
+#include <doctest/doctest.h>
+
+#include <nlohmann/json.hpp>
+#include <string>
+
+#include "tests/cli/cli_test_support.hpp"
+
+namespace {
+
+const char* plate_rig = R"([rig]
+kind = "plate"
+ring_radius = "3 cm"
+volume = "150 mL"
+)";
+
+/// Writes a plate test whose readings are the binary's own simulation of `sets` plus the given [spec] text.
+std::filesystem::path plate_test(const TempDir& dir, const std::string& id, const std::string& sets,
+                                 const std::string& spec) {
+  const std::string head = "[sample]\nid = \"" + id + "\"\nproduct = \"LT9\"\ndensity = \"1.0 g/mL\"\n\n";
+  const auto bare = dir.write(id + "-rig.toml", head + plate_rig);
+  const Run sim = run_spreadfit(dir, "simulate " + quoted(bare.string()) + " " + sets +
+                                         " --times 2,4,6,8,10,15,20,25,30,40,50,60,75,90,105,120");
+  REQUIRE(sim.exit_code == 0);
+  dir.write(id + ".csv", sim.out);
+  return dir.write(id + ".toml", head + plate_rig + "\n[readings]\nfile = \"" + id +
+                                     ".csv\"\nresolution = \"0.5 mm\"\n\n" + spec);
+}
+
+}  // namespace
+
+TEST_CASE("fit: a simulated Bingham plate test is fitted back and written as JSON") {
+  TempDir dir;
+  const auto test = plate_test(dir, "LT9-0001",
+                               "--model bingham --set yield_stress=20 --set viscosity=5 --set time_origin=0",
+                               "[fit]\nmodel = \"bingham\"\n\n[spec]\nyield_stress = [\"15 Pa\", \"25 Pa\"]\n");
+  const auto json_file = dir.path() / "LT9-0001.json";
+  const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --json " + quoted(json_file.string()));
+  INFO(run.out << run.err);
+  CHECK(run.exit_code == 0);
+  const auto j = nlohmann::json::parse(read_text(json_file));
+  CHECK(j["model"] == "bingham");
+  CHECK(j["sample"]["id"] == "LT9-0001");
+  CHECK(j["parameters"]["yield_stress"]["unit"] == "Pa");
+  CHECK(j["parameters"]["yield_stress"]["value"].get<double>() == doctest::Approx(20).epsilon(0.01));
+  const auto ci = j["parameters"]["yield_stress"]["ci95"];
+  CHECK(ci[0].get<double>() <= ci[1].get<double>());
+  CHECK(j["fit"]["converged"] == true);
+  CHECK(j["fit"]["points"] == 16);
+  CHECK(j["verdict"]["status"] == "pass");
+  CHECK(j["software"]["name"] == "spreadfit");
+  CHECK(run.out.find("PASS") != std::string::npos);
+  CHECK(run.out.find("calibrated rheometer") != std::string::npos);
+}
+
+TEST_CASE("fit: out of spec gives exit code 1 and still writes the result") {
+  TempDir dir;
+  const auto test = plate_test(dir, "LT9-0002",
+                               "--model bingham --set yield_stress=12 --set viscosity=5 --set time_origin=0",
+                               "[fit]\nmodel = \"bingham\"\n\n[spec]\nyield_stress = [\"15 Pa\", \"25 Pa\"]\n");
+  const auto out_dir = dir.path() / "results";
+  std::filesystem::create_directory(out_dir);
+  const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --out-dir " + quoted(out_dir.string()));
+  INFO(run.out << run.err);
+  CHECK(run.exit_code == 1);
+  const auto j = nlohmann::json::parse(read_text(out_dir / "LT9-0002.json"));
+  CHECK(j["verdict"]["status"] == "fail");
+  CHECK(j["verdict"]["checks"][0]["pass"] == false);
+}
+
+TEST_CASE("fit: a final-only plate reading gives the Roussel & Coussot yield stress") {
+  // Roussel & Coussot (2005), J. Rheol. 49: tau_y = 225 rho g V^2 / (128 pi^2 R^5); V = 150 mL, R = 8 cm.
+  TempDir dir;
+  const auto test = dir.write("final.toml", std::string("[sample]\nid = \"LT9-0003\"\ndensity = \"1000 kg/m3\"\n\n") +
+                                                plate_rig + "\n[readings]\nfinal = \"8 cm\"\n");
+  const auto json_file = dir.path() / "final.json";
+  const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --json " + quoted(json_file.string()));
+  INFO(run.out << run.err);
+  REQUIRE(run.exit_code == 0);
+  const auto j = nlohmann::json::parse(read_text(json_file));
+  const double pi = 3.14159265358979;
+  const double expected = 225 * 1000 * 9.80665 * 150e-6 * 150e-6 / (128 * pi * pi * std::pow(0.08, 5));
+  CHECK(j["parameters"]["yield_stress"]["value"].get<double>() == doctest::Approx(expected).epsilon(1e-9));
+}
+
+TEST_CASE("fit: readings that never move end with exit 3 and no numbers") {
+  TempDir dir;
+  dir.write("still.csv", "time [s],radius [cm]\n5,3.0\n10,3.0\n20,3.0\n40,3.0\n60,3.0\n90,3.0\n");
+  const auto test = dir.write("still.toml", std::string("[sample]\nid = \"LT9-0004\"\ndensity = \"1 g/mL\"\n\n") +
+                                                plate_rig +
+                                                "\n[readings]\nfile = \"still.csv\"\nresolution = \"1 mm\"\n\n"
+                                                "[fit]\nmodel = \"newtonian\"\n");
+  const auto json_file = dir.path() / "still.json";
+  const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --json " + quoted(json_file.string()));
+  INFO(run.out << run.err);
+  CHECK(run.exit_code == 3);
+  CHECK(run.out.find("NO RESULT") != std::string::npos);
+  const auto j = nlohmann::json::parse(read_text(json_file));
+  CHECK(j["parameters"].empty());
+  CHECK(j["fit"]["converged"] == false);
+}
+
+TEST_CASE("fit: bad input exits 2 naming the field") {
+  TempDir dir;
+  const auto test = plate_test(dir, "LT9-0005",
+                               "--model newtonian --set viscosity=20 --set time_origin=0", "");
+  SUBCASE("unknown model with a suggestion") {
+    const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --model bingam");
+    CHECK(run.exit_code == 2);
+    CHECK(run.err.find("did you mean 'bingham'") != std::string::npos);
+  }
+  SUBCASE("a missing test file") {
+    const Run run = run_spreadfit(dir, "fit " + quoted((dir.path() / "nope.toml").string()));
+    CHECK(run.exit_code == 2);
+    CHECK(run.err.find("nope.toml") != std::string::npos);
+  }
+  SUBCASE("a bad file does not stop the good one") {
+    const auto json_file = dir.path() / "both.json";
+    const Run run = run_spreadfit(dir, "fit " + quoted((dir.path() / "nope.toml").string()) + " " +
+                                           quoted(test.string()) + " --json " + quoted(json_file.string()));
+    CHECK(run.exit_code == 2);
+    CHECK(run.out.find("LT9-0005") != std::string::npos);
+  }
+  SUBCASE("options of later releases are refused, not ignored") {
+    const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --plot " +
+                                           quoted((dir.path() / "p.svg").string()));
+    CHECK(run.exit_code == 2);
+    CHECK(run.err.find("--plot") != std::string::npos);
+    CHECK_FALSE(std::filesystem::exists(dir.path() / "p.svg"));
+  }
+}
