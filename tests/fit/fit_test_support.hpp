@@ -25,6 +25,14 @@ inline TestSetup plate_setup() {
   return s;
 }
 
+inline TestSetup squeeze_setup() {
+  TestSetup s;
+  s.rig = SqueezeRig{2e-6, 4.903325, 8e-3};  // 2 mL under 500 g, from an 8 mm gap
+  s.density = 1000;
+  s.reading = Reading::Diameter;
+  return s;
+}
+
 /// Readings every `step` seconds up to `end`, released at t0, with noise of standard deviation sigma.
 inline FitSeries synthetic(const TestSetup& setup, const Material& m, double sigma, unsigned seed, double t0 = 0.3,
                            double step = 2.0, double end = 60.0) {

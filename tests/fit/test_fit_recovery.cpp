@@ -22,6 +22,8 @@ TEST_CASE("noise-free readings give back the parameters within 1%") {
       {"channel power law", channel_setup(), Law::PowerLaw, {0, 10.0, 0.5}},
       {"plate herschel-bulkley", plate_setup(), Law::HerschelBulkley, {15, 8.0, 0.45}},
       {"plate power law", plate_setup(), Law::PowerLaw, {0, 10.0, 0.4}},
+      {"squeeze newtonian", squeeze_setup(), Law::Newtonian, {0, 20.0, 1.0}},
+      {"squeeze herschel-bulkley", squeeze_setup(), Law::HerschelBulkley, {60, 30.0, 0.5}},
   };
   for (const Case& c : cases) {
     const FitResult r = fit_law({synthetic(c.setup, c.truth, 0.0, 1)}, c.law);
@@ -141,4 +143,22 @@ TEST_CASE("a single arrested reading gives the yield stress of the plastic limit
   CHECK(r.material.yield_stress == doctest::Approx(30).epsilon(0.02));
   CHECK(estimate(r, "yield_stress").lower < 30);
   CHECK(estimate(r, "yield_stress").upper > 30);
+}
+
+TEST_CASE("a plate test and a squeeze test of one batch fit jointly") {
+  // Different rigs load the material differently (gravity spreading vs a dead load), which separates the
+  // Herschel-Bulkley parameters better than either test alone.
+  const Material truth{40, 15.0, 0.5};
+  const FitSeries plate = synthetic(plate_setup(), truth, 5e-4, 51, 0.3, 4.0, 120.0);
+  const FitSeries squeeze = synthetic(squeeze_setup(), truth, 2e-4, 52, 0.2, 10.0, 300.0);
+  const FitResult joint = fit_law({plate, squeeze}, Law::HerschelBulkley);
+  INFO(fit_status_name(joint.status) << ": " << joint.reason);
+  REQUIRE(joint.converged());
+  for (const auto& p : joint.parameters) {
+    if (p.name == "time_origin") continue;
+    const double t = p.name == "yield_stress" ? 40.0 : p.name == "flow_index" ? 0.5 : 15.0;
+    INFO(p.name << " = " << p.value << " [" << p.lower << ", " << p.upper << "]");
+    CHECK(p.lower <= t);
+    CHECK(p.upper >= t);
+  }
 }
