@@ -57,14 +57,14 @@ std::string plain_name(const std::string& name) {
   return name;
 }
 
-// Stage 1: DIRECT-L on the surrogate over the box of the material parameters; release times are held at the
-// upper end of their range (just before the first reading), the least surprising guess, and left to the polish:
+// Stage 1: DIRECT-L on the surrogate over the box of the material parameters; release times are held at zero
+// (the clock is started at the release; clamped into their range), the least surprising guess, and left to the polish:
 // DIRECT's cost grows quickly with the dimension and the release times are nuisance parameters.
 Eigen::VectorXd global_start(const FitProblem& problem, int evaluations) {
   const int p = problem.size();
   const int pm = problem.material_parameters();
   Eigen::VectorXd best = 0.5 * (problem.lower() + problem.upper());
-  for (int i = pm; i < p; ++i) best[i] = problem.upper()[i];
+  for (int i = pm; i < p; ++i) best[i] = std::clamp(0.0, problem.lower()[i], problem.upper()[i]);
   if (evaluations <= 0) return best;
   double best_cost = std::numeric_limits<double>::infinity();
   Eigen::VectorXd r, theta = best;
@@ -126,7 +126,9 @@ class Profiler {
     const double room = dir > 0 ? problem_.upper()[j] - best_.x[j] : best_.x[j] - problem_.lower()[j];
     if (room <= 1e-9) return 0.0;
     rest_.reset();
-    double t1 = std::min(std::isfinite(guess) && guess > 0 ? guess : 1.0, room);
+    // Start from the quadratic guess, but no further than a factor e: beyond that the refit starts far from its
+    // optimum and the guess is meaningless anyway.
+    double t1 = std::min({std::isfinite(guess) && guess > 0 ? guess : 1.0, 1.0, room});
     double r1 = signed_root(j, dir, t1);
     const double goal = std::sqrt(target_);
     if (std::abs(r1 / goal - 1.0) < 0.075) return t1;  // delta cost within ~15% of the target
@@ -218,23 +220,19 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
   lm.fd_step = fd_steps(problem);
   // Coarse-to-fine: most iterations run on half the cells (about half the cost, ~0.3% model error), then the
   // default resolution polishes the last digits and supplies the Jacobian for the intervals.
-  int coarse_evaluations = 0;
+  std::optional<FitProblem> coarse;
+  LmResult coarse_best;
   if (options.forward.cells >= 32) {
     FitOptions coarse_options = options;
     coarse_options.forward.cells = options.forward.cells / 2;
-    const FitProblem coarse(series, law, coarse_options);
-    auto fc = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return coarse.residuals(x, r); };
-    const LmResult c = levenberg_marquardt(fc, start, problem.lower(), problem.upper(), lm);
-    if (std::getenv("SPREADFIT_TRACE"))
-      fmt::print(stderr, "{} coarse: {} iterations, cost {:.6g}, {}\n", law_name(law), c.iterations, c.cost, c.message);
-    coarse_evaluations = coarse.evaluations();
-    if (c.r.size() == n) start = c.x;
+    coarse.emplace(series, law, coarse_options);
+    auto fc = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return coarse->residuals(x, r); };
+    coarse_best = levenberg_marquardt(fc, start, problem.lower(), problem.upper(), lm);
+    if (coarse_best.r.size() == n) start = coarse_best.x;
     lm.max_iterations = std::max(8, options.max_iterations / 3);
     lm.initial_damping = 1e-6;
   }
   const LmResult best = levenberg_marquardt(f, start, problem.lower(), problem.upper(), lm);
-  if (std::getenv("SPREADFIT_TRACE"))
-    fmt::print(stderr, "{} fine: {} iterations, cost {:.6g}, {}\n", law_name(law), best.iterations, best.cost, best.message);
   out.iterations = best.iterations;
   if (best.r.size() != n || best.jacobian.rows() != n) {
     out.status = FitStatus::ForwardFailure;
@@ -289,7 +287,10 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
       }
 
   int identifiable = 0;
-  Profiler profiler(problem, best, s2, q);
+  // Profiles run on the coarse problem around its own optimum (half the cost of a fine solve; the interval's
+  // width, not its centre, is taken from it).
+  const bool coarse_ok = coarse && coarse_best.r.size() == n;
+  Profiler profiler(coarse_ok ? *coarse : problem, coarse_ok ? coarse_best : best, s2, q);
   for (int i = 0; i < p; ++i) {
     ParameterEstimate e;
     e.name = problem.names()[i];
@@ -306,7 +307,7 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
       // The yield stress and the consistency lie in a curved (banana-shaped) valley, where the quadratic interval
       // of the yield stress is too narrow on one side (Monte Carlo coverage 0.83 instead of 0.95 for a plate
       // test of a Herschel-Bulkley material): use its profile likelihood.
-      if (e.name == "yield_stress" && !on_upper) {
+      if (options.profile_intervals && e.name == "yield_stress" && !on_upper) {
         if (!on_lower) down = profiler.limit(i, -1, down);
         up = profiler.limit(i, +1, up);
       }
@@ -354,7 +355,7 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
             "stops, a longer test, or a second fill volume or rig would separate them",
             plain_name(problem.names()[a]), plain_name(problem.names()[b]), out.correlation(a, b)));
 
-  out.evaluations = problem.evaluations() + coarse_evaluations;
+  out.evaluations = problem.evaluations() + (coarse ? coarse->evaluations() : 0);
   if (!best.converged) {
     out.status = FitStatus::NotConverged;
     out.reason = best.message;
@@ -370,10 +371,13 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
 ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& options) {
   ModelChoice choice;
   // Nested laws start from their simpler relatives: Newtonian -> power law, Bingham -> Herschel-Bulkley.
-  const FitResult newtonian = fit_law(series, Law::Newtonian, options);
-  const FitResult power = fit_law(series, Law::PowerLaw, options, {newtonian});
-  const FitResult bingham = fit_law(series, Law::Bingham, options, {newtonian});
-  const FitResult hb = fit_law(series, Law::HerschelBulkley, options, {power, bingham});
+  // Profile intervals cost refits: candidates get quadratic intervals, the chosen law is refined below.
+  FitOptions quick = options;
+  quick.profile_intervals = false;
+  const FitResult newtonian = fit_law(series, Law::Newtonian, quick);
+  const FitResult power = fit_law(series, Law::PowerLaw, quick, {newtonian});
+  const FitResult bingham = fit_law(series, Law::Bingham, quick, {newtonian});
+  const FitResult hb = fit_law(series, Law::HerschelBulkley, quick, {power, bingham});
   choice.candidates = {newtonian, power, bingham, hb};
   double best = std::numeric_limits<double>::infinity();
   for (const FitResult& r : choice.candidates)
@@ -394,7 +398,16 @@ ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& opt
     choice.explanation = "no law could be fitted to these readings";
     return choice;
   }
-  const FitResult& c = choice.candidates[std::size_t(choice.chosen)];
+  FitResult& chosen = choice.candidates[std::size_t(choice.chosen)];
+  if (options.profile_intervals && (chosen.law == Law::Bingham || chosen.law == Law::HerschelBulkley)) {
+    // Restart from the optimum (a few solves to confirm it) and compute the profile intervals.
+    FitResult refined = fit_law(series, chosen.law, options, {chosen});
+    if (refined.converged()) {
+      refined.evaluations += chosen.evaluations;
+      chosen = std::move(refined);
+    }
+  }
+  const FitResult& c = chosen;
   if (c.aicc > best + 1e-9)
     choice.explanation = fmt::format("{} chosen: within {:.1f} of the best AICc with fewer parameters (the evidence "
                                      "for a more complex law is weak)",

@@ -90,7 +90,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
         if (c < out.cost) {
           const double decrease = (out.cost - c) / std::max(out.cost, 1e-300);
           // A decrease that is a negligible fraction of the residual variance is a stall (a flat valley: the data
-          // do not pin the parameters down); two in a row end the search with the point reached.
+          // do not pin the parameters down); three in a row end the search with the point reached.
           const double s2 = trial_r.squaredNorm() / double(std::max<Eigen::Index>(1, trial_r.size() - out.x.size()));
           stalls = (out.cost - c) < o.stall_tolerance * s2 ? stalls + 1 : 0;
           out.x = x_new;
@@ -98,9 +98,9 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
           out.cost = c;
           lambda = std::max(lambda / 5.0, 1e-12);
           accepted = true;
-          if (decrease < o.cost_tolerance || stalls >= 2) {
+          if (decrease < o.cost_tolerance || stalls >= 3) {
             out.converged = true;
-            out.message = stalls >= 2 ? "cost stationary within the residual variance (stall_tolerance)"
+            out.message = stalls >= 3 ? "cost stationary within the residual variance (stall_tolerance)"
                                       : "relative cost decrease below cost_tolerance";
             // Keep the Jacobian at the final point for the covariance.
             finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);

@@ -14,7 +14,7 @@ struct LmOptions {
   double cost_tolerance = 1e-6;  ///< stop when the relative cost decrease of an accepted step is below this
   double step_tolerance = 1e-6;  ///< stop when the largest parameter change is below this (absolute)
   double decrease_tolerance = 1e-2;  ///< stop when the Gauss-Newton predicted decrease < this x residual variance
-  double stall_tolerance = 0.0;    ///< two accepted steps in a row lowering the cost by less than this x
+  double stall_tolerance = 0.005;   ///< two accepted steps in a row lowering the cost by less than this x
                                     ///< residual variance end the search (a flat valley)
   double initial_damping = 1e-3; ///< first lambda relative to the largest diagonal of J^T J (small from a good start)
   Eigen::VectorXd fd_step;       ///< finite-difference step per parameter (required)
