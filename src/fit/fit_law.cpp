@@ -101,6 +101,42 @@ Eigen::VectorXd global_start(const FitProblem& problem, int evaluations) {
     // forced_stop, or a budget-exhausted signal in some builds: the best point seen is kept either way.
   }
   if (error) std::rethrow_exception(error);
+  if (p == pm) return best;
+  // Local stage, still on the surrogate: NLopt LN_BOBYQA (Powell 2009; derivative-free, bounded, quadratic models)
+  // frees the release times together with the material parameters from DIRECT's point. Cheap, and it hands the
+  // full-model polish a start whose release times are already consistent with the material.
+  std::function<double(const double*)> all = [&](const double* y) {
+    try {
+      theta = Eigen::Map<const Eigen::VectorXd>(y, p);
+      problem.surrogate_residuals(theta, r);
+      const double c = r.allFinite() ? 0.5 * r.squaredNorm() : 1e300;
+      if (c < best_cost) {
+        best_cost = c;
+        best = theta;
+      }
+      return c;
+    } catch (...) {
+      error = std::current_exception();
+      throw nlopt::forced_stop();
+    }
+  };
+  nlopt::opt local(nlopt::LN_BOBYQA, unsigned(p));
+  local.set_lower_bounds(std::vector<double>(problem.lower().data(), problem.lower().data() + p));
+  local.set_upper_bounds(std::vector<double>(problem.upper().data(), problem.upper().data() + p));
+  local.set_maxeval(evaluations / 3);
+  local.set_xtol_abs(1e-4);
+  local.set_min_objective(
+      [](unsigned, const double* y, double*, void* data) -> double {
+        return (*static_cast<std::function<double(const double*)>*>(data))(y);
+      },
+      &all);
+  std::vector<double> y(best.data(), best.data() + p);
+  try {
+    local.optimize(y, value);
+  } catch (const std::exception&) {
+    // as above: the best point seen is kept
+  }
+  if (error) std::rethrow_exception(error);
   return best;
 }
 
