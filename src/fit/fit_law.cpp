@@ -314,6 +314,8 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
     }
     cov += s2 * inv_ev[i] * eig.eigenvectors().col(i) * eig.eigenvectors().col(i).transpose();
   }
+  out.estimate = best.x;
+  out.covariance = cov;
   out.correlation = Eigen::MatrixXd::Identity(p, p);
   for (int a = 0; a < p; ++a)
     for (int b = 0; b < p; ++b)

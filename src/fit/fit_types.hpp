@@ -56,6 +56,9 @@ struct FitResult {
   std::vector<double> time_origins;          ///< per series [s] (0 when not fitted)
   std::vector<ParameterEstimate> parameters; ///< material parameters then time origins
   Eigen::MatrixXd correlation;               ///< of the fitted (log-space) parameters, same order
+  Eigen::VectorXd estimate;                  ///< the fitted parameter vector (log of material parameters, then
+                                             ///< release times [s]), in the order of `names`
+  Eigen::MatrixXd covariance;                ///< of `estimate` (quadratic approximation; infinite where undetermined)
   std::vector<std::string> names;            ///< fitted parameter names in the correlation's order
   double rmse = 0;                           ///< root mean square of the unweighted residuals [m]
   double sigma = 0;                          ///< reading standard uncertainty used for the intervals [m]

@@ -1,0 +1,90 @@
+#include "src/fit/prediction_band.hpp"
+
+#include <Eigen/Cholesky>
+#include <algorithm>
+#include <cmath>
+#include <random>
+
+namespace spreadfit {
+
+namespace {
+
+// Material and release time of one parameter vector (names give the layout).
+void unpack(const FitResult& fit, const Eigen::VectorXd& x, std::size_t series_index, Material& m, double& t0) {
+  m = fit.material;
+  t0 = 0.0;
+  std::size_t origin = 0;
+  for (std::size_t i = 0; i < fit.names.size(); ++i) {
+    const std::string& name = fit.names[i];
+    const double v = x[Eigen::Index(i)];
+    if (name == "yield_stress") m.yield_stress = std::exp(v);
+    else if (name == "viscosity" || name == "consistency") m.consistency = std::exp(v);
+    else if (name == "flow_index") m.flow_index = std::exp(v);
+    else if (name == "time_origin") {
+      if (origin == series_index || (origin == 0 && t0 == 0.0)) t0 = v;
+      ++origin;
+    }
+  }
+}
+
+bool run(const TestSetup& setup, const Material& m, double t0, const std::vector<double>& times,
+         std::vector<double>& out) {
+  std::vector<double> shifted(times.size());
+  for (std::size_t i = 0; i < times.size(); ++i) shifted[i] = std::max(times[i] - t0, 0.0);
+  try {
+    validate(m);
+  } catch (const std::invalid_argument&) {
+    return false;
+  }
+  const ForwardResult r = predict_readings(setup, m, shifted);
+  if (!r.ok()) return false;
+  out = r.readings;
+  return true;
+}
+
+}  // namespace
+
+PredictionBand prediction_band(const FitResult& fit, const TestSetup& setup, const std::vector<double>& times,
+                               std::size_t series_index, int samples, unsigned seed) {
+  PredictionBand band;
+  band.times = times;
+  Material m;
+  double t0 = 0;
+  if (fit.estimate.size() == 0) {  // a closed-form result (final reading): no curve parameters to draw
+    m = fit.material;
+  } else {
+    unpack(fit, fit.estimate, series_index, m, t0);
+  }
+  if (!run(setup, m, t0, times, band.reading)) {
+    band.ok = false;
+    return band;
+  }
+  band.lower = band.upper = band.reading;
+  const Eigen::Index p = fit.estimate.size();
+  if (samples <= 0 || p == 0 || !fit.covariance.allFinite()) return band;
+  const Eigen::LLT<Eigen::MatrixXd> llt(fit.covariance + 1e-12 * Eigen::MatrixXd::Identity(p, p));
+  if (llt.info() != Eigen::Success) return band;
+  const Eigen::MatrixXd L = llt.matrixL();
+  std::mt19937 rng(seed);
+  std::normal_distribution<double> normal(0.0, 1.0);
+  std::vector<std::vector<double>> draws;
+  std::vector<double> r;
+  for (int k = 0; k < samples; ++k) {
+    Eigen::VectorXd z(p);
+    for (Eigen::Index i = 0; i < p; ++i) z[i] = normal(rng);
+    unpack(fit, fit.estimate + L * z, series_index, m, t0);
+    if (run(setup, m, t0, times, r)) draws.push_back(r);
+  }
+  band.samples = int(draws.size());
+  if (draws.size() < 10) return band;
+  std::vector<double> column(draws.size());
+  for (std::size_t i = 0; i < times.size(); ++i) {
+    for (std::size_t k = 0; k < draws.size(); ++k) column[k] = draws[k][i];
+    std::sort(column.begin(), column.end());
+    band.lower[i] = column[std::size_t(0.025 * double(column.size() - 1))];
+    band.upper[i] = column[std::size_t(std::ceil(0.975 * double(column.size() - 1)))];
+  }
+  return band;
+}
+
+}  // namespace spreadfit
