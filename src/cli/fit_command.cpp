@@ -1,6 +1,7 @@
 #include "src/cli/fit_command.hpp"
 
 #include <fmt/format.h>
+#include <algorithm>
 #include <cctype>
 #include <map>
 
@@ -12,6 +13,7 @@
 #include "src/io/test_description.hpp"
 #include "src/qc/verdict.hpp"
 #include "src/report/result_json.hpp"
+#include "src/report/summary_csv.hpp"
 #include "src/report/summary_table.hpp"
 
 namespace spreadfit::cli {
@@ -35,7 +37,8 @@ std::vector<FitSeries> series_of(const std::vector<io::TestDescription>& tests) 
 }
 
 // Fits one material: all tests of one sample id.
-FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optional<Law>& forced) {
+FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optional<Law>& forced,
+                        const std::vector<io::SpecLimit>& catalogue_limits) {
   FitOutcome o;
   o.tests = std::move(tests);
   const io::TestDescription& first = o.tests.front();
@@ -67,8 +70,14 @@ FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optio
       o.choice_explanation = choice.explanation;
     }
   }
+  // Inline [spec] limits override the catalogue's, parameter by parameter.
   std::vector<io::SpecLimit> limits;
   for (const auto& t : o.tests) limits.insert(limits.end(), t.spec.begin(), t.spec.end());
+  for (const io::SpecLimit& c : catalogue_limits) {
+    const bool overridden = std::any_of(limits.begin(), limits.end(),
+                                        [&](const io::SpecLimit& l) { return l.parameter == c.parameter; });
+    if (!overridden) limits.push_back(c);
+  }
   o.verdict = judge(o.result() ? *o.result() : (o.candidates.empty() ? FitResult{} : o.candidates.front()), limits);
   return o;
 }
@@ -85,12 +94,12 @@ std::string file_stem_safe(const std::string& id) {
 int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::ostream& err) {
   // Reports, batch history and spec catalogues come in a later release: refuse rather than silently ignore.
   const std::pair<const std::optional<std::filesystem::path>*, const char*> later[] = {
-      {&options.plot, "--plot"}, {&options.db, "--db"}, {&options.specs, "--specs"}, {&options.csv, "--csv"}};
+      {&options.plot, "--plot"}, {&options.db, "--db"}};
   for (const auto& [value, name] : later)
     if (*value)
       throw io::InputError("", 0, name,
-                           "not available in this version (planned: SVG reports, batch history, spec catalogues "
-                           "and CSV summaries); use --json or --out-dir");
+                           "not available in this version (planned: SVG reports and batch history); use --json or "
+                           "--out-dir");
   std::optional<Law> forced;
   if (!options.model.empty() && options.model != "auto") {
     forced = law_from_name(options.model);
@@ -115,14 +124,33 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
       bad_input = true;
     }
   }
+  // Spec catalogues: --specs, else a specs.toml beside each test file (read once per folder).
+  std::map<std::filesystem::path, std::map<std::string, std::vector<io::SpecLimit>>> catalogues;
+  auto catalogue_for = [&](const io::TestDescription& t) -> const std::map<std::string, std::vector<io::SpecLimit>>* {
+    std::filesystem::path file = options.specs ? *options.specs : t.path.parent_path() / "specs.toml";
+    if (!options.specs && !std::filesystem::exists(file)) return nullptr;
+    auto it = catalogues.find(file);
+    if (it == catalogues.end()) it = catalogues.emplace(file, io::load_spec_catalogue(file)).first;
+    return &it->second;
+  };
   bool out_of_spec = false, failed = false;
   nlohmann::json all = nlohmann::json::array();
+  std::vector<FitOutcome> outcomes;
   for (const std::string& id : order) {
     std::vector<io::TestDescription> tests = std::move(by_sample[id]);
     const std::string where = tests.front().path.string();
     FitOutcome o;
     try {
-      o = fit_material(std::move(tests), forced);
+      std::vector<io::SpecLimit> from_catalogue;
+      const std::string& product = tests.front().product;
+      if (const auto* catalogue = catalogue_for(tests.front())) {
+        const auto found = catalogue->find(product);
+        if (found != catalogue->end()) from_catalogue = found->second;
+        else if (options.specs)
+          err << fmt::format("spreadfit: note: {}: no limits for product '{}' in {}\n", where,
+                             product.empty() ? std::string("(none given)") : product, options.specs->string());
+      }
+      o = fit_material(std::move(tests), forced, from_catalogue);
     } catch (const io::InputError& e) {
       err << "spreadfit: " << e.what() << "\n";
       bad_input = true;
@@ -137,7 +165,9 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
     const nlohmann::json j = result_json(o);
     all.push_back(j);
     if (options.out_dir) io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".json"), j.dump(2) + "\n");
+    outcomes.push_back(std::move(o));
   }
+  if (options.csv && !outcomes.empty()) io::write_file_atomically(*options.csv, summary_csv(outcomes));
   if (options.json && !all.empty())
     io::write_file_atomically(*options.json, (all.size() == 1 ? all.front() : all).dump(2) + "\n");
   if (bad_input) return to_int(ExitCode::BadInput);

@@ -112,6 +112,12 @@ class DescriptionReader {
   void read_readings(const toml::table& root, TestDescription& out) const;
   void read_fit(const toml::table& root, TestDescription& out) const;
   void read_spec(const toml::table& root, TestDescription& out) const;
+  void read_spec_table(const toml::table& spec, const std::string& section, std::vector<SpecLimit>& limits) const;
+
+ public:
+  std::map<std::string, std::vector<SpecLimit>> read_catalogue() const;
+
+ private:
 
   std::filesystem::path file_;
   std::string name_;
@@ -441,11 +447,39 @@ void DescriptionReader::read_fit(const toml::table& root, TestDescription& out) 
 void DescriptionReader::read_spec(const toml::table& root, TestDescription& out) const {
   const toml::table* spec = table(root, "spec");
   if (!spec) return;
-  check_keys(*spec, "spec", kSpecKeys);
-  for (const toml::key* key : keys_in_file_order(*spec)) {
-    const toml::node& node = *spec->get(key->str());
+  read_spec_table(*spec, "spec", out.spec);
+}
+
+std::map<std::string, std::vector<SpecLimit>> DescriptionReader::read_catalogue() const {
+  std::error_code ec;
+  if (!std::filesystem::is_regular_file(file_, ec)) throw InputError(name_, 0, "", "spec catalogue not found");
+  toml::table root;
+  try {
+    root = toml::parse_file(name_);
+  } catch (const toml::parse_error& e) {
+    throw InputError(name_, static_cast<int>(e.source().begin.line), "",
+                     "TOML syntax: " + std::string(e.description()), static_cast<int>(e.source().begin.column));
+  }
+  std::map<std::string, std::vector<SpecLimit>> catalogue;
+  for (const toml::key* key : keys_in_file_order(root)) {
+    const std::string product(key->str());
+    const toml::node& node = *root.get(key->str());
+    if (!node.is_table())
+      fail(line_of(*key), product,
+           "expected a table [" + product + "] of limits for product " + product + ", got " +
+               std::string(type_name(node)));
+    read_spec_table(*node.as_table(), product, catalogue[product]);
+  }
+  return catalogue;
+}
+
+void DescriptionReader::read_spec_table(const toml::table& spec, const std::string& section,
+                                        std::vector<SpecLimit>& limits) const {
+  check_keys(spec, section, kSpecKeys);
+  for (const toml::key* key : keys_in_file_order(spec)) {
+    const toml::node& node = *spec.get(key->str());
     const std::string parameter(key->str());
-    const std::string field = "spec." + parameter;
+    const std::string field = section + "." + parameter;
     const Dimension d = parameter == "viscosity"      ? Dimension::Viscosity
                         : parameter == "yield_stress" ? Dimension::Stress
                         : parameter == "consistency"  ? Dimension::Consistency
@@ -471,7 +505,7 @@ void DescriptionReader::read_spec(const toml::table& root, TestDescription& out)
       fail(line_of(node), field,
            "low bound '" + as_written(low_node) + "' is above high bound '" + as_written(high_node) +
                "' (expected [low, high] with low <= high)");
-    out.spec.push_back(std::move(limit));
+    limits.push_back(std::move(limit));
   }
 }
 
@@ -516,6 +550,10 @@ TestDescription DescriptionReader::read() {
 }
 
 }  // namespace
+
+std::map<std::string, std::vector<SpecLimit>> load_spec_catalogue(const std::filesystem::path& file) {
+  return DescriptionReader(file).read_catalogue();
+}
 
 std::string_view rig_kind_name(const Rig& rig) {
   if (std::holds_alternative<ChannelRig>(rig)) return "channel";

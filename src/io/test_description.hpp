@@ -35,6 +35,7 @@
 #pragma once
 
 #include <filesystem>
+#include <map>
 #include <optional>
 #include <string>
 #include <vector>
@@ -73,6 +74,10 @@ struct TestDescription {
 
 /// Reads, converts and checks a test description and the readings files it names. Throws InputError.
 TestDescription load_test_description(const std::filesystem::path& file);
+
+/// A product spec catalogue (e.g. specs.toml): one table per product code, each holding limits written as in a
+/// test's [spec], e.g. [TS12] yield_stress = ["20 Pa", "35 Pa"]. Throws InputError with file, line and field.
+std::map<std::string, std::vector<SpecLimit>> load_spec_catalogue(const std::filesystem::path& file);
 
 /// Kind name as in [rig] kind: channel | plate | squeeze | slump.
 std::string_view rig_kind_name(const Rig& rig);

@@ -130,3 +130,36 @@ TEST_CASE("fit: bad input exits 2 naming the field") {
     CHECK_FALSE(std::filesystem::exists(dir.path() / "p.svg"));
   }
 }
+
+TEST_CASE("fit: product limits come from a spec catalogue beside the test, inline [spec] overrides them") {
+  TempDir dir;
+  const auto test = plate_test(dir, "LT9-0006",
+                               "--model bingham --set yield_stress=20 --set viscosity=5 --set time_origin=0",
+                               "[fit]\nmodel = \"bingham\"\n");
+  SUBCASE("specs.toml beside the test") {
+    dir.write("specs.toml", "[LT9]\nyield_stress = [\"25 Pa\", \"40 Pa\"]\n");
+    const auto json_file = dir.path() / "r.json";
+    const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --json " + quoted(json_file.string()));
+    INFO(run.out << run.err);
+    CHECK(run.exit_code == 1);
+    CHECK(nlohmann::json::parse(read_text(json_file))["verdict"]["status"] == "fail");
+  }
+  SUBCASE("--specs names the catalogue; a typo in it is bad input") {
+    const auto catalogue = dir.write("cat/limits.toml", "[LT9]\nyield_stres = [\"15 Pa\", \"25 Pa\"]\n");
+    const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --specs " + quoted(catalogue.string()));
+    CHECK(run.exit_code == 2);
+    CHECK(run.err.find("did you mean 'yield_stress'") != std::string::npos);
+    CHECK(run.err.find("limits.toml:2") != std::string::npos);
+  }
+  SUBCASE("a CSV summary for spreadsheets") {
+    dir.write("specs.toml", "[LT9]\nyield_stress = [\"15 Pa\", \"25 Pa\"]\n");
+    const auto csv = dir.path() / "summary.csv";
+    const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --csv " + quoted(csv.string()));
+    INFO(run.out << run.err);
+    CHECK(run.exit_code == 0);
+    const std::string text = read_text(csv);
+    CHECK(text.rfind("sample,product,rig,model,status,yield_stress [Pa]", 0) == 0);
+    CHECK(text.find("\nLT9-0006,LT9,plate,bingham,ok,") != std::string::npos);
+    CHECK(text.find(",pass,") != std::string::npos);
+  }
+}

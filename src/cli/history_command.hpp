@@ -1,0 +1,43 @@
+// `spreadfit history DB [--product CODE] [--chart FILE.svg] [--csv]`: the batch history (src/history/history_db.hpp)
+// as a table per product, or as CSV, with the signals of an individuals control chart of each parameter.
+//
+// Table (stdout), per product (sorted by code; results without a product last, as "(none)"), results in recorded
+// order: sample, recorded (UTC), rig, model, one column per parameter "value [low, high]" (the 95% interval; "-"
+// where the law has no such parameter or the fit failed), verdict. Then, for each parameter with at least two
+// values, the chart's centre and limits (control_chart.hpp) and, in words, every point beyond the limits and
+// every run of `run_length` results on one side of the centre line.
+//
+// --csv: CSV on stdout instead of the table, one row per result, all products together in recorded order:
+//   sample,product,recorded_at,rig,model,verdict,P [unit],P low [unit],P high [unit],...,software_version,input_hash
+// with the parameters yield_stress, viscosity, consistency, flow_index (then any others, as first recorded).
+// Numbers are written in the shortest form that reads back to the same double; empty cells where there is none.
+//
+// --chart FILE.svg: an individuals control chart of one product (--product, or the only product in the history)
+// for its yield stress when at least two results have one, otherwise for the first parameter that has two.
+//
+// Exit codes: 0 when the history was read (also when it holds nothing for the product: that is said on stdout,
+// or on stderr with --csv); the verdicts recorded in the history do not change the exit code. Throws
+// io::InputError (main: exit 2) when DB is missing or is not a history database, and when --chart cannot be
+// drawn (several products and no --product, or fewer than two values); then no chart file is written.
+#pragma once
+
+#include <filesystem>
+#include <optional>
+#include <ostream>
+#include <string>
+
+#include "src/history/history_db.hpp"
+
+namespace spreadfit::cli {
+
+int run_history_command(const std::filesystem::path& db, const std::string& product,
+                        const std::optional<std::filesystem::path>& chart, bool csv, std::ostream& out,
+                        std::ostream& err);
+
+/// The line `spreadfit fit --db` prints after recording a result, e.g.
+///   history: added TS12-0412 to runs/history.db
+///   history: replaced TS12-0412 in runs/history.db (same inputs as an earlier run)
+std::string history_record_note(const std::filesystem::path& db, const history::StoredResult& result,
+                                 history::WriteOutcome outcome);
+
+}  // namespace spreadfit::cli

@@ -1,0 +1,53 @@
+#include "src/report/summary_csv.hpp"
+
+#include <fmt/format.h>
+
+namespace spreadfit {
+
+namespace {
+// RFC 4180 quoting when a cell holds a comma, quote or line break.
+std::string cell(const std::string& text) {
+  if (text.find_first_of(",\"\n\r") == std::string::npos) return text;
+  std::string q = "\"";
+  for (char c : text) q += c == '"' ? std::string("\"\"") : std::string(1, c);
+  return q + "\"";
+}
+
+struct Column {
+  const char* name;
+  const char* unit;
+};
+constexpr Column parameter_columns[] = {
+    {"yield_stress", "Pa"}, {"viscosity", "Pa.s"}, {"consistency", "Pa.s^n"}, {"flow_index", "-"}};
+}  // namespace
+
+std::string summary_csv(const std::vector<FitOutcome>& outcomes) {
+  std::string s = "sample,product,rig,model,status";
+  for (const Column& c : parameter_columns)
+    s += fmt::format(",{0} [{1}],{0} low [{1}],{0} high [{1}]", c.name, c.unit);
+  s += ",rmse [mm],points,verdict,warnings\n";
+  for (const FitOutcome& o : outcomes) {
+    const auto& t = o.tests.front();
+    std::string rigs;
+    for (const auto& d : o.tests) rigs += (rigs.empty() ? "" : "+") + std::string(io::rig_kind_name(d.setup.rig));
+    const FitResult* r = o.result();
+    s += cell(t.sample_id) + "," + cell(t.product) + "," + rigs + "," +
+         (r ? std::string(law_name(r->law)) : std::string()) + "," +
+         (r ? std::string("ok") : std::string(o.candidates.empty() ? "failed" : fit_status_name(o.candidates.front().status)));
+    for (const Column& c : parameter_columns) {
+      const ParameterEstimate* found = nullptr;
+      if (r)
+        for (const auto& p : r->parameters)
+          if (p.name == c.name) found = &p;
+      s += found ? fmt::format(",{},{},{}", found->value, found->lower, found->upper) : std::string(",,,");
+    }
+    std::string warnings;
+    if (r)
+      for (const auto& w : r->warnings) warnings += (warnings.empty() ? "" : "; ") + w;
+    s += r ? fmt::format(",{},{}", r->rmse * 1e3, r->points) : std::string(",,");
+    s += "," + std::string(verdict_status_name(o.verdict.status)) + "," + cell(warnings) + "\n";
+  }
+  return s;
+}
+
+}  // namespace spreadfit
