@@ -10,6 +10,7 @@
 #include <system_error>
 #include <toml++/toml.h>
 
+#include "models/forward.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/units.hpp"
 
@@ -111,6 +112,7 @@ class DescriptionReader {
   Rig read_rig(const toml::table& root) const;
   void read_readings(const toml::table& root, TestDescription& out) const;
   void read_fit(const toml::table& root, TestDescription& out) const;
+  void check_possible(const TestDescription& out) const;
   void read_spec(const toml::table& root, TestDescription& out) const;
   void read_spec_table(const toml::table& spec, const std::string& section, std::vector<SpecLimit>& limits) const;
 
@@ -444,6 +446,43 @@ void DescriptionReader::read_fit(const toml::table& root, TestDescription& out) 
   }
 }
 
+// A reading the sample's volume cannot give: spread so far that the layer would average less than 0.05 mm, a gap
+// wider than the sample is tall, a slump larger than the cylinder. Catches unit slips (a reading in mm labelled
+// cm) before any fitting; the thickness bound is common practice, no source.
+void DescriptionReader::check_possible(const TestDescription& out) const {
+  constexpr double thinnest = 5e-5;  // m
+  double largest = 0.0;              // largest reading the rig allows, in the reading's own terms
+  std::string why;
+  const Reading kind = out.series.empty() ? out.setup.reading : out.series.front().kind;
+  if (const auto* c = std::get_if<ChannelRig>(&out.setup.rig)) {
+    largest = c->volume / (c->width * thinnest) - c->reservoir_length;
+    why = "the layer would be thinner than 0.05 mm";
+  } else if (const auto* p = std::get_if<PlateRig>(&out.setup.rig)) {
+    largest = std::sqrt(p->volume / (std::numbers::pi * thinnest)) * (kind == Reading::Diameter ? 2.0 : 1.0);
+    why = "the layer would be thinner than 0.05 mm";
+  } else if (const auto* q = std::get_if<SqueezeRig>(&out.setup.rig)) {
+    const double radius = std::sqrt(q->volume / (std::numbers::pi * thinnest));
+    largest = kind == Reading::Gap ? std::max(q->initial_gap, std::cbrt(4.0 * q->volume / std::numbers::pi))
+                                   : radius * (kind == Reading::Diameter ? 2.0 : 1.0);
+    why = kind == Reading::Gap ? "the gap would exceed the sample's starting height"
+                               : "the disc would be thinner than 0.05 mm";
+  } else {
+    largest = std::get<SlumpRig>(out.setup.rig).height;
+    why = "a slump cannot exceed the cylinder height";
+  }
+  for (const ReadingSeries& s : out.series)
+    for (std::size_t i = 0; i < s.values.size(); ++i)
+      if (s.values[i] > largest)
+        throw InputError(s.source, i < s.lines.size() ? s.lines[i] : 0, std::string(reading_name(s.kind)),
+                         fmt::format("reading {:.4g} m is larger than the rig allows for this sample ({:.4g} m: {}); "
+                                     "expected a reading in the header's unit",
+                                     s.values[i], largest, why));
+  if (out.final_reading && *out.final_reading > largest)
+    fail(0, "readings.final",
+         fmt::format("final reading {:.4g} m is larger than the rig allows for this sample ({:.4g} m: {})",
+                     *out.final_reading, largest, why));
+}
+
 void DescriptionReader::read_spec(const toml::table& root, TestDescription& out) const {
   const toml::table* spec = table(root, "spec");
   if (!spec) return;
@@ -544,6 +583,7 @@ TestDescription DescriptionReader::read() {
   out.setup.rig = read_rig(root);
   out.setup.density = out.density;
   read_readings(root, out);
+  check_possible(out);
   read_fit(root, out);
   read_spec(root, out);
   return out;

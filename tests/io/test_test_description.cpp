@@ -525,3 +525,20 @@ TEST_CASE("files that are not readable TOML") {
     CHECK(std::string(e.what()).find('\n') == std::string::npos);
   }
 }
+
+TEST_CASE("io: a reading larger than the sample's volume allows is refused with its line") {
+  // 100 mL in a 5 cm channel cannot run 50 m past the gate (the layer would average under 0.05 mm over 40 m).
+  spreadfit::io::test::TempDir dir;
+  dir.write("run.csv", "time [s],front [cm]\n1,5.2\n2,5000\n");
+  const auto file = dir.write("t.toml",
+                              "[sample]\nid = \"X1\"\ndensity = \"1 g/mL\"\n[rig]\nkind = \"channel\"\nwidth = \"5 cm\"\n"
+                              "reservoir_length = \"5 cm\"\nvolume = \"100 mL\"\n[readings]\nfile = \"run.csv\"\n");
+  try {
+    spreadfit::io::load_test_description(file);
+    FAIL("expected an InputError");
+  } catch (const spreadfit::io::InputError& e) {
+    const std::string what = e.what();
+    CHECK(what.find("run.csv:3") != std::string::npos);
+    CHECK(what.find("larger than the rig allows") != std::string::npos);
+  }
+}
