@@ -1,5 +1,0 @@
-if(EXISTS "/work/main/build-io/spreadfit_tests_tests-b858cb2.cmake")
-  include("/work/main/build-io/spreadfit_tests_tests-b858cb2.cmake")
-else()
-  add_test(spreadfit_tests_NOT_BUILT-b858cb2 spreadfit_tests_NOT_BUILT-b858cb2)
-endif()
