@@ -69,9 +69,12 @@ Eigen::VectorXd global_start(const FitProblem& problem, int evaluations) {
   double best_cost = std::numeric_limits<double>::infinity();
   Eigen::VectorXd r, theta = best;
   std::exception_ptr error;
+  // Surrogate cost of the first `count` parameters (the rest held), remembering the best point seen. NLopt turns
+  // exceptions into a generic failure, so the original is kept and rethrown.
+  int count = pm;
   std::function<double(const double*)> objective = [&](const double* x) {
     try {
-      for (int i = 0; i < pm; ++i) theta[i] = x[i];
+      for (int i = 0; i < count; ++i) theta[i] = x[i];
       problem.surrogate_residuals(theta, r);
       const double c = r.allFinite() ? 0.5 * r.squaredNorm() : 1e300;
       if (c < best_cost) {
@@ -84,59 +87,33 @@ Eigen::VectorXd global_start(const FitProblem& problem, int evaluations) {
       throw nlopt::forced_stop();
     }
   };
-  nlopt::opt opt(nlopt::GN_DIRECT_L, unsigned(pm));
-  opt.set_lower_bounds(std::vector<double>(problem.lower().data(), problem.lower().data() + pm));
-  opt.set_upper_bounds(std::vector<double>(problem.upper().data(), problem.upper().data() + pm));
-  opt.set_maxeval(evaluations);
-  opt.set_min_objective(
-      [](unsigned, const double* x, double*, void* data) -> double {
-        return (*static_cast<std::function<double(const double*)>*>(data))(x);
-      },
-      &objective);
-  std::vector<double> x(best.data(), best.data() + pm);
-  double value = 0;
-  try {
-    opt.optimize(x, value);
-  } catch (const std::exception&) {
-    // forced_stop, or a budget-exhausted signal in some builds: the best point seen is kept either way.
-  }
-  if (error) std::rethrow_exception(error);
-  if (p == pm) return best;
+  auto run = [&](nlopt::algorithm algorithm, int n, int budget) {
+    count = n;
+    theta = best;
+    nlopt::opt opt(algorithm, unsigned(n));
+    opt.set_lower_bounds(std::vector<double>(problem.lower().data(), problem.lower().data() + n));
+    opt.set_upper_bounds(std::vector<double>(problem.upper().data(), problem.upper().data() + n));
+    opt.set_maxeval(budget);
+    if (algorithm == nlopt::LN_BOBYQA) opt.set_xtol_abs(1e-4);
+    opt.set_min_objective(
+        [](unsigned, const double* x, double*, void* data) -> double {
+          return (*static_cast<std::function<double(const double*)>*>(data))(x);
+        },
+        &objective);
+    std::vector<double> x(best.data(), best.data() + n);
+    double value = 0;
+    try {
+      opt.optimize(x, value);
+    } catch (const std::exception&) {
+      // forced_stop, or a budget-exhausted signal in some builds: the best point seen is kept either way.
+    }
+    if (error) std::rethrow_exception(error);
+  };
+  run(nlopt::GN_DIRECT_L, pm, evaluations);
   // Local stage, still on the surrogate: NLopt LN_BOBYQA (Powell 2009; derivative-free, bounded, quadratic models)
   // frees the release times together with the material parameters from DIRECT's point. Cheap, and it hands the
   // full-model polish a start whose release times are already consistent with the material.
-  std::function<double(const double*)> all = [&](const double* y) {
-    try {
-      theta = Eigen::Map<const Eigen::VectorXd>(y, p);
-      problem.surrogate_residuals(theta, r);
-      const double c = r.allFinite() ? 0.5 * r.squaredNorm() : 1e300;
-      if (c < best_cost) {
-        best_cost = c;
-        best = theta;
-      }
-      return c;
-    } catch (...) {
-      error = std::current_exception();
-      throw nlopt::forced_stop();
-    }
-  };
-  nlopt::opt local(nlopt::LN_BOBYQA, unsigned(p));
-  local.set_lower_bounds(std::vector<double>(problem.lower().data(), problem.lower().data() + p));
-  local.set_upper_bounds(std::vector<double>(problem.upper().data(), problem.upper().data() + p));
-  local.set_maxeval(evaluations / 3);
-  local.set_xtol_abs(1e-4);
-  local.set_min_objective(
-      [](unsigned, const double* y, double*, void* data) -> double {
-        return (*static_cast<std::function<double(const double*)>*>(data))(y);
-      },
-      &all);
-  std::vector<double> y(best.data(), best.data() + p);
-  try {
-    local.optimize(y, value);
-  } catch (const std::exception&) {
-    // as above: the best point seen is kept
-  }
-  if (error) std::rethrow_exception(error);
+  if (p > pm) run(nlopt::LN_BOBYQA, p, evaluations / 3);
   return best;
 }
 

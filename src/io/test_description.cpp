@@ -120,6 +120,14 @@ class DescriptionReader {
   std::map<std::string, std::vector<SpecLimit>> read_catalogue() const;
 
  private:
+  toml::table parse() const {
+    try {
+      return toml::parse_file(name_);
+    } catch (const toml::parse_error& e) {
+      throw InputError(name_, static_cast<int>(e.source().begin.line), "",
+                       "TOML syntax: " + std::string(e.description()), static_cast<int>(e.source().begin.column));
+    }
+  }
 
   std::filesystem::path file_;
   std::string name_;
@@ -492,13 +500,7 @@ void DescriptionReader::read_spec(const toml::table& root, TestDescription& out)
 std::map<std::string, std::vector<SpecLimit>> DescriptionReader::read_catalogue() const {
   std::error_code ec;
   if (!std::filesystem::is_regular_file(file_, ec)) throw InputError(name_, 0, "", "spec catalogue not found");
-  toml::table root;
-  try {
-    root = toml::parse_file(name_);
-  } catch (const toml::parse_error& e) {
-    throw InputError(name_, static_cast<int>(e.source().begin.line), "",
-                     "TOML syntax: " + std::string(e.description()), static_cast<int>(e.source().begin.column));
-  }
+  const toml::table root = parse();
   std::map<std::string, std::vector<SpecLimit>> catalogue;
   for (const toml::key* key : keys_in_file_order(root)) {
     const std::string product(key->str());
@@ -554,13 +556,7 @@ TestDescription DescriptionReader::read() {
     throw InputError(name_, 0, "",
                      std::filesystem::exists(file_, ec) ? "not a regular file (expected a test description, .toml)"
                                                         : "test description not found");
-  toml::table root;
-  try {
-    root = toml::parse_file(name_);
-  } catch (const toml::parse_error& e) {
-    throw InputError(name_, static_cast<int>(e.source().begin.line), "",
-                     "TOML syntax: " + std::string(e.description()), static_cast<int>(e.source().begin.column));
-  }
+  const toml::table root = parse();
 
   // Top level: only the five tables. A bare key here most often lost its table header.
   for (const toml::key* key_ptr : keys_in_file_order(root)) {
