@@ -6,12 +6,14 @@
 #include <map>
 
 #include "src/cli/exit_codes.hpp"
+#include "src/cli/history_command.hpp"
 #include "src/fit/final_only.hpp"
 #include "src/fit/fit_law.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/test_description.hpp"
 #include "src/qc/verdict.hpp"
+#include "src/report/fit_plot.hpp"
 #include "src/report/result_json.hpp"
 #include "src/report/summary_csv.hpp"
 #include "src/report/summary_table.hpp"
@@ -92,14 +94,6 @@ std::string file_stem_safe(const std::string& id) {
 }  // namespace
 
 int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::ostream& err) {
-  // Reports, batch history and spec catalogues come in a later release: refuse rather than silently ignore.
-  const std::pair<const std::optional<std::filesystem::path>*, const char*> later[] = {
-      {&options.plot, "--plot"}, {&options.db, "--db"}};
-  for (const auto& [value, name] : later)
-    if (*value)
-      throw io::InputError("", 0, name,
-                           "not available in this version (planned: SVG reports and batch history); use --json or "
-                           "--out-dir");
   std::optional<Law> forced;
   if (!options.model.empty() && options.model != "auto") {
     forced = law_from_name(options.model);
@@ -136,6 +130,7 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
   bool out_of_spec = false, failed = false;
   nlohmann::json all = nlohmann::json::array();
   std::vector<FitOutcome> outcomes;
+  int plotted = 0;
   for (const std::string& id : order) {
     std::vector<io::TestDescription> tests = std::move(by_sample[id]);
     const std::string where = tests.front().path.string();
@@ -165,6 +160,27 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
     const nlohmann::json j = result_json(o);
     all.push_back(j);
     if (options.out_dir) io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".json"), j.dump(2) + "\n");
+    if (options.plot || options.out_dir) {
+      const std::string svg = fit_plot_svg(o, series_of(o.tests));
+      if (options.out_dir) io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".svg"), svg);
+      // --plot names one file: with several materials, the first gets it and the rest go beside it by sample id.
+      if (options.plot) {
+        const std::filesystem::path file =
+            plotted == 0 ? *options.plot : options.plot->parent_path() / (file_stem_safe(id) + ".svg");
+        io::write_file_atomically(file, svg);
+      }
+      ++plotted;
+    }
+    if (options.db) {
+      try {
+        const history::StoredResult stored = history::stored_result(o);
+        const history::WriteOutcome written = history::record(*options.db, stored);
+        out << history_record_note(*options.db, stored, written) << "\n";
+      } catch (const io::InputError& e) {
+        err << "spreadfit: " << e.what() << "\n";
+        bad_input = true;
+      }
+    }
     outcomes.push_back(std::move(o));
   }
   if (options.csv && !outcomes.empty()) io::write_file_atomically(*options.csv, summary_csv(outcomes));

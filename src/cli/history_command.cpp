@@ -1,6 +1,7 @@
 #include "src/cli/history_command.hpp"
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include <algorithm>
 #include <cmath>
@@ -12,6 +13,7 @@
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
 #include "src/qc/control_chart.hpp"
+#include "src/report/control_chart_svg.hpp"
 
 namespace spreadfit::cli {
 
@@ -202,14 +204,15 @@ std::string history_csv(const std::vector<StoredResult>& rows) {
   for (const Column& c : columns) s += fmt::format(",{0} [{1}],{0} low [{1}],{0} high [{1}]", c.name, c.unit);
   s += ",software_version,input_hash\n";
   for (const auto& r : rows) {
-    s += csv_cell(r.sample_id) + "," + csv_cell(r.product) + "," + csv_cell(r.recorded_at) + "," + csv_cell(r.rig) +
-         "," + csv_cell(r.law) + "," + csv_cell(r.verdict);
+    s += fmt::format("{},{},{},{},{},{}", csv_cell(r.sample_id), csv_cell(r.product), csv_cell(r.recorded_at),
+                     csv_cell(r.rig), csv_cell(r.law), csv_cell(r.verdict));
     for (const Column& c : columns) {
       const Parameter* p = find_parameter(r, c.name);
-      s += p ? "," + csv_number(std::get<1>(*p)) + "," + csv_number(std::get<2>(*p)) + "," + csv_number(std::get<3>(*p))
+      s += p ? fmt::format(",{},{},{}", csv_number(std::get<1>(*p)), csv_number(std::get<2>(*p)),
+                           csv_number(std::get<3>(*p)))
              : std::string(",,,");
     }
-    s += "," + csv_cell(r.software_version) + "," + csv_cell(r.input_hash) + "\n";
+    s += fmt::format(",{},{}\n", csv_cell(r.software_version), csv_cell(r.input_hash));
   }
   return s;
 }
@@ -249,11 +252,14 @@ int run_history_command(const std::filesystem::path& db, const std::string& prod
                         const std::optional<std::filesystem::path>& chart, bool csv, std::ostream& out,
                         std::ostream& err) {
   const std::vector<StoredResult> rows = history::load(db, product);
+  std::string chart_note;  // said last, after the table
   if (chart) {
     const ControlChart c = chosen_chart(db, rows, product);
-    // The chart is drawn here once src/report/control_chart_svg.hpp exists (see the report to the lead):
-    //   io::write_file_atomically(*chart, control_chart_svg(c, title));
-    (void)c;
+    const std::string code = product_label(rows.front().product);  // chosen_chart checked: one product
+    io::write_file_atomically(*chart, control_chart_svg(c, fmt::format("Product {}: batch history {}", code,
+                                                                       db.filename().string())));
+    chart_note = fmt::format("chart: {} ({} of product {}, {} results)\n", chart->string(), c.parameter, code,
+                             c.values.size());
   }
   if (csv) {
     out << history_csv(rows);
@@ -280,6 +286,7 @@ int run_history_command(const std::filesystem::path& db, const std::string& prod
       out << product_table(code, of_product(rows, code));
     }
   }
+  (csv ? err : out) << chart_note;
   return to_int(ExitCode::Done);
 }
 

@@ -13,7 +13,9 @@
 // Numbers are written in the shortest form that reads back to the same double; empty cells where there is none.
 //
 // --chart FILE.svg: an individuals control chart of one product (--product, or the only product in the history)
-// for its yield stress when at least two results have one, otherwise for the first parameter that has two.
+// for its yield stress when at least two results have one, otherwise for the first parameter that has two
+// (control_chart_svg.hpp), written atomically; then a line "chart: FILE (yield_stress of product TS12, 9 results)"
+// follows the table (on stderr with --csv).
 //
 // Exit codes: 0 when the history was read (also when it holds nothing for the product: that is said on stdout,
 // or on stderr with --csv); the verdicts recorded in the history do not change the exit code. Throws

@@ -14,6 +14,7 @@
 #include <vector>
 
 #include "src/cli/exit_codes.hpp"
+#include "src/cli/history_command.hpp"
 #include "src/cli/fit_command.hpp"
 #include "src/cli/simulate_command.hpp"
 #include "src/io/input_error.hpp"
@@ -97,17 +98,35 @@ int run(int argc, char** argv) {
                                    spreadfit::cli::default_last_time, spreadfit::cli::default_last_time))
           ->type_name("T1,T2,...");
 
+  // --- history -----------------------------------------------------------------------------------------------
+  CLI::App* history =
+      app.add_subcommand("history", "List the batch history per product, with control-chart signals.");
+  std::string history_db, history_product;
+  bool history_csv = false;
+  history->add_option("DB", history_db, "History database written by 'spreadfit fit --db'")->required()->type_name("");
+  history->add_option("--product", history_product, "Only this product code")->type_name("CODE");
+  PathOption history_chart;
+  history_chart.add_to(*history, "--chart", "FILE.svg",
+                       "Draw an individuals control chart of the product's yield stress (else its first parameter)");
+  history->add_flag("--csv", history_csv, "Write CSV to stdout instead of the table");
+
   try {
     app.parse(argc, argv);
   } catch (const CLI::Success& e) {  // --help, --help-all, --version
     return app.exit(e, std::cout, std::cerr);
   } catch (const CLI::ParseError& e) {
-    const CLI::App* chosen = fit->parsed() ? fit : simulate->parsed() ? simulate : nullptr;
+    const CLI::App* chosen = fit->parsed()        ? fit
+                             : simulate->parsed() ? simulate
+                             : history->parsed()  ? history
+                                                  : nullptr;
     std::cerr << "spreadfit: " << e.what() << '\n'
               << "Run 'spreadfit " << (chosen ? chosen->get_name() + " " : std::string()) << "--help' for usage.\n";
     return to_int(ExitCode::BadInput);
   }
 
+  if (history->parsed())
+    return spreadfit::cli::run_history_command(history_db, history_product, history_chart.get(), history_csv,
+                                               std::cout, std::cerr);
   if (simulate->parsed()) {
     simulate_options.test = simulate_test;
     if (times_option->count() > 0) simulate_options.times = simulate_times;

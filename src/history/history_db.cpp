@@ -275,6 +275,12 @@ std::string utc_now_iso8601() {
 WriteOutcome record(const fs::path& db_file, const StoredResult& r) {
   check_storable(r);
   const Database db(db_file, Database::Mode::ReadWriteCreate);
+  {
+    // Refuse another program's database or a later schema before changing anything, even the journal mode.
+    Transaction look(db, /*immediate=*/false);
+    (void)check_schema(db);
+    look.commit();
+  }
   use_wal(db);
   db.exec("PRAGMA foreign_keys = ON", "enabling foreign keys");
   Transaction transaction(db, /*immediate=*/true);
@@ -401,7 +407,10 @@ StoredResult stored_result(const FitOutcome& o) {
   s.sample_id = o.tests.front().sample_id;
   for (const auto& t : o.tests)
     if (s.product.empty()) s.product = t.product;
-  for (const auto& t : o.tests) s.rig += (s.rig.empty() ? "" : "+") + std::string(io::rig_kind_name(t.setup.rig));
+  for (const auto& t : o.tests) {
+    if (!s.rig.empty()) s.rig.push_back('+');
+    s.rig.append(io::rig_kind_name(t.setup.rig));
+  }
   if (const FitResult* r = o.result()) {
     s.law = std::string(law_name(r->law));
     for (const auto& p : r->parameters)

@@ -122,12 +122,23 @@ TEST_CASE("fit: bad input exits 2 naming the field") {
     CHECK(run.exit_code == 2);
     CHECK(run.out.find("LT9-0005") != std::string::npos);
   }
-  SUBCASE("options of later releases are refused, not ignored") {
-    const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --plot " +
-                                           quoted((dir.path() / "p.svg").string()));
-    CHECK(run.exit_code == 2);
-    CHECK(run.err.find("--plot") != std::string::npos);
-    CHECK_FALSE(std::filesystem::exists(dir.path() / "p.svg"));
+  SUBCASE("--plot and --db write a report and a history row") {
+    const auto svg = dir.path() / "p.svg";
+    const auto db = dir.path() / "h.db";
+    const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --plot " + quoted(svg.string()) +
+                                           " --db " + quoted(db.string()));
+    INFO(run.out << run.err);
+    CHECK(run.exit_code == 0);
+    const std::string text = read_text(svg);
+    CHECK(text.find("<svg") != std::string::npos);
+    CHECK(text.find("</svg>") != std::string::npos);
+    CHECK(text.find("LT9-0005") != std::string::npos);
+    CHECK(run.out.find("history: added LT9-0005") != std::string::npos);
+    const Run again = run_spreadfit(dir, "fit " + quoted(test.string()) + " --db " + quoted(db.string()));
+    CHECK(again.out.find("history: replaced LT9-0005") != std::string::npos);
+    const Run listing = run_spreadfit(dir, "history " + quoted(db.string()));
+    CHECK(listing.exit_code == 0);
+    CHECK(listing.out.find("LT9-0005") != std::string::npos);
   }
 }
 

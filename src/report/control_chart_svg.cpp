@@ -1,0 +1,284 @@
+#include "src/report/control_chart_svg.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+
+#include "src/report/fit_outcome.hpp"
+#include "src/report/svg_document.hpp"
+#include "src/version.hpp"
+
+namespace spreadfit {
+
+namespace {
+
+using svg::Document;
+using svg::LinearScale;
+using svg::Shape;
+
+constexpr double page_width = 900;
+constexpr double page_margin = 20;
+constexpr double plot_right = page_width - 96;  // room for the limit labels
+constexpr double panel_height = 300;
+constexpr double label_font = 11;
+constexpr double label_slant = 40;         // degrees
+constexpr std::size_t longest_label = 24;  // characters shown of a batch id
+
+constexpr const char* ink = "#1b1f24";
+constexpr const char* muted = "#59606a";
+constexpr const char* frame = "#9aa1a9";
+constexpr const char* line_colour = "#7a8594";
+constexpr const char* normal_colour = "#1f4e9c";
+constexpr const char* beyond_colour = "#c62828";
+constexpr const char* run_colour = "#e08a00";
+constexpr const char* centre_colour = "#2d3b4e";
+
+// A batch id short enough for the axis: its last characters after an ellipsis (ids differ at the end).
+std::string axis_label(const std::string& id) {
+  std::size_t characters = 0, cut = id.size();
+  for (std::size_t i = id.size(); i-- > 0;) {
+    if ((static_cast<unsigned char>(id[i]) & 0xC0) == 0x80) continue;  // UTF-8 continuation byte
+    if (++characters == longest_label) {
+      cut = i;
+      break;
+    }
+  }
+  if (characters < longest_label || cut == 0) return id;
+  return "\u2026" + id.substr(cut + 1 == id.size() ? cut : cut + 1);
+}
+
+// A batch's marker; `legend` gives the legend's sample of it (class "legend-mark" instead of "point ...").
+void point_marker(Document& doc, double x, double y, bool beyond, bool run, const std::string& tooltip,
+                  bool legend = false) {
+  const auto cls = [&](const char* c) { return legend ? std::string("legend-mark") : std::string(c); };
+  if (beyond) {
+    svg::marker(doc, Shape::Diamond, x, y, 5.0,
+                {{"class", cls(run ? "point beyond-limits in-run" : "point beyond-limits")},
+                 {"fill", beyond_colour},
+                 {"stroke", run ? run_colour : "#ffffff"},
+                 {"stroke-width", run ? 2.2 : 1.0}},
+                tooltip);
+  } else if (run) {
+    svg::marker(doc, Shape::Square, x, y, 4.4,
+                {{"class", cls("point in-run")}, {"fill", run_colour}, {"stroke", "#ffffff"}, {"stroke-width", 1.0}},
+                tooltip);
+  } else {
+    svg::marker(doc, Shape::Circle, x, y, 3.6,
+                {{"class", cls("point")}, {"fill", normal_colour}, {"stroke", "#ffffff"}, {"stroke-width", 1.0}},
+                tooltip);
+  }
+}
+
+}  // namespace
+
+std::string control_chart_svg(const ControlChart& chart, const std::string& title) {
+  const std::size_t n = chart.values.size();
+  auto flag = [](const std::vector<bool>& flags, std::size_t i) { return i < flags.size() && flags[i]; };
+  auto label_of = [&](std::size_t i) { return i < chart.labels.size() ? chart.labels[i] : fmt::format("#{}", i + 1); };
+  const std::string unit = chart.unit.empty() || chart.unit == "-" ? std::string() : " " + chart.unit;
+  const std::string heading = title.empty() ? "Control chart" : title;
+
+  Document doc(page_width, heading);
+  doc.add("rect", {{"x", 0.0}, {"y", 0.0}, {"width", "100%"}, {"height", "100%"}, {"fill", "#ffffff"}});
+
+  // --- header ---------------------------------------------------------------------------------------------------
+  const double text_width = page_width - 2 * page_margin;
+  double y = 34;
+  for (const auto& line : svg::wrap(heading, text_width, 19)) {
+    doc.add_text(
+        "text",
+        {{"class", "title"}, {"x", page_margin}, {"y", y}, {"font-size", 19.0}, {"font-weight", "bold"}, {"fill", ink}},
+        line);
+    y += 26;
+  }
+  std::size_t shown = 0, beyond = 0, in_run = 0, plain = 0;
+  for (std::size_t i = 0; i < n; ++i) {
+    if (!std::isfinite(chart.values[i])) continue;
+    ++shown;
+    beyond += flag(chart.beyond_limits, i);
+    in_run += flag(chart.in_run, i);
+    plain += !flag(chart.beyond_limits, i) && !flag(chart.in_run, i);
+  }
+  std::string parameter = chart.parameter.empty() ? std::string("value") : chart.parameter;
+  std::replace(parameter.begin(), parameter.end(), '_', ' ');  // yield_stress -> yield stress
+  std::string summary = fmt::format(
+      "Individuals chart of {}{}, {} batches in time order. Centre line {:.4g}{} (the mean); control limits {:.4g} "
+      "to {:.4g}{} (mean \u00b1 2.66 \u00d7 mean moving range {:.3g}{}).",
+      parameter, chart.unit.empty() ? "" : " [" + chart.unit + "]", n, chart.centre, unit, chart.lower, chart.upper,
+      unit, chart.mean_moving_range, unit);
+  if (shown < n) summary += fmt::format(" {} value{} not a number, not drawn.", n - shown, n - shown == 1 ? "" : "s");
+  for (const auto& line : svg::wrap(summary, text_width, 13)) {
+    doc.add_text("text", {{"x", page_margin}, {"y", y}, {"font-size", 13.0}, {"fill", ink}}, line);
+    y += 19;
+  }
+
+  // --- legend ---------------------------------------------------------------------------------------------------
+  {
+    struct Entry {
+      int kind;  // 0 normal, 1 beyond, 2 run, 3 centre line, 4 limits
+      std::string text;
+    };
+    const std::vector<Entry> entries = {
+        {0, fmt::format("within the limits, no run ({})", plain)},
+        {1, fmt::format("beyond a control limit ({})", beyond)},
+        {2, fmt::format("in a run of {} or more on one side of the centre line ({})", chart.run_length, in_run)},
+        {3, "centre line"},
+        {4, "control limits"},
+    };
+    double x = page_margin;
+    y += 4;
+    for (const Entry& e : entries) {
+      const double w = 26 + svg::text_width(e.text, 12) + 22;
+      if (x > page_margin && x + w > page_width - page_margin) x = page_margin, y += 20;
+      const double cy = y + 10;
+      if (e.kind <= 2) {
+        point_marker(doc, x + 9, cy, e.kind == 1, e.kind == 2, "", true);
+      } else {
+        doc.add("line", {{"x1", x},
+                         {"y1", cy},
+                         {"x2", x + 20},
+                         {"y2", cy},
+                         {"stroke", e.kind == 3 ? centre_colour : beyond_colour},
+                         {"stroke-width", 1.6},
+                         {"stroke-dasharray", e.kind == 3 ? "none" : "6 4"}});
+      }
+      doc.add_text("text", {{"x", x + 26}, {"y", cy + 4}, {"font-size", 12.0}, {"fill", ink}}, e.text);
+      x += w;
+    }
+    y += 34;
+  }
+
+  // --- chart ----------------------------------------------------------------------------------------------------
+  double widest_label = 0;
+  for (std::size_t i = 0; i < n; ++i)
+    widest_label = std::max(widest_label, svg::text_width(axis_label(label_of(i)), label_font));
+  const double slant = label_slant * 3.14159265358979 / 180;
+  const double plot_left = std::max(88.0, std::cos(slant) * widest_label + 14);
+  const double top = y, bottom = y + panel_height;
+  double lo = INFINITY, hi = -INFINITY;
+  for (double v : {chart.centre, chart.lower, chart.upper})
+    if (std::isfinite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
+  for (double v : chart.values)
+    if (std::isfinite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
+  const double pad = 0.06 * (hi - lo);
+  const LinearScale value(lo - pad, hi + pad, bottom, top, 6);
+  const double spacing = (plot_right - plot_left) / double(std::max<std::size_t>(n, 1));
+  auto x_of = [&](std::size_t i) { return plot_left + (double(i) + 0.5) * spacing; };
+
+  // Shading beyond the limits, grid, axis.
+  if (std::isfinite(chart.upper) && value(chart.upper) > top)
+    doc.add("rect", {{"x", plot_left},
+                     {"y", top},
+                     {"width", plot_right - plot_left},
+                     {"height", value(chart.upper) - top},
+                     {"fill", "#fbeceb"}});
+  if (std::isfinite(chart.lower) && value(chart.lower) < bottom)
+    doc.add("rect", {{"x", plot_left},
+                     {"y", value(chart.lower)},
+                     {"width", plot_right - plot_left},
+                     {"height", bottom - value(chart.lower)},
+                     {"fill", "#fbeceb"}});
+  svg::y_axis(doc, value, plot_left, plot_right, chart.unit.empty() ? parameter : parameter + " [" + chart.unit + "]");
+
+  // Centre line and limits, labelled at the right.
+  struct Level {
+    double v;
+    const char* name;
+    const char* colour;
+    const char* dash;
+  };
+  for (const Level& l :
+       {Level{chart.upper, "UCL", beyond_colour, "6 4"}, Level{chart.centre, "CL", centre_colour, "none"},
+        Level{chart.lower, "LCL", beyond_colour, "6 4"}}) {
+    if (!std::isfinite(l.v)) continue;
+    const double py = value(l.v);
+    doc.add("line", {{"class", std::string("level ") + l.name},
+                     {"x1", plot_left},
+                     {"y1", py},
+                     {"x2", plot_right},
+                     {"y2", py},
+                     {"stroke", l.colour},
+                     {"stroke-width", 1.6},
+                     {"stroke-dasharray", l.dash}});
+    doc.add_text(
+        "text",
+        {{"x", plot_right + 6}, {"y", py + 4}, {"font-size", 11.0}, {"fill", l.colour}, {"font-weight", "bold"}},
+        fmt::format("{} {:.4g}", l.name, l.v));
+  }
+
+  // Values joined in batch order (a gap where a value is missing), then the markers over the line.
+  std::vector<std::pair<double, double>> run_of_points;
+  auto flush = [&] {
+    if (run_of_points.size() >= 2)
+      doc.add("polyline", {{"class", "series"},
+                           {"points", svg::points(run_of_points)},
+                           {"fill", "none"},
+                           {"stroke", line_colour},
+                           {"stroke-width", 1.3},
+                           {"stroke-linejoin", "round"}});
+    run_of_points.clear();
+  };
+  for (std::size_t i = 0; i < n; ++i) {
+    if (std::isfinite(chart.values[i]))
+      run_of_points.emplace_back(x_of(i), value(chart.values[i]));
+    else
+      flush();
+  }
+  flush();
+  for (std::size_t i = 0; i < n; ++i) {
+    if (!std::isfinite(chart.values[i])) continue;
+    const bool b = flag(chart.beyond_limits, i), r = flag(chart.in_run, i);
+    std::string tip = fmt::format("{}: {:.4g}{}", label_of(i), chart.values[i], unit);
+    if (b) tip += fmt::format(", beyond the {} control limit", chart.values[i] > chart.centre ? "upper" : "lower");
+    if (r) tip += fmt::format(", in a run of {} or more on one side of the centre line", chart.run_length);
+    point_marker(doc, x_of(i), value(chart.values[i]), b, r, tip);
+  }
+  doc.add("rect", {{"x", plot_left},
+                   {"y", top},
+                   {"width", plot_right - plot_left},
+                   {"height", panel_height},
+                   {"fill", "none"},
+                   {"stroke", frame},
+                   {"stroke-width", 1.0}});
+
+  // Batch ids along the bottom, slanted; every k-th when they would crowd.
+  const std::size_t every = std::max<std::size_t>(1, std::size_t(std::ceil(22.0 / spacing)));
+  for (std::size_t i = 0; i < n; ++i) {
+    const double x = x_of(i);
+    doc.add("line",
+            {{"x1", x}, {"y1", bottom}, {"x2", x}, {"y2", bottom + (i % every == 0 ? 5 : 3)}, {"stroke", frame}});
+    if (i % every != 0) continue;
+    const double ly = bottom + 15;
+    doc.add_text("text",
+                 {{"class", "batch"},
+                  {"x", x + 3},
+                  {"y", ly},
+                  {"font-size", label_font},
+                  {"fill", "#3b4048"},
+                  {"text-anchor", "end"},
+                  {"transform",
+                   fmt::format("rotate(-{} {} {})", svg::number(label_slant), svg::number(x + 3), svg::number(ly))}},
+                 axis_label(label_of(i)));
+  }
+  y = bottom + 15 + std::sin(slant) * widest_label + 12;
+  doc.add_text("text",
+               {{"x", 0.5 * (plot_left + plot_right)},
+                {"y", y + 8},
+                {"font-size", 12.0},
+                {"fill", ink},
+                {"text-anchor", "middle"}},
+               every == 1 ? "batch, in time order" : fmt::format("batch, in time order (one id in {} shown)", every));
+  y += 24;
+
+  // --- footer ---------------------------------------------------------------------------------------------------
+  y += svg::text_box(doc, bench_caution, page_margin, y, page_width - 2 * page_margin, 12, "#fbf5e6", "#dcc48e",
+                     "#3a3020");
+  doc.add_text(
+      "text",
+      {{"x", page_width - page_margin}, {"y", y + 18}, {"font-size", 10.0}, {"fill", muted}, {"text-anchor", "end"}},
+      fmt::format("{} {}", software_name, software_version()));
+  return doc.finish(y + 28);
+}
+
+}  // namespace spreadfit

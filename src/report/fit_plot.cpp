@@ -1,0 +1,512 @@
+#include "src/report/fit_plot.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <filesystem>
+#include <stdexcept>
+
+#include "src/fit/prediction_band.hpp"
+#include "src/report/svg_document.hpp"
+#include "src/version.hpp"
+
+namespace spreadfit {
+
+namespace {
+
+using svg::Attributes;
+using svg::Document;
+using svg::LinearScale;
+using svg::Shape;
+
+constexpr double page_width = 900;
+constexpr double page_margin = 20;  // header and footer left/right margin
+constexpr double plot_left = 88;    // plot area, x
+constexpr double plot_right = page_width - 24;
+constexpr double reading_panel_height = 270;
+constexpr double residual_panel_height = 120;
+constexpr double badge_width = 104;
+constexpr int dense_points = 81;  // fitted curve: times from 0 to the last reading
+constexpr int band_draws = 200;   // parameter draws for the 95% band
+
+constexpr const char* ink = "#1b1f24";
+constexpr const char* muted = "#59606a";
+constexpr const char* frame = "#9aa1a9";
+constexpr const char* alarm = "#b3261e";
+constexpr const char* good = "#1e7b34";
+constexpr const char* amber = "#8a5300";
+
+struct Look {
+  const char* colour;
+  Shape shape;
+};
+// Dark, well separated hues on white; the shape differs too.
+constexpr Look looks[] = {{"#1f4e9c", Shape::Circle},  {"#b5451b", Shape::Square}, {"#2c7a3f", Shape::Triangle},
+                          {"#6b3fa0", Shape::Diamond}, {"#8a6a12", Shape::Circle}, {"#0f6e7a", Shape::Square}};
+
+// One series as plotted.
+struct View {
+  std::size_t index = 0;  // in the fit's series order (selects the fitted release time)
+  const FitSeries* series = nullptr;
+  std::string name;
+  Look look{};
+  double sigma = 0;      // error bar half-length [m]; 0: none
+  PredictionBand curve;  // dense best fit and band; empty when there is no fit
+  bool has_curve = false, has_band = false;
+  std::vector<double> fitted;  // best fit at the reading times; empty when not available
+};
+
+// A reading axis: the values of one kind of reading, in cm or mm.
+struct Panel {
+  Reading reading = Reading::Front;
+  std::vector<std::size_t> views;
+  double scale = 1000;  // display units per metre
+  std::string unit = "mm";
+};
+
+PredictionBand band_or_failure(const FitResult& fit, const TestSetup& setup, const std::vector<double>& times,
+                               std::size_t index, int draws) {
+  try {
+    return prediction_band(fit, setup, times, index, draws);
+  } catch (const std::exception&) {  // an invalid material or rig: no curve, said in the legend
+    PredictionBand failed;
+    failed.ok = false;
+    return failed;
+  }
+}
+
+std::string display_name(const FitSeries& s, std::size_t index) {
+  if (s.label.empty()) return fmt::format("series {}", index + 1);
+  const std::string file = std::filesystem::path(s.label).filename().string();
+  return file.empty() ? s.label : file;
+}
+
+std::string parameter_text(const ParameterEstimate& p) {
+  std::string name = p.name;
+  std::replace(name.begin(), name.end(), '_', ' ');
+  const std::string unit = p.unit == "-" ? "" : " " + p.unit;
+  std::string interval =
+      p.upper_only ? fmt::format("95%: below {:.4g}", p.upper) : fmt::format("95%: {:.4g} to {:.4g}", p.lower, p.upper);
+  if (!p.identifiable) interval += ", undetermined";
+  return fmt::format("{} {:.4g}{} ({})", name, p.value, unit, interval);
+}
+
+bool finite(double v) { return std::isfinite(v); }
+
+// Draws text lines at `x` from baseline `y`; returns the baseline after the last line.
+double lines(Document& doc, const std::vector<std::string>& text, double x, double y, double size, const char* fill,
+             const char* weight = "normal") {
+  for (const auto& line : text) {
+    doc.add_text("text", {{"x", x}, {"y", y}, {"font-size", size}, {"fill", fill}, {"font-weight", weight}}, line);
+    y += 1.45 * size;
+  }
+  return y;
+}
+
+void verdict_badge(Document& doc, const Verdict& verdict, double y) {
+  const char* colour = verdict.status == Verdict::Status::Pass   ? good
+                       : verdict.status == Verdict::Status::Fail ? alarm
+                                                                 : "#6b7280";
+  const char* word = verdict.status == Verdict::Status::Pass   ? "PASS"
+                     : verdict.status == Verdict::Status::Fail ? "FAIL"
+                                                               : "NO SPEC";
+  const double x = page_width - page_margin - badge_width;
+  doc.add_text("text",
+               {{"x", x + badge_width / 2},
+                {"y", y + 10},
+                {"font-size", 10.0},
+                {"fill", muted},
+                {"text-anchor", "middle"},
+                {"letter-spacing", 1.0}},
+               "VERDICT");
+  doc.add("rect", {{"x", x}, {"y", y + 16}, {"width", badge_width}, {"height", 30.0}, {"rx", 5.0}, {"fill", colour}});
+  doc.add_text("text",
+               {{"class", "verdict"},
+                {"x", x + badge_width / 2},
+                {"y", y + 36},
+                {"font-size", 16.0},
+                {"font-weight", "bold"},
+                {"fill", "#ffffff"},
+                {"text-anchor", "middle"}},
+               word);
+  double line = y + 62;
+  const bool marginal =
+      std::any_of(verdict.checks.begin(), verdict.checks.end(), [](const SpecCheck& c) { return c.marginal; });
+  if (marginal) {
+    doc.add_text("text",
+                 {{"x", x + badge_width / 2},
+                  {"y", line},
+                  {"font-size", 11.0},
+                  {"fill", amber},
+                  {"text-anchor", "middle"},
+                  {"font-weight", "bold"}},
+                 "marginal");
+    line += 14;
+  }
+  for (const SpecCheck& c : verdict.checks) {
+    doc.add_text("text",
+                 {{"x", x + badge_width},
+                  {"y", line},
+                  {"font-size", 10.0},
+                  {"fill", c.pass ? muted : alarm},
+                  {"text-anchor", "end"}},
+                 fmt::format("{} {}", c.parameter, c.pass ? "pass" : (c.available ? "FAIL" : "missing")));
+    line += 13;
+  }
+}
+
+// Time axis ticks and labels under a panel whose bottom edge is at `bottom`.
+void time_ticks(Document& doc, const LinearScale& t, double bottom) {
+  for (double v : t.ticks()) {
+    const double x = t(v);
+    doc.add("line", {{"x1", x}, {"y1", bottom}, {"x2", x}, {"y2", bottom + 4}, {"stroke", frame}});
+    doc.add_text("text",
+                 {{"x", x}, {"y", bottom + 17}, {"font-size", 11.0}, {"fill", "#3b4048"}, {"text-anchor", "middle"}},
+                 t.tick_label(v));
+  }
+}
+
+void vertical_grid(Document& doc, const LinearScale& t, double top, double bottom) {
+  for (double v : t.ticks())
+    doc.add("line", {{"x1", t(v)}, {"y1", top}, {"x2", t(v)}, {"y2", bottom}, {"stroke", "#eef0f2"}});
+}
+
+void panel_frame(Document& doc, double top, double bottom) {
+  doc.add("rect", {{"x", plot_left},
+                   {"y", top},
+                   {"width", plot_right - plot_left},
+                   {"height", bottom - top},
+                   {"fill", "none"},
+                   {"stroke", frame},
+                   {"stroke-width", 1.0}});
+}
+
+}  // namespace
+
+std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>& series) {
+  const FitResult* r = outcome.result();
+  const std::string sample_id = outcome.tests.empty() ? std::string("(no sample id)") : outcome.tests.front().sample_id;
+  const std::string product = outcome.tests.empty() ? std::string() : outcome.tests.front().product;
+
+  // --- data: what each series shows -------------------------------------------------------------------------
+  std::vector<View> views;
+  double last_time = 0;
+  for (std::size_t i = 0; i < series.size(); ++i) {
+    const FitSeries& s = series[i];
+    if (s.times.empty() || s.times.size() != s.values.size()) continue;
+    View v;
+    v.index = i;
+    v.series = &s;
+    v.name = display_name(s, i);
+    v.look = looks[views.size() % std::size(looks)];
+    v.sigma = s.sigma ? *s.sigma : (r ? r->sigma : 0.0);
+    if (!(v.sigma > 0) || !finite(v.sigma)) v.sigma = 0;
+    if (r) {
+      std::vector<double> dense(dense_points);
+      for (int k = 0; k < dense_points; ++k) dense[std::size_t(k)] = s.times.back() * k / (dense_points - 1);
+      v.curve = band_or_failure(*r, s.setup, dense, i, band_draws);
+      v.has_curve = v.curve.ok && v.curve.reading.size() == dense.size();
+      v.has_band = v.has_curve && v.curve.samples >= 10;
+      const PredictionBand at_readings = band_or_failure(*r, s.setup, s.times, i, 0);
+      if (at_readings.ok && at_readings.reading.size() == s.times.size()) v.fitted = at_readings.reading;
+    }
+    last_time = std::max(last_time, s.times.back());
+    views.push_back(std::move(v));
+  }
+  std::vector<Panel> panels;
+  for (std::size_t k = 0; k < views.size(); ++k) {
+    const Reading reading = views[k].series->setup.reading;
+    auto it = std::find_if(panels.begin(), panels.end(), [&](const Panel& p) { return p.reading == reading; });
+    if (it == panels.end()) {
+      panels.push_back(Panel{reading, {}, 1000, "mm"});
+      it = panels.end() - 1;
+    }
+    it->views.push_back(k);
+  }
+  for (Panel& p : panels) {
+    double largest = 0;
+    for (std::size_t k : p.views)
+      for (double v : views[k].series->values) largest = std::max(largest, std::abs(v));
+    if (largest >= 0.03) p.scale = 100, p.unit = "cm";
+  }
+
+  Document doc(page_width, fmt::format("spreadfit: sample {}", sample_id));
+  doc.add("rect", {{"x", 0.0}, {"y", 0.0}, {"width", "100%"}, {"height", "100%"}, {"fill", "#ffffff"}});
+
+  // --- header -------------------------------------------------------------------------------------------------
+  const double text_width = page_width - 2 * page_margin - badge_width - 24;
+  std::string title = "Sample " + sample_id;
+  if (!product.empty()) title += "  \u00b7  product " + product;
+  double y = lines(doc, svg::wrap(title, text_width, 19), page_margin, 34, 19, ink, "bold");
+  y += 2;
+  if (r) {
+    std::string model = fmt::format("Model: {}", law_name(r->law));
+    if (!outcome.choice_explanation.empty()) model += " (" + outcome.choice_explanation + ")";
+    y = lines(doc, svg::wrap(model, text_width, 13), page_margin, y, 13, ink);
+    std::string parameters;
+    for (const auto& p : r->parameters) {
+      if (p.name == "time_origin") continue;
+      if (!parameters.empty()) parameters += ";  ";
+      parameters += parameter_text(p);
+    }
+    y = lines(doc, svg::wrap(parameters, text_width, 13), page_margin, y, 13, ink);
+    y = lines(doc,
+              svg::wrap(fmt::format("Fit: rmse {:.3g} mm over {} points; reading standard uncertainty {:.3g} mm",
+                                    r->rmse * 1e3, r->points, r->sigma * 1e3),
+                        text_width, 12),
+              page_margin, y, 12, muted);
+  } else {
+    y = lines(doc,
+              svg::wrap("No result: the fit failed, so no parameters, curve or residuals are shown.", text_width, 13),
+              page_margin, y, 13, alarm, "bold");
+    for (const auto& c : outcome.candidates)
+      y = lines(doc,
+                svg::wrap(fmt::format("{}: {}{}", law_name(c.law), fit_status_name(c.status),
+                                      c.reason.empty() ? "" : " \u2014 " + c.reason),
+                          text_width, 12),
+                page_margin, y, 12, muted);
+  }
+  verdict_badge(doc, outcome.verdict, 14);
+  const double badge_bottom = 14 + 62 + double(outcome.verdict.checks.size() + 1) * 13.0;
+  y = std::max(y, badge_bottom);
+
+  // --- legend ---------------------------------------------------------------------------------------------------
+  struct Entry {
+    enum Kind { Marker, Line, Band } kind;
+    Look look;
+    std::string text;
+  };
+  std::vector<Entry> entries;
+  for (const View& v : views) {
+    std::string text = fmt::format("{}: {} readings", v.name, v.series->times.size());
+    text += v.sigma > 0 ? fmt::format(", bars \u00b11 standard uncertainty ({:.3g} mm)", v.sigma * 1e3)
+                        : ", no stated uncertainty";
+    if (r && !v.has_curve)
+      text += "; fitted curve could not be computed";
+    else if (r && !v.has_band)
+      text += "; 95% band not available";
+    entries.push_back({Entry::Marker, v.look, text});
+  }
+  if (r && !views.empty()) {
+    entries.push_back(
+        {Entry::Line, views.front().look, views.size() > 1 ? "best fit (colour of its series)" : "best fit"});
+    entries.push_back({Entry::Band, views.front().look, "95% band of the fit"});
+  }
+  {
+    double x = page_margin;
+    y += 6;
+    for (const Entry& e : entries) {
+      const double w = 26 + svg::text_width(e.text, 12) + 20;
+      if (x > page_margin && x + w > page_width - page_margin) x = page_margin, y += 20;
+      const double cy = y + 10;
+      if (e.kind == Entry::Marker) {
+        doc.add("line", {{"x1", x + 9}, {"y1", cy - 7}, {"x2", x + 9}, {"y2", cy + 7}, {"stroke", e.look.colour}});
+        svg::marker(
+            doc, e.look.shape, x + 9, cy, 3.6,
+            {{"class", "legend-reading"}, {"fill", "#ffffff"}, {"stroke", e.look.colour}, {"stroke-width", 1.6}});
+      } else if (e.kind == Entry::Line) {
+        doc.add("line",
+                {{"x1", x}, {"y1", cy}, {"x2", x + 20}, {"y2", cy}, {"stroke", e.look.colour}, {"stroke-width", 2.2}});
+      } else {
+        doc.add("rect", {{"x", x},
+                         {"y", cy - 6},
+                         {"width", 20.0},
+                         {"height", 12.0},
+                         {"fill", e.look.colour},
+                         {"fill-opacity", 0.18}});
+      }
+      doc.add_text("text", {{"x", x + 26}, {"y", cy + 4}, {"font-size", 12.0}, {"fill", ink}}, e.text);
+      x += w;
+    }
+    y += 30;
+  }
+
+  // --- reading panels -------------------------------------------------------------------------------------------
+  const LinearScale time(0, last_time > 0 ? last_time : 1, plot_left, plot_right, 9);
+  for (std::size_t pi = 0; pi < panels.size(); ++pi) {
+    const Panel& p = panels[pi];
+    if (!r && pi == 0) {  // a banner above the readings, where it cannot hide any of them
+      doc.add("rect", {{"x", plot_left},
+                       {"y", y - 8},
+                       {"width", plot_right - plot_left},
+                       {"height", 26.0},
+                       {"rx", 3.0},
+                       {"fill", "#fdecea"},
+                       {"stroke", alarm}});
+      doc.add_text("text",
+                   {{"class", "no-result"},
+                    {"x", plot_left + 12},
+                    {"y", y + 10},
+                    {"font-size", 13.0},
+                    {"font-weight", "bold"},
+                    {"fill", alarm}},
+                   "NO RESULT \u2014 readings only: the fit failed (reasons above)");
+      y += 32;
+    }
+    const double top = y, bottom = y + reading_panel_height;
+    double lo = INFINITY, hi = -INFINITY;
+    auto include = [&](double v) {
+      if (finite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
+    };
+    for (std::size_t k : p.views) {
+      const View& v = views[k];
+      for (double value : v.series->values) include((value - v.sigma) * p.scale), include((value + v.sigma) * p.scale);
+      if (v.has_curve)
+        for (std::size_t i = 0; i < v.curve.times.size(); ++i)
+          include(v.curve.lower[i] * p.scale), include(v.curve.upper[i] * p.scale),
+              include(v.curve.reading[i] * p.scale);
+    }
+    const double pad = 0.04 * (hi - lo);
+    // Readings are lengths: no axis below zero unless the band itself goes there.
+    const LinearScale value(lo >= 0 ? std::max(lo - pad, 0.0) : lo - pad, hi + pad, bottom, top, 6);
+    vertical_grid(doc, time, top, bottom);
+    svg::y_axis(doc, value, plot_left, plot_right, fmt::format("{} [{}]", reading_name(p.reading), p.unit));
+    for (std::size_t k : p.views) {  // bands first, under everything else
+      const View& v = views[k];
+      if (!v.has_band) continue;
+      std::vector<std::pair<double, double>> outline;
+      for (std::size_t i = 0; i < v.curve.times.size(); ++i)
+        if (finite(v.curve.upper[i])) outline.emplace_back(time(v.curve.times[i]), value(v.curve.upper[i] * p.scale));
+      for (std::size_t i = v.curve.times.size(); i-- > 0;)
+        if (finite(v.curve.lower[i])) outline.emplace_back(time(v.curve.times[i]), value(v.curve.lower[i] * p.scale));
+      doc.add("polygon", {{"class", "band"},
+                          {"points", svg::points(outline)},
+                          {"fill", v.look.colour},
+                          {"fill-opacity", 0.16},
+                          {"stroke", "none"}});
+    }
+    for (std::size_t k : p.views) {
+      const View& v = views[k];
+      if (!v.has_curve) continue;
+      std::vector<std::pair<double, double>> line;
+      for (std::size_t i = 0; i < v.curve.times.size(); ++i)
+        if (finite(v.curve.reading[i])) line.emplace_back(time(v.curve.times[i]), value(v.curve.reading[i] * p.scale));
+      doc.add("polyline", {{"class", "fit"},
+                           {"points", svg::points(line)},
+                           {"fill", "none"},
+                           {"stroke", v.look.colour},
+                           {"stroke-width", 2.2},
+                           {"stroke-linejoin", "round"}});
+    }
+    for (std::size_t k : p.views) {
+      const View& v = views[k];
+      const FitSeries& s = *v.series;
+      for (std::size_t i = 0; i < s.times.size(); ++i) {
+        const double x = time(s.times[i]), yv = value(s.values[i] * p.scale);
+        if (v.sigma > 0) {
+          const double y1 = value((s.values[i] - v.sigma) * p.scale), y2 = value((s.values[i] + v.sigma) * p.scale);
+          const std::string d = fmt::format("M{0} {1}V{2}M{3} {1}H{4}M{3} {2}H{4}", svg::number(x), svg::number(y1),
+                                            svg::number(y2), svg::number(x - 3), svg::number(x + 3));
+          doc.add(
+              "path",
+              {{"class", "error-bar"}, {"d", d}, {"stroke", v.look.colour}, {"stroke-width", 1.1}, {"fill", "none"}});
+        }
+        std::string tip = fmt::format("{}: t = {:.4g} s, {} {:.4g} {}", v.name, s.times[i],
+                                      reading_name(s.setup.reading), s.values[i] * p.scale, p.unit);
+        if (!v.fitted.empty()) tip += fmt::format(" (fit {:.4g} {})", v.fitted[i] * p.scale, p.unit);
+        svg::marker(doc, v.look.shape, x, yv, 3.4,
+                    {{"class", "reading"}, {"fill", "#ffffff"}, {"stroke", v.look.colour}, {"stroke-width", 1.6}}, tip);
+      }
+    }
+    panel_frame(doc, top, bottom);
+    time_ticks(doc, time, bottom);
+    y = bottom + 30;
+    if (pi + 1 == panels.size() && !r) {  // the residual panel carries the time axis name when there is one
+      doc.add_text("text",
+                   {{"x", 0.5 * (plot_left + plot_right)},
+                    {"y", y + 6},
+                    {"font-size", 12.0},
+                    {"fill", ink},
+                    {"text-anchor", "middle"}},
+                   "time [s]");
+      y += 16;
+    }
+    y += 10;
+  }
+  if (panels.empty()) {
+    const std::string note = r ? "No reading series to plot (a final-only test): see the parameters above."
+                               : "NO RESULT \u2014 and no reading series to plot.";
+    doc.add_text("text",
+                 {{"class", r ? "note" : "no-result"},
+                  {"x", page_margin},
+                  {"y", y + 14},
+                  {"font-size", 13.0},
+                  {"fill", r ? ink : alarm}},
+                 note);
+    y += 34;
+  }
+
+  // --- residuals ------------------------------------------------------------------------------------------------
+  const bool any_residuals = std::any_of(views.begin(), views.end(), [](const View& v) { return !v.fitted.empty(); });
+  if (r && any_residuals) {
+    const double top = y, bottom = y + residual_panel_height;
+    const double two_sigma = 2 * r->sigma * 1e3;
+    double extent = finite(two_sigma) ? two_sigma : 0;
+    for (const View& v : views)
+      for (std::size_t i = 0; i < v.fitted.size(); ++i) {
+        const double e = (v.series->values[i] - v.fitted[i]) * 1e3;
+        if (finite(e)) extent = std::max(extent, std::abs(e));
+      }
+    if (!(extent > 0)) extent = 1;
+    const LinearScale res(-1.1 * extent, 1.1 * extent, bottom, top, 4);
+    vertical_grid(doc, time, top, bottom);
+    svg::y_axis(doc, res, plot_left, plot_right, "reading \u2212 fit [mm]");
+    doc.add("line", {{"x1", plot_left},
+                     {"y1", res(0)},
+                     {"x2", plot_right},
+                     {"y2", res(0)},
+                     {"stroke", "#4a5058"},
+                     {"stroke-width", 1.2}});
+    if (two_sigma > 0 && finite(two_sigma)) {
+      for (double level : {two_sigma, -two_sigma})
+        doc.add("line", {{"x1", plot_left},
+                         {"y1", res(level)},
+                         {"x2", plot_right},
+                         {"y2", res(level)},
+                         {"stroke", "#8d949c"},
+                         {"stroke-dasharray", "5 4"}});
+      doc.add_text("text", {{"x", plot_right + 3}, {"y", res(two_sigma) + 3.5}, {"font-size", 10.0}, {"fill", muted}},
+                   "+2\u03c3");
+      doc.add_text("text", {{"x", plot_right + 3}, {"y", res(-two_sigma) + 3.5}, {"font-size", 10.0}, {"fill", muted}},
+                   "\u22122\u03c3");
+    }
+    for (const View& v : views)
+      for (std::size_t i = 0; i < v.fitted.size(); ++i) {
+        const double e = (v.series->values[i] - v.fitted[i]) * 1e3;
+        if (!finite(e)) continue;
+        svg::marker(doc, v.look.shape, time(v.series->times[i]), res(e), 2.8,
+                    {{"class", "residual"}, {"fill", v.look.colour}, {"stroke", v.look.colour}},
+                    fmt::format("{}: t = {:.4g} s, residual {:.3g} mm", v.name, v.series->times[i], e));
+      }
+    panel_frame(doc, top, bottom);
+    time_ticks(doc, time, bottom);
+    doc.add_text("text",
+                 {{"x", 0.5 * (plot_left + plot_right)},
+                  {"y", bottom + 36},
+                  {"font-size", 12.0},
+                  {"fill", ink},
+                  {"text-anchor", "middle"}},
+                 "time [s]");
+    y = bottom + 52;
+  } else if (r && !panels.empty()) {
+    doc.add_text("text", {{"x", page_margin}, {"y", y + 6}, {"font-size", 12.0}, {"fill", muted}},
+                 "No residuals: the fitted curve could not be computed at the reading times.");
+    y += 22;
+  }
+
+  // --- footer ---------------------------------------------------------------------------------------------------
+  const double footer_width = page_width - 2 * page_margin;
+  if (r)
+    for (const auto& w : r->warnings)
+      y = lines(doc, svg::wrap("Warning: " + w, footer_width, 12), page_margin, y + 4, 12, amber) - 4;
+  y += 6;
+  y += svg::text_box(doc, bench_caution, page_margin, y, footer_width, 12, "#fbf5e6", "#dcc48e", "#3a3020");
+  doc.add_text(
+      "text",
+      {{"x", page_width - page_margin}, {"y", y + 18}, {"font-size", 10.0}, {"fill", muted}, {"text-anchor", "end"}},
+      fmt::format("{} {}", software_name, software_version()));
+  return doc.finish(y + 28);
+}
+
+}  // namespace spreadfit
