@@ -67,7 +67,7 @@ int run(int argc, char** argv) {
   fit_json.add_to(*fit, "--json", "FILE", "Write the results as JSON to FILE");
   fit_plot.add_to(*fit, "--plot", "FILE.svg",
                   "Draw readings, fitted curve, uncertainty band and residuals to FILE.svg");
-  fit_out_dir.add_to(*fit, "--out-dir", "DIR", "Write one result file per test into DIR");
+  fit_out_dir.add_to(*fit, "--out-dir", "DIR", "Write <sample id>.json and <sample id>.svg per material (tests sharing a sample id are one material) into DIR");
   fit_db.add_to(*fit, "--db", "FILE", "Append the results to the batch history FILE");
   fit_specs.add_to(*fit, "--specs", "FILE", "Read product specifications from FILE");
   fit_csv.add_to(*fit, "--csv", "FILE", "Write the results as a CSV table to FILE");

@@ -2,6 +2,7 @@
 
 #include <boost/math/tools/roots.hpp>
 #include <cmath>
+#include <limits>
 #include <fmt/format.h>
 #include <numbers>
 
@@ -61,6 +62,20 @@ FitResult fit_final_reading(const TestSetup& setup, double reading, std::optiona
     const double h = 1e-4;
     dlog_tau = std::abs(1.0 / ((slump_at(x + h) - slump_at(x - h)) / (2 * h)));
   }
+  // Surface tension shortens the final spread of a thin layer (Roussel, Stefani & Leroy 2005, Cem. Concr. Res.
+  // 35): warn when the plastic profile's deepest point is under three capillary lengths sqrt(gamma / (rho g)),
+  // with gamma = 0.05 N/m assumed (water 0.072 N/m, from memory; sauces and creams lower).
+  double deepest = 0.0;
+  if (const auto* c = std::get_if<ChannelRig>(&setup.rig))
+    deepest = std::sqrt(2.0 * tau * (c->reservoir_length + reading) / rho_g);
+  else if (std::holds_alternative<PlateRig>(setup.rig))
+    deepest = std::sqrt(2.0 * tau * (setup.reading == Reading::Diameter ? reading / 2 : reading) / rho_g);
+  const double capillary_length = std::sqrt(0.05 / rho_g);
+  if (deepest > 0 && deepest < 3.0 * capillary_length)
+    out.warnings.push_back(fmt::format(
+        "the arrested layer is only {:.2g} mm deep at its deepest, under three capillary lengths ({:.2g} mm): "
+        "surface tension, ignored here, shortens the spread, so this yield stress reads high",
+        deepest * 1e3, 3.0 * capillary_length * 1e3));
   const double se = dlog_tau * out.sigma;
   ParameterEstimate e;
   e.name = "yield_stress";
@@ -73,6 +88,8 @@ FitResult fit_final_reading(const TestSetup& setup, double reading, std::optiona
   out.material.yield_stress = tau;
   out.correlation = Eigen::MatrixXd::Identity(1, 1);
   out.status = FitStatus::Converged;
+  out.aicc = std::numeric_limits<double>::quiet_NaN();  // one reading, no curve: no AICc and no residual to report
+  out.rmse = std::numeric_limits<double>::quiet_NaN();
   out.warnings.push_back(
       "estimated from a single final reading by the plastic-limit relation: it assumes the sample had stopped and "
       "had yielded throughout; no viscosity or flow index can be estimated");

@@ -356,7 +356,7 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
       e.identifiable = std::isfinite(se);
     }
     if (log_scale && e.identifiable) ++identifiable;
-    if (log_scale && !e.identifiable)
+    if (log_scale && !e.identifiable && !on_lower && !on_upper)
       out.warnings.push_back(fmt::format("the {} is not determined by these readings (95% interval spans more "
                                          "than a factor of 100)",
                                          plain_name(e.name)));
@@ -370,6 +370,7 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
             "stops, a longer test, or a second fill volume or rig would separate them",
             plain_name(problem.names()[a]), plain_name(problem.names()[b]), out.correlation(a, b)));
 
+  for (std::string& note : problem.notes(best.x)) out.warnings.push_back(std::move(note));
   out.evaluations = problem.evaluations() + (coarse ? coarse->evaluations() : 0);
   if (!best.converged) {
     out.status = FitStatus::NotConverged;

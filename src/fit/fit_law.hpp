@@ -4,8 +4,10 @@
 //
 // Stages and why:
 //  1. Global: NLopt GN_DIRECT_L (Gablonsky & Kelley 2001) on the one-state low-order model (microseconds a
-//     solve), over the whole bounded log-parameter box. Deterministic, needs no start, and cheap enough here to
-//     sample every law's box; the surrogate is within ~15% of the full model, so it lands in the right basin.
+//     solve), over the bounded log box of the material parameters with release times at zero. Deterministic,
+//     needs no start, and cheap enough to sample every law's box; the surrogate is within a few percent of the
+//     full model (scripts/bench), so it lands in the right basin. Then NLopt LN_BOBYQA, still on the surrogate,
+//     frees the release times together with the material parameters.
 //  2. Local: Levenberg-Marquardt with a forward-difference Jacobian on the full model (Eigen), the natural
 //     method for a small least-squares problem: quadratic convergence near the optimum, and the Jacobian it ends
 //     with gives the covariance. Each iteration costs (parameters + 1) forward solves.

@@ -118,6 +118,20 @@ bool FitProblem::residuals(const Eigen::VectorXd& theta, Eigen::VectorXd& r, std
   return r.allFinite();
 }
 
+std::vector<std::string> FitProblem::notes(const Eigen::VectorXd& theta) const {
+  std::vector<std::string> out;
+  for (std::size_t s = 0; s < series_.size(); ++s) {
+    if (times_[s].empty()) continue;
+    const int idx = origin_index_[s];
+    ++evaluations_;
+    const ForwardResult r = predict_readings(series_[s].setup, material(theta),
+                                             shifted(times_[s], idx >= 0 ? theta[idx] : 0.0), options_.forward);
+    for (const std::string& n : r.notes)
+      if (std::find(out.begin(), out.end(), n) == out.end()) out.push_back(n);
+  }
+  return out;
+}
+
 void FitProblem::surrogate_residuals(const Eigen::VectorXd& theta, Eigen::VectorXd& r) const {
   r.resize(points_);
   Eigen::Index k = 0;

@@ -38,6 +38,9 @@ class FitProblem {
   bool predict(const Eigen::VectorXd& theta, std::size_t s, const std::vector<double>& times,
                std::vector<double>& out, std::string* failure = nullptr) const;
 
+  /// The forward model's validity remarks (e.g. slump regime, side walls) for every series at theta, each once.
+  std::vector<std::string> notes(const Eigen::VectorXd& theta) const;
+
   int evaluations() const { return evaluations_; }
   double weight_sigma(std::size_t s) const { return sigma_[s]; }
   const std::vector<FitSeries>& series() const { return series_; }

@@ -69,7 +69,7 @@ nlohmann::json result_json(const FitOutcome& o) {
   fit["converged"] = r != nullptr;
   if (shown) {
     if (r) {
-      fit["rmse"] = r->rmse;
+      fit["rmse"] = std::isfinite(r->rmse) ? json(r->rmse) : json(nullptr);
       fit["rmse_unit"] = "m";
       fit["reading_sigma"] = r->sigma;
       fit["aicc"] = std::isfinite(r->aicc) ? json(r->aicc) : json(nullptr);

@@ -1,5 +1,6 @@
 #include "src/report/summary_table.hpp"
 
+#include <cmath>
 #include <fmt/format.h>
 
 namespace spreadfit {
@@ -36,8 +37,11 @@ std::string summary_table(const FitOutcome& o) {
       if (!p.identifiable) interval += " (undetermined)";
       s += fmt::format("  {:<14} {:>11.4g}   {:<27} {}\n", p.name, p.value, interval, p.unit);
     }
-    s += fmt::format("  fit: rmse {:.3g} mm over {} points, {} forward solves", r->rmse * 1e3, r->points,
-                     r->evaluations);
+    if (std::isfinite(r->rmse))
+      s += fmt::format("  fit: rmse {:.3g} mm over {} points, {} forward solves", r->rmse * 1e3, r->points,
+                       r->evaluations);
+    else
+      s += "  fit: closed form from the single arrested reading";
     if (std::isfinite(r->aicc) && o.candidates.size() > 1) {
       s += "; AICc";
       for (const auto& c : o.candidates)

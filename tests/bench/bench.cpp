@@ -93,7 +93,12 @@ int main(int argc, char** argv) {
       double err = 0.0;
       for (std::size_t i = 0; i < times.size(); ++i)
         if (ref.readings[i] > 0) err = std::max(err, std::abs(res.readings[i] / ref.readings[i] - 1.0));
-      std::printf("%-9s %-17s %10.3f %8zu %15.3f%%\n", r.name, l.name, ms, res.steps, 100 * err);
+      // The squeeze ODE and the static slump model keep their own tolerances (1e-9 and closed form): their accuracy
+      // is checked against Stefan, Scott and Pashias in the tests, not against a finer grid here.
+      if (std::holds_alternative<SqueezeRig>(r.setup.rig) || std::holds_alternative<SlumpRig>(r.setup.rig))
+        std::printf("%-9s %-17s %10.3f %8zu %16s\n", r.name, l.name, ms, res.steps, "see tests");
+      else
+        std::printf("%-9s %-17s %10.3f %8zu %15.3f%%\n", r.name, l.name, ms, res.steps, 100 * err);
     }
   }
 
