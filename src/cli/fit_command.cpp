@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 #include <algorithm>
 #include <cctype>
+#include <unistd.h>
 #include <map>
 
 #include "src/cli/exit_codes.hpp"
@@ -131,7 +132,11 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
   nlohmann::json all = nlohmann::json::array();
   std::vector<FitOutcome> outcomes;
   int plotted = 0;
+  // Progress on stderr only for a person watching (a terminal), never in logs or pipes a plant system reads.
+  const bool show_progress = ::isatty(STDERR_FILENO) == 1 && order.size() > 1;
+  std::size_t done = 0;
   for (const std::string& id : order) {
+    if (show_progress) err << fmt::format("[{}/{}] fitting {}\n", ++done, order.size(), id) << std::flush;
     std::vector<io::TestDescription> tests = std::move(by_sample[id]);
     const std::string where = tests.front().path.string();
     FitOutcome o;
