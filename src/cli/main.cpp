@@ -15,6 +15,7 @@
 
 #include "src/cli/exit_codes.hpp"
 #include "src/cli/history_command.hpp"
+#include "src/cli/predict_command.hpp"
 #include "src/cli/fit_command.hpp"
 #include "src/cli/simulate_command.hpp"
 #include "src/io/input_error.hpp"
@@ -110,6 +111,23 @@ int run(int argc, char** argv) {
                        "Draw an individuals control chart of the product's yield stress (else its first parameter)");
   history->add_flag("--csv", history_csv, "Write CSV to stdout instead of the table");
 
+  // --- predict -----------------------------------------------------------------------------------------------
+  CLI::App* predict = app.add_subcommand(
+      "predict", "Predict a fitted material's readings on another rig, with a 95% band; CSV on stdout.");
+  spreadfit::cli::PredictCommandOptions predict_options;
+  std::string predict_result, predict_rig, predict_times;
+  predict->add_option("RESULT.json", predict_result, "A result written by 'spreadfit fit --json' or '--out-dir'")
+      ->required()
+      ->type_name("");
+  predict->add_option("--rig", predict_rig, "Test description of the other rig (readings optional)")
+      ->required()
+      ->type_name("OTHER.toml");
+  CLI::Option* predict_times_option =
+      predict->add_option("--times", predict_times, "Times, in s or with a unit (default as for simulate)")
+          ->type_name("T1,T2,...");
+  predict->add_option("--samples", predict_options.samples, "Parameter draws for the band (default 200; 0: no band)")
+      ->type_name("N");
+
   try {
     app.parse(argc, argv);
   } catch (const CLI::Success& e) {  // --help, --help-all, --version
@@ -118,12 +136,19 @@ int run(int argc, char** argv) {
     const CLI::App* chosen = fit->parsed()        ? fit
                              : simulate->parsed() ? simulate
                              : history->parsed()  ? history
+                             : predict->parsed()  ? predict
                                                   : nullptr;
     std::cerr << "spreadfit: " << e.what() << '\n'
               << "Run 'spreadfit " << (chosen ? chosen->get_name() + " " : std::string()) << "--help' for usage.\n";
     return to_int(ExitCode::BadInput);
   }
 
+  if (predict->parsed()) {
+    predict_options.result = predict_result;
+    predict_options.rig = predict_rig;
+    if (predict_times_option->count() > 0) predict_options.times = predict_times;
+    return spreadfit::cli::run_predict_command(predict_options, std::cout, std::cerr);
+  }
   if (history->parsed())
     return spreadfit::cli::run_history_command(history_db, history_product, history_chart.get(), history_csv,
                                                std::cout, std::cerr);

@@ -82,6 +82,20 @@ nlohmann::json result_json(const FitOutcome& o) {
         corr.push_back(row);
       }
       fit["correlation"] = {{"parameters", r->names}, {"matrix", corr}};
+      // The fitted vector and its covariance (log of material parameters, release times in s), so that `predict`
+      // can carry this result's uncertainty to another rig. Undetermined entries are null.
+      if (r->estimate.size() == Eigen::Index(r->names.size())) {
+        json cov = json::array();
+        for (Eigen::Index a = 0; a < r->covariance.rows(); ++a) {
+          json row = json::array();
+          for (Eigen::Index b = 0; b < r->covariance.cols(); ++b)
+            row.push_back(std::isfinite(r->covariance(a, b)) ? json(r->covariance(a, b)) : json(nullptr));
+          cov.push_back(row);
+        }
+        fit["log_space"] = {{"parameters", r->names},
+                            {"estimate", std::vector<double>(r->estimate.data(), r->estimate.data() + r->estimate.size())},
+                            {"covariance", cov}};
+      }
     }
     fit["points"] = shown->points;
   }

@@ -3,6 +3,7 @@
 #include <doctest/doctest.h>
 
 #include <nlohmann/json.hpp>
+#include <sstream>
 #include <string>
 
 #include "tests/cli/cli_test_support.hpp"
@@ -172,5 +173,42 @@ TEST_CASE("fit: product limits come from a spec catalogue beside the test, inlin
     CHECK(text.rfind("sample,product,rig,model,status,yield_stress [Pa]", 0) == 0);
     CHECK(text.find("\nLT9-0006,LT9,plate,bingham,ok,") != std::string::npos);
     CHECK(text.find(",pass,") != std::string::npos);
+  }
+}
+
+TEST_CASE("predict: a fitted plate material on a channel, CSV with a band") {
+  TempDir dir;
+  const auto test = plate_test(dir, "LT9-0007",
+                               "--model bingham --set yield_stress=20 --set viscosity=5 --set time_origin=0",
+                               "[fit]\nmodel = \"bingham\"\n");
+  const auto json_file = dir.path() / "r.json";
+  REQUIRE(run_spreadfit(dir, "fit " + quoted(test.string()) + " --json " + quoted(json_file.string())).exit_code == 0);
+  const auto channel = dir.write("channel.toml",
+                                 "[sample]\nid = \"C\"\ndensity = \"1 g/mL\"\n[rig]\nkind = \"channel\"\n"
+                                 "width = \"5 cm\"\nreservoir_length = \"5 cm\"\nvolume = \"100 mL\"\n");
+  const Run run = run_spreadfit(dir, "predict " + quoted(json_file.string()) + " --rig " +
+                                         quoted(channel.string()) + " --times 10,30 --samples 50");
+  INFO(run.out << run.err);
+  REQUIRE(run.exit_code == 0);
+  CHECK(run.out.rfind("time [s],front [m],front low [m],front high [m]\n", 0) == 0);
+  std::istringstream lines(run.out);
+  std::string line;
+  std::getline(lines, line);
+  int rows = 0;
+  while (std::getline(lines, line)) {
+    double t, v, lo, hi;
+    char c;
+    std::istringstream row(line);
+    REQUIRE(bool(row >> t >> c >> v >> c >> lo >> c >> hi));
+    CHECK(lo <= v);
+    CHECK(v <= hi);
+    ++rows;
+  }
+  CHECK(rows == 2);
+  SUBCASE("a failed result cannot be predicted from") {
+    const auto bad = dir.write("bad.json", "{\"model\": null}");
+    const Run r = run_spreadfit(dir, "predict " + quoted(bad.string()) + " --rig " + quoted(channel.string()));
+    CHECK(r.exit_code == 2);
+    CHECK(r.err.find("bad.json") != std::string::npos);
   }
 }

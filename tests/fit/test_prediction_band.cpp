@@ -1,0 +1,69 @@
+// Carrying a fit to another rig: a material fitted on a plate must predict its channel reading, with a band that
+// covers the forward model's reading for the true material and narrows as the data improve.
+#include <doctest/doctest.h>
+
+#include "src/fit/fit_law.hpp"
+#include "src/fit/prediction_band.hpp"
+#include "fit_test_support.hpp"
+
+using namespace spreadfit;
+using namespace spreadfit::testing;
+
+namespace {
+// The band's relative half-width at `t` on the channel, and whether it covers the true reading there.
+struct Check {
+  double width;
+  bool covers;
+};
+
+Check predict_channel(const FitResult& fit, const Material& truth, const std::vector<double>& times) {
+  FitResult material = fit;  // the plate's release time does not carry over: predict from the channel's release
+  std::vector<int> keep;
+  for (std::size_t i = 0; i < fit.names.size(); ++i)
+    if (fit.names[i] != "time_origin") keep.push_back(int(i));
+  material.names.clear();
+  material.estimate.resize(Eigen::Index(keep.size()));
+  material.covariance.resize(Eigen::Index(keep.size()), Eigen::Index(keep.size()));
+  for (std::size_t a = 0; a < keep.size(); ++a) {
+    material.names.push_back(fit.names[std::size_t(keep[a])]);
+    material.estimate[Eigen::Index(a)] = fit.estimate[keep[a]];
+    for (std::size_t b = 0; b < keep.size(); ++b)
+      material.covariance(Eigen::Index(a), Eigen::Index(b)) = fit.covariance(keep[a], keep[b]);
+  }
+  const PredictionBand band = prediction_band(material, channel_setup(), times, 0, 200);
+  REQUIRE(band.ok);
+  const std::vector<double> exact = predict_readings(channel_setup(), truth, times).readings;
+  Check c{0.0, true};
+  for (std::size_t i = 0; i < times.size(); ++i) {
+    c.width = std::max(c.width, (band.upper[i] - band.lower[i]) / exact[i]);
+    INFO("t = " << times[i] << ": " << band.lower[i] << " <= " << exact[i] << " <= " << band.upper[i]);
+    c.covers = c.covers && band.lower[i] <= exact[i] && exact[i] <= band.upper[i];
+  }
+  return c;
+}
+}  // namespace
+
+TEST_CASE("a plate fit predicts the channel reading within its band, and better data narrow the band") {
+  // Pointwise 95% bands at three times: each fit covers the truth at all three most of the time, so over four
+  // independent noisy tests (fixed seeds) at least three must cover; and the band from better readings (a quarter
+  // of the noise, five times the readings) must be narrower every time.
+  const Material truth{20, 5.0, 1.0};
+  const std::vector<double> times{10.0, 30.0, 60.0};
+  int rough_covers = 0, fine_covers = 0;
+  for (unsigned seed = 61; seed < 65; ++seed) {
+    const FitResult rough = fit_law({synthetic(plate_setup(), truth, 1e-3, seed, 0.3, 10.0, 120.0)}, Law::Bingham);
+    const FitResult fine =
+        fit_law({synthetic(plate_setup(), truth, 2.5e-4, seed + 100, 0.3, 2.0, 120.0)}, Law::Bingham);
+    REQUIRE(rough.converged());
+    REQUIRE(fine.converged());
+    const Check a = predict_channel(rough, truth, times);
+    const Check b = predict_channel(fine, truth, times);
+    INFO("seed " << seed << ": band widths rough " << a.width << ", fine " << b.width);
+    rough_covers += a.covers;
+    fine_covers += b.covers;
+    CHECK(b.width < a.width);
+  }
+  INFO("covering: rough " << rough_covers << "/4, fine " << fine_covers << "/4");
+  CHECK(rough_covers >= 3);
+  CHECK(fine_covers >= 3);
+}
