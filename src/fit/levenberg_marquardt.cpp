@@ -34,8 +34,19 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
   double lambda = -1.0;
   int stalls = 0;
   Eigen::VectorXd trial_r;
+  // Broyden (1965) rank-one updates replace the finite-difference Jacobian between refreshes: one residual call
+  // an iteration instead of p + 1. The Jacobian is recomputed every `broyden_refresh` iterations, whenever an
+  // updated one fails to give a step, and before any convergence is declared (the covariance needs a true one).
+  bool fresh = false;
+  int since_refresh = 0;
+  auto refresh = [&] {
+    fresh = finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
+    since_refresh = 0;
+    return fresh;
+  };
   for (out.iterations = 0; out.iterations < o.max_iterations; ++out.iterations) {
-    if (!finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian)) {
+    if ((!fresh && (o.broyden_refresh <= 1 || since_refresh >= o.broyden_refresh || out.jacobian.size() == 0)) &&
+        !refresh()) {
       out.message = "the model failed while differentiating";
       return out;
     }
@@ -66,6 +77,14 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
       const Eigen::VectorXd gn = JtJ.completeOrthogonalDecomposition().solve(g);
       const double predicted = 0.5 * g.dot(gn);
       if (std::isfinite(predicted) && predicted <= o.decrease_tolerance * s2) {
+        if (!fresh) {  // judged on an updated Jacobian: confirm with a true one
+          if (!refresh()) {
+            out.message = "the model failed while differentiating";
+            return out;
+          }
+          --out.iterations;
+          continue;
+        }
         out.converged = true;
         out.message = "predicted decrease below decrease_tolerance of the residual variance";
         return out;
@@ -81,6 +100,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
       const Eigen::VectorXd x_new = (out.x + dx).cwiseMax(lower).cwiseMin(upper);
       const double step = (x_new - out.x).cwiseAbs().maxCoeff();
       if (!(step > o.step_tolerance)) {
+        if (!fresh) refresh();
         out.converged = true;
         out.message = "parameter change below step_tolerance";
         return out;
@@ -89,6 +109,14 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
         const double c = 0.5 * trial_r.squaredNorm();
         if (c < out.cost) {
           const double decrease = (out.cost - c) / std::max(out.cost, 1e-300);
+          if (o.broyden_refresh > 1) {
+            const Eigen::VectorXd dx = x_new - out.x;
+            out.jacobian += (trial_r - out.r - out.jacobian * dx) * dx.transpose() / dx.squaredNorm();
+            fresh = false;
+            ++since_refresh;
+          } else {
+            fresh = false;
+          }
           // A decrease that is a negligible fraction of the residual variance is a stall (a flat valley: the data
           // do not pin the parameters down); three in a row end the search with the point reached.
           const double s2 = trial_r.squaredNorm() / double(std::max<Eigen::Index>(1, trial_r.size() - out.x.size()));
@@ -110,6 +138,13 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
         }
       }
       lambda *= 4.0;
+    }
+    if (!accepted && !fresh) {  // an updated Jacobian may just be poor: retry with a true one
+      if (!refresh()) {
+        out.message = "the model failed while differentiating";
+        return out;
+      }
+      continue;
     }
     if (!accepted) {
       // No damped step improves the cost: at a (numerical) minimum for this model's smoothness.

@@ -17,6 +17,8 @@ struct LmOptions {
   double stall_tolerance = 0.005;   ///< two accepted steps in a row lowering the cost by less than this x
                                     ///< residual variance end the search (a flat valley)
   double initial_damping = 1e-3; ///< first lambda relative to the largest diagonal of J^T J (small from a good start)
+  int broyden_refresh = 4;       ///< finite-difference Jacobian every this many iterations, Broyden updates
+                                 ///< between (1: finite differences every iteration)
   Eigen::VectorXd fd_step;       ///< finite-difference step per parameter (required)
 };
 
