@@ -445,21 +445,22 @@ ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& opt
   }
   // The converse case: the shear-thinning relative could not settle n at all. The simpler law's parameters then
   // rest on the assumption n = 1, which the readings can neither confirm nor refute: say so.
+  // "Settled" means the relative's flow-index interval lies within [0.8, 1.25]: the data then confirm n = 1.
   auto n_determined = [](const FitResult& r) {
     if (!r.converged()) return false;
     for (const auto& p : r.parameters)
-      if (p.name == "flow_index") return p.identifiable;
+      if (p.name == "flow_index") return p.identifiable && p.lower >= 0.8 && p.upper <= 1.25;
     return false;
   };
   if (nesting_note.empty() && chosen.law == Law::Bingham && !n_determined(choice.candidates[3]))
     chosen.warnings.push_back(
         "these readings cannot tell whether the material shear-thins (a Herschel-Bulkley fit leaves the flow index "
-        "undetermined): if it does, this Bingham yield stress is biased high (5-15% on the project's synthetic "
+        "open): if it does, this Bingham yield stress is biased high (5-15% on the project's synthetic "
         "sauces) beyond its interval; readings until the sample stops, or a second rig or fill volume, would settle it");
   if (nesting_note.empty() && chosen.law == Law::Newtonian && !n_determined(choice.candidates[1]))
     chosen.warnings.push_back(
         "these readings cannot tell whether the viscosity depends on shear rate (a power-law fit leaves the flow "
-        "index undetermined): the viscosity assumes it does not");
+        "index open): the viscosity assumes it does not");
   const FitResult& c = chosen;
   if (!nesting_note.empty())
     choice.explanation = fmt::format("{} chosen{}", law_name(c.law), nesting_note);

@@ -75,12 +75,26 @@ TEST_CASE("model choice: a syrup is not Herschel-Bulkley and a ketchup is not Ne
     CHECK(c.candidates[std::size_t(c.chosen)].law != Law::HerschelBulkley);
     CHECK(c.candidates[std::size_t(c.chosen)].law != Law::Bingham);
   }
+  SUBCASE("shear-thinning dressing on the plate") {
+    // Power-law data: a Newtonian label would be refuted by the power-law fit's flow-index interval.
+    const ModelChoice c = fit_auto({synthetic(plate_setup(), {0, 10.0, 0.4}, 5e-4, 23)});
+    REQUIRE(c.chosen >= 0);
+    INFO(c.explanation);
+    CHECK(c.candidates[std::size_t(c.chosen)].law != Law::Newtonian);
+  }
   SUBCASE("ketchup-like material on the channel") {
     const ModelChoice c = fit_auto({synthetic(channel_setup(), {25, 8.0, 0.4}, 5e-4, 22)});
     REQUIRE(c.chosen >= 0);
     INFO(c.explanation);
-    CHECK(c.candidates[std::size_t(c.chosen)].law != Law::Newtonian);
-    CHECK(c.candidates[std::size_t(c.chosen)].law != Law::PowerLaw);
+    const FitResult& chosen = c.candidates[std::size_t(c.chosen)];
+    CHECK(chosen.law != Law::Newtonian);
+    CHECK(chosen.law != Law::PowerLaw);
+    // Herschel-Bulkley data fitted as Bingham must say that the yield stress rests on n = 1.
+    if (chosen.law == Law::Bingham) {
+      bool warned = false;
+      for (const auto& w : chosen.warnings) warned = warned || w.find("shear-thins") != std::string::npos;
+      CHECK(warned);
+    }
   }
 }
 
