@@ -28,7 +28,7 @@ struct FitOptions {
   bool fit_time_origin = true;     ///< fit a virtual release time per series (nuisance parameter)
   double ignore_before = 0.0;      ///< [s] readings earlier than this are not fitted
   int max_iterations = 45;         ///< Levenberg-Marquardt iterations (coarse stage; a third of it to polish)
-  int global_evaluations = 800;    ///< NLopt DIRECT-L evaluations of the starting-point stage
+  int global_evaluations = 2000;   ///< NLopt DIRECT-L evaluations of the starting-point stage
   bool profile_intervals = true;   ///< profile-likelihood interval for the yield stress (else quadratic only)
   ForwardOptions forward;          ///< numerical settings of every forward solve
   /// Throws std::invalid_argument naming the field and the violated constraint.
