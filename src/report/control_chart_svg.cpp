@@ -272,13 +272,7 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
   y += 24;
 
   // --- footer ---------------------------------------------------------------------------------------------------
-  y += svg::text_box(doc, bench_caution, page_margin, y, page_width - 2 * page_margin, 12, "#fbf5e6", "#dcc48e",
-                     "#3a3020");
-  doc.add_text(
-      "text",
-      {{"x", page_width - page_margin}, {"y", y + 18}, {"font-size", 10.0}, {"fill", muted}, {"text-anchor", "end"}},
-      fmt::format("{} {}", software_name, software_version()));
-  return doc.finish(y + 28);
+  return svg::finish_with_caution(doc, bench_caution, y, page_width, page_margin, muted);
 }
 
 }  // namespace spreadfit

@@ -501,12 +501,7 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
     for (const auto& w : r->warnings)
       y = lines(doc, svg::wrap("Warning: " + w, footer_width, 12), page_margin, y + 4, 12, amber) - 4;
   y += 6;
-  y += svg::text_box(doc, bench_caution, page_margin, y, footer_width, 12, "#fbf5e6", "#dcc48e", "#3a3020");
-  doc.add_text(
-      "text",
-      {{"x", page_width - page_margin}, {"y", y + 18}, {"font-size", 10.0}, {"fill", muted}, {"text-anchor", "end"}},
-      fmt::format("{} {}", software_name, software_version()));
-  return doc.finish(y + 28);
+  return svg::finish_with_caution(doc, bench_caution, y, page_width, page_margin, muted);
 }
 
 }  // namespace spreadfit

@@ -1,5 +1,7 @@
 #include "src/report/svg_document.hpp"
 
+#include "src/version.hpp"
+
 #include <fmt/format.h>
 
 #include <algorithm>
@@ -327,6 +329,16 @@ std::vector<std::string> wrap(std::string_view text, double max_width, double fo
   }
   if (!line.empty()) lines.push_back(line);
   return lines;
+}
+
+std::string finish_with_caution(Document& doc, std::string_view caution, double y, double page_width,
+                                double margin, std::string_view muted) {
+  y += text_box(doc, caution, margin, y, page_width - 2 * margin, 12, "#fbf5e6", "#dcc48e", "#3a3020");
+  doc.add_text("text",
+               {{"x", page_width - margin}, {"y", y + 18}, {"font-size", 10.0}, {"fill", std::string(muted)},
+                {"text-anchor", "end"}},
+               fmt::format("{} {}", software_name, software_version()));
+  return doc.finish(y + 28);
 }
 
 }  // namespace spreadfit::svg

@@ -109,6 +109,11 @@ void marker(Document& doc, Shape shape, double x, double y, double size, const A
 double text_box(Document& doc, std::string_view text, double x, double y, double width, double font_size,
                 std::string_view fill, std::string_view stroke, std::string_view ink);
 
+/// The foot every report shares: the caution box across the page at `y`, the software name and version under it,
+/// then the finished document.
+std::string finish_with_caution(Document& doc, std::string_view caution, double y, double page_width,
+                                double margin, std::string_view muted);
+
 /// Approximate width [px] of `text` in the generic sans-serif face at `font_size` px (0.56 em a character on
 /// average, a little generous so that layouts built on it do not overlap).
 double text_width(std::string_view text, double font_size);
