@@ -6,6 +6,7 @@
 #include <unistd.h>
 #include <map>
 
+#include "models/temperature.hpp"
 #include "src/cli/exit_codes.hpp"
 #include "src/cli/history_command.hpp"
 #include "src/fit/final_only.hpp"
@@ -41,7 +42,9 @@ std::vector<FitSeries> series_of(const std::vector<io::TestDescription>& tests) 
 
 // Fits one material: all tests of one sample id.
 FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optional<Law>& forced,
-                        const std::vector<io::SpecLimit>& catalogue_limits) {
+                        const io::ProductSpec* product) {
+  const std::vector<io::SpecLimit> none;
+  const std::vector<io::SpecLimit>& catalogue_limits = product ? product->limits : none;
   FitOutcome o;
   o.tests = std::move(tests);
   const io::TestDescription& first = o.tests.front();
@@ -81,7 +84,34 @@ FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optio
                                         [&](const io::SpecLimit& l) { return l.parameter == c.parameter; });
     if (!overridden) limits.push_back(c);
   }
-  o.verdict = judge(o.result() ? *o.result() : (o.candidates.empty() ? FitResult{} : o.candidates.front()), limits);
+  // Temperature: limits apply at the product's reference temperature; shift the fitted values there by Arrhenius.
+  FitResult judged = o.result() ? *o.result() : (o.candidates.empty() ? FitResult{} : o.candidates.front());
+  if (product && product->reference_temperature && o.result()) {
+    if (!first.temperature) {
+      o.candidates[std::size_t(o.chosen)].warnings.push_back(
+          "the product's limits are set at a reference temperature but this test gives no [sample] temperature: "
+          "they were applied to the values as measured");
+    } else {
+      o.reference_temperature = *product->reference_temperature;
+      for (ParameterEstimate& p : judged.parameters) {
+        double factor = 1.0;
+        if (p.name == "viscosity" || p.name == "consistency")
+          factor = arrhenius_factor(product->activation_energy, *first.temperature, *o.reference_temperature);
+        else if (p.name == "yield_stress")
+          factor = arrhenius_factor(product->yield_stress_activation_energy, *first.temperature,
+                                    *o.reference_temperature);
+        else
+          continue;
+        p.value *= factor;
+        p.lower *= factor;
+        p.upper *= factor;
+      }
+      o.reference_parameters.clear();
+      for (const ParameterEstimate& p : judged.parameters)
+        if (p.name != "time_origin") o.reference_parameters.push_back(p);
+    }
+  }
+  o.verdict = judge(judged, limits);
   return o;
 }
 
@@ -120,8 +150,8 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
     }
   }
   // Spec catalogues: --specs, else a specs.toml beside each test file (read once per folder).
-  std::map<std::filesystem::path, std::map<std::string, std::vector<io::SpecLimit>>> catalogues;
-  auto catalogue_for = [&](const io::TestDescription& t) -> const std::map<std::string, std::vector<io::SpecLimit>>* {
+  std::map<std::filesystem::path, std::map<std::string, io::ProductSpec>> catalogues;
+  auto catalogue_for = [&](const io::TestDescription& t) -> const std::map<std::string, io::ProductSpec>* {
     std::filesystem::path file = options.specs ? *options.specs : t.path.parent_path() / "specs.toml";
     if (!options.specs && !std::filesystem::exists(file)) return nullptr;
     auto it = catalogues.find(file);
@@ -141,11 +171,11 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
     const std::string where = tests.front().path.string();
     FitOutcome o;
     try {
-      std::vector<io::SpecLimit> from_catalogue;
+      const io::ProductSpec* from_catalogue = nullptr;
       const std::string& product = tests.front().product;
       if (const auto* catalogue = catalogue_for(tests.front())) {
         const auto found = catalogue->find(product);
-        if (found != catalogue->end()) from_catalogue = found->second;
+        if (found != catalogue->end()) from_catalogue = &found->second;
         else if (options.specs)
           err << fmt::format("spreadfit: note: {}: no limits for product '{}' in {}\n", where,
                              product.empty() ? std::string("(none given)") : product, options.specs->string());

@@ -110,8 +110,8 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
         if (c < out.cost) {
           const double decrease = (out.cost - c) / std::max(out.cost, 1e-300);
           if (o.broyden_refresh > 1) {
-            const Eigen::VectorXd dx = x_new - out.x;
-            out.jacobian += (trial_r - out.r - out.jacobian * dx) * dx.transpose() / dx.squaredNorm();
+            const Eigen::VectorXd taken = x_new - out.x;
+            out.jacobian += (trial_r - out.r - out.jacobian * taken) * taken.transpose() / taken.squaredNorm();
             fresh = false;
             ++since_refresh;
           } else {

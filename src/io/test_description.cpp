@@ -39,6 +39,9 @@ const Names kFitKeys{"model", "time_origin", "ignore_before"};
 const Names kModelNames{"newtonian", "power-law", "bingham", "herschel-bulkley", "auto"};
 const Names kTimeOrigins{"fit", "zero"};
 const Names kSpecKeys{"viscosity", "yield_stress", "consistency", "flow_index"};
+const Names kCatalogueKeys{"viscosity",       "yield_stress",          "consistency",
+                           "flow_index",      "reference_temperature", "activation_energy",
+                           "yield_stress_activation_energy"};
 
 std::string_view type_name(const toml::node& node) {
   switch (node.type()) {
@@ -71,6 +74,7 @@ std::string example_of(Dimension d) {
     case Dimension::Consistency: return "\"8 Pa.s^n\"";
     case Dimension::Force: return "\"2.5 N\"";
     case Dimension::Temperature: return "\"21.5 degC\"";
+    case Dimension::MolarEnergy: return "\"45 kJ/mol\"";
     case Dimension::Dimensionless: return "0.5";
   }
   return "";
@@ -114,10 +118,11 @@ class DescriptionReader {
   void read_fit(const toml::table& root, TestDescription& out) const;
   void check_possible(const TestDescription& out) const;
   void read_spec(const toml::table& root, TestDescription& out) const;
-  void read_spec_table(const toml::table& spec, const std::string& section, std::vector<SpecLimit>& limits) const;
+  void read_spec_table(const toml::table& spec, const std::string& section, std::vector<SpecLimit>& limits,
+                       const Names& allowed = kSpecKeys) const;
 
  public:
-  std::map<std::string, std::vector<SpecLimit>> read_catalogue() const;
+  std::map<std::string, ProductSpec> read_catalogue() const;
 
  private:
   toml::table parse() const {
@@ -497,11 +502,11 @@ void DescriptionReader::read_spec(const toml::table& root, TestDescription& out)
   read_spec_table(*spec, "spec", out.spec);
 }
 
-std::map<std::string, std::vector<SpecLimit>> DescriptionReader::read_catalogue() const {
+std::map<std::string, ProductSpec> DescriptionReader::read_catalogue() const {
   std::error_code ec;
   if (!std::filesystem::is_regular_file(file_, ec)) throw InputError(name_, 0, "", "spec catalogue not found");
   const toml::table root = parse();
-  std::map<std::string, std::vector<SpecLimit>> catalogue;
+  std::map<std::string, ProductSpec> catalogue;
   for (const toml::key* key : keys_in_file_order(root)) {
     const std::string product(key->str());
     const toml::node& node = *root.get(key->str());
@@ -509,15 +514,29 @@ std::map<std::string, std::vector<SpecLimit>> DescriptionReader::read_catalogue(
       fail(line_of(*key), product,
            "expected a table [" + product + "] of limits for product " + product + ", got " +
                std::string(type_name(node)));
-    read_spec_table(*node.as_table(), product, catalogue[product]);
+    const toml::table& table = *node.as_table();
+    ProductSpec& spec = catalogue[product];
+    read_spec_table(table, product, spec.limits, kCatalogueKeys);
+    if (const toml::node* t = table.get("reference_temperature"))
+      spec.reference_temperature = quantity(*t, product + ".reference_temperature", Dimension::Temperature,
+                                            Range::Positive);
+    if (const toml::node* e = table.get("activation_energy"))
+      spec.activation_energy = quantity(*e, product + ".activation_energy", Dimension::MolarEnergy, Range::NonNegative);
+    if (const toml::node* e = table.get("yield_stress_activation_energy"))
+      spec.yield_stress_activation_energy =
+          quantity(*e, product + ".yield_stress_activation_energy", Dimension::MolarEnergy, Range::NonNegative);
+    if ((spec.activation_energy > 0 || spec.yield_stress_activation_energy > 0) && !spec.reference_temperature)
+      fail(line_of(*key), product,
+           "activation energies need a reference_temperature (expected e.g. reference_temperature = \"20 degC\")");
   }
   return catalogue;
 }
 
 void DescriptionReader::read_spec_table(const toml::table& spec, const std::string& section,
-                                        std::vector<SpecLimit>& limits) const {
-  check_keys(spec, section, kSpecKeys);
+                                        std::vector<SpecLimit>& limits, const Names& allowed) const {
+  check_keys(spec, section, allowed);
   for (const toml::key* key : keys_in_file_order(spec)) {
+    if (std::find(kSpecKeys.begin(), kSpecKeys.end(), key->str()) == kSpecKeys.end()) continue;
     const toml::node& node = *spec.get(key->str());
     const std::string parameter(key->str());
     const std::string field = section + "." + parameter;
@@ -587,7 +606,7 @@ TestDescription DescriptionReader::read() {
 
 }  // namespace
 
-std::map<std::string, std::vector<SpecLimit>> load_spec_catalogue(const std::filesystem::path& file) {
+std::map<std::string, ProductSpec> load_spec_catalogue(const std::filesystem::path& file) {
   return DescriptionReader(file).read_catalogue();
 }
 

@@ -75,9 +75,19 @@ struct TestDescription {
 /// Reads, converts and checks a test description and the readings files it names. Throws InputError.
 TestDescription load_test_description(const std::filesystem::path& file);
 
+/// One product of a spec catalogue: limits that apply at the reference temperature, and the Arrhenius activation
+/// energies that take a test's parameters there (models/temperature.hpp).
+struct ProductSpec {
+  std::vector<SpecLimit> limits;
+  std::optional<double> reference_temperature;  ///< [K]; limits apply at this temperature
+  double activation_energy = 0;                 ///< [J/mol] for viscosity / consistency; 0 = no shift
+  double yield_stress_activation_energy = 0;    ///< [J/mol] for the yield stress; 0 = no shift
+};
+
 /// A product spec catalogue (e.g. specs.toml): one table per product code, each holding limits written as in a
-/// test's [spec], e.g. [TS12] yield_stress = ["20 Pa", "35 Pa"]. Throws InputError with file, line and field.
-std::map<std::string, std::vector<SpecLimit>> load_spec_catalogue(const std::filesystem::path& file);
+/// test's [spec], e.g. [TS12] yield_stress = ["20 Pa", "35 Pa"], and optionally reference_temperature,
+/// activation_energy and yield_stress_activation_energy. Throws InputError with file, line and field.
+std::map<std::string, ProductSpec> load_spec_catalogue(const std::filesystem::path& file);
 
 /// Kind name as in [rig] kind: channel | plate | squeeze | slump.
 std::string_view rig_kind_name(const Rig& rig);

@@ -97,6 +97,8 @@ const std::array kUnits{
     UnitEntry{{"N", D::Force, 1.0}, true},
     UnitEntry{{"mN", D::Force, 1e-3}, true},
     // temperature
+    UnitEntry{{"J/mol", D::MolarEnergy, 1.0}, true},
+    UnitEntry{{"kJ/mol", D::MolarEnergy, 1e3}, true},
     UnitEntry{{"K", D::Temperature, 1.0}, true},
     UnitEntry{{"degC", D::Temperature, 1.0, 273.15}, true},
     UnitEntry{{"\xC2\xB0" "C", D::Temperature, 1.0, 273.15}, false},
@@ -172,6 +174,7 @@ std::string_view example_quantity(Dimension d) {
     case D::Consistency: return "8 Pa.s^n";
     case D::Force: return "2.5 N";
     case D::Temperature: return "21.5 degC";
+    case D::MolarEnergy: return "45 kJ/mol";
   }
   return "1";
 }
@@ -191,6 +194,7 @@ std::string_view dimension_name(Dimension d) {
     case D::Consistency: return "consistency";
     case D::Force: return "force";
     case D::Temperature: return "temperature";
+    case D::MolarEnergy: return "molar energy";
   }
   return "quantity";
 }
@@ -208,6 +212,7 @@ std::string_view si_unit_symbol(Dimension d) {
     case D::Consistency: return "Pa.s^n";
     case D::Force: return "N";
     case D::Temperature: return "K";
+    case D::MolarEnergy: return "J/mol";
   }
   return "";
 }

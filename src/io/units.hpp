@@ -30,6 +30,7 @@ enum class Dimension {
   Consistency,    ///< Pa s^n: Pa.s^n, mPa.s^n (Herschel-Bulkley K; the viscosity when n = 1)
   Force,          ///< N:   N, mN
   Temperature,    ///< K:   K, degC
+  MolarEnergy,    ///< J/mol: J/mol, kJ/mol (activation energies)
 };
 
 /// One accepted unit symbol: value_si = value * factor + offset (offset is nonzero only for degC).

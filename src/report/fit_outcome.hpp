@@ -2,6 +2,7 @@
 // verdict. Built by the fit command, read by the table, JSON and history writers.
 #pragma once
 
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -16,7 +17,9 @@ struct FitOutcome {
   std::vector<FitResult> candidates;       ///< every law tried (one when a law was named)
   int chosen = -1;                         ///< index into candidates; -1 when none converged
   std::string choice_explanation;
-  Verdict verdict;
+  Verdict verdict;                         ///< judged at the reference temperature when one applies
+  std::optional<double> reference_temperature;        ///< [K], when the product sets one and the test gives its own
+  std::vector<ParameterEstimate> reference_parameters; ///< the result's parameters shifted there (Arrhenius)
   const FitResult* result() const { return chosen >= 0 ? &candidates[std::size_t(chosen)] : nullptr; }
 };
 

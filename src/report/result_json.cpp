@@ -64,6 +64,12 @@ nlohmann::json result_json(const FitOutcome& o) {
       j["parameters"][p.name] = e;
     }
   }
+  if (o.reference_temperature) {
+    json ref = {{"temperature_K", *o.reference_temperature}, {"parameters", json::object()}};
+    for (const auto& p : o.reference_parameters)
+      ref["parameters"][p.name] = {{"value", p.value}, {"unit", p.unit}, {"ci95", {p.lower, p.upper}}};
+    j["at_reference_temperature"] = ref;
+  }
   json fit;
   const FitResult* shown = r ? r : (o.candidates.empty() ? nullptr : &o.candidates.front());
   fit["converged"] = r != nullptr;

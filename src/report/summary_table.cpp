@@ -51,6 +51,15 @@ std::string summary_table(const FitOutcome& o) {
     s += "\n";
     for (const auto& w : r->warnings) s += fmt::format("  warning: {}\n", w);
   }
+  if (o.reference_temperature) {
+    s += fmt::format("  at the product's reference temperature {:.1f} degC (Arrhenius; the verdict uses these):\n",
+                     *o.reference_temperature - 273.15);
+    for (const auto& p : o.reference_parameters)
+      s += fmt::format("  {:<14} {:>11.4g}   {:<27} {}\n", p.name, p.value,
+                       p.upper_only ? fmt::format("below {:.4g}", p.upper)
+                                    : fmt::format("{:.4g} to {:.4g}", p.lower, p.upper),
+                       p.unit);
+  }
   if (o.verdict.status != Verdict::Status::None) {
     s += fmt::format("  verdict: {}\n", o.verdict.status == Verdict::Status::Pass ? "PASS" : "FAIL");
     for (const auto& c : o.verdict.checks) {

@@ -2,6 +2,7 @@
 // result JSON, verdicts and exit codes of interface.md checked. Sample ids and rigs are invented.
 #include <doctest/doctest.h>
 
+#include <cmath>
 #include <nlohmann/json.hpp>
 #include <sstream>
 #include <string>
@@ -210,5 +211,39 @@ TEST_CASE("predict: a fitted plate material on a channel, CSV with a band") {
     const Run r = run_spreadfit(dir, "predict " + quoted(bad.string()) + " --rig " + quoted(channel.string()));
     CHECK(r.exit_code == 2);
     CHECK(r.err.find("bad.json") != std::string::npos);
+  }
+}
+
+TEST_CASE("fit: limits at a reference temperature judge Arrhenius-shifted values") {
+  // Viscosity measured at 30 degC, limits set at 20 degC with E_a = 60 kJ/mol: the value is taken to 20 degC by
+  // exp(E_a/R (1/293.15 - 1/303.15)) = 2.25 (Arrhenius law, models/temperature.hpp) before it is judged.
+  TempDir dir;
+  const auto test = plate_test(dir, "LT9-0008", "--model newtonian --set viscosity=10 --set time_origin=0",
+                               "[fit]\nmodel = \"newtonian\"\n");
+  std::string text = read_text(test);
+  const auto at = text.find("density = ");
+  text.insert(at, "temperature = \"30 degC\"\n");
+  dir.write("LT9-0008.toml", text);
+  dir.write("specs.toml",
+            "[LT9]\nviscosity = [\"15 Pa.s\", \"30 Pa.s\"]\nreference_temperature = \"20 degC\"\n"
+            "activation_energy = \"60 kJ/mol\"\n");
+  const auto json_file = dir.path() / "r.json";
+  const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --json " + quoted(json_file.string()));
+  INFO(run.out << run.err);
+  const auto j = nlohmann::json::parse(read_text(json_file));
+  const double measured = j["parameters"]["viscosity"]["value"].get<double>();
+  const double shifted = j["at_reference_temperature"]["parameters"]["viscosity"]["value"].get<double>();
+  const double factor = std::exp(60e3 / 8.314462618 * (1 / 293.15 - 1 / 303.15));
+  CHECK(measured == doctest::Approx(10).epsilon(0.02));
+  CHECK(shifted == doctest::Approx(measured * factor).epsilon(1e-9));
+  CHECK(j["at_reference_temperature"]["temperature_K"].get<double>() == doctest::Approx(293.15));
+  // 10 Pa.s at 30 degC is out of [15, 30] as measured but about 22.5 Pa.s at 20 degC: in spec.
+  CHECK(run.exit_code == 0);
+  CHECK(j["verdict"]["status"] == "pass");
+  SUBCASE("an activation energy without a reference temperature is bad input") {
+    dir.write("specs.toml", "[LT9]\nactivation_energy = \"60 kJ/mol\"\n");
+    const Run bad = run_spreadfit(dir, "fit " + quoted(test.string()));
+    CHECK(bad.exit_code == 2);
+    CHECK(bad.err.find("reference_temperature") != std::string::npos);
   }
 }
