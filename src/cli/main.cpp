@@ -16,6 +16,7 @@
 #include "src/cli/exit_codes.hpp"
 #include "src/cli/history_command.hpp"
 #include "src/cli/predict_command.hpp"
+#include "src/cli/translate_command.hpp"
 #include "src/cli/fit_command.hpp"
 #include "src/cli/simulate_command.hpp"
 #include "src/io/input_error.hpp"
@@ -128,6 +129,26 @@ int run(int argc, char** argv) {
   predict->add_option("--samples", predict_options.samples, "Parameter draws for the band (default 200; 0: no band)")
       ->type_name("N");
 
+  // --- translate ---------------------------------------------------------------------------------------------
+  CLI::App* translate = app.add_subcommand(
+      "translate", "Turn parameter limits into reading limits on a rig at a time (forward model over a grid).");
+  spreadfit::cli::TranslateCommandOptions translate_options;
+  std::string translate_test;
+  translate->add_option("TEST.toml", translate_test, "Test description of the rig (readings optional)")
+      ->required()
+      ->type_name("");
+  translate->add_option("--model", translate_options.model, std::string("Model: ") + kModelHelp)
+      ->required()
+      ->type_name("NAME");
+  translate->add_option("--vary", translate_options.vary, "PARAM=LOW:HIGH, e.g. yield_stress=\"20 Pa:35 Pa\"")
+      ->required()
+      ->type_name("PARAM=LOW:HIGH");
+  translate->add_option("--set", translate_options.set, "PARAM=VALUE for the parameters not varied")
+      ->type_name("PARAM=VALUE");
+  translate->add_option("--at", translate_options.at, "Reading time, in s or with a unit")->required()->type_name("T");
+  translate->add_option("--points", translate_options.points, "Grid points per varied parameter (default 5)")
+      ->type_name("N");
+
   try {
     app.parse(argc, argv);
   } catch (const CLI::Success& e) {  // --help, --help-all, --version
@@ -137,12 +158,17 @@ int run(int argc, char** argv) {
                              : simulate->parsed() ? simulate
                              : history->parsed()  ? history
                              : predict->parsed()  ? predict
+                             : translate->parsed() ? translate
                                                   : nullptr;
     std::cerr << "spreadfit: " << e.what() << '\n'
               << "Run 'spreadfit " << (chosen ? chosen->get_name() + " " : std::string()) << "--help' for usage.\n";
     return to_int(ExitCode::BadInput);
   }
 
+  if (translate->parsed()) {
+    translate_options.test = translate_test;
+    return spreadfit::cli::run_translate_command(translate_options, std::cout, std::cerr);
+  }
   if (predict->parsed()) {
     predict_options.result = predict_result;
     predict_options.rig = predict_rig;

@@ -247,3 +247,32 @@ TEST_CASE("fit: limits at a reference temperature judge Arrhenius-shifted values
     CHECK(bad.err.find("reference_temperature") != std::string::npos);
   }
 }
+
+TEST_CASE("translate: yield-stress limits become slump limits by Pashias et al. (1996)") {
+  // Slump of a cylinder with H0 = D (Pashias, Boger, Summers & Glenister 1996, J. Rheol. 40):
+  // s/H0 = 1 - 2 tau'(1 - ln 2 tau'), tau' = tau_y / (rho g H0); the slump falls as tau_y rises, so the limits
+  // [100 Pa, 500 Pa] give slumps between s(500 Pa) and s(100 Pa).
+  TempDir dir;
+  const auto rig = dir.write("slump.toml", "[sample]\nid = \"S\"\ndensity = \"1.1 g/mL\"\n[rig]\nkind = \"slump\"\n"
+                                           "radius = \"5 cm\"\nheight = \"10 cm\"\n");
+  const Run run = run_spreadfit(dir, "translate " + quoted(rig.string()) +
+                                         " --model bingham --vary 'yield_stress=100 Pa:500 Pa' --set viscosity=5 "
+                                         "--at 300");
+  INFO(run.out << run.err);
+  REQUIRE(run.exit_code == 0);
+  auto pashias = [](double tau) {
+    const double t = tau / (1100 * 9.80665 * 0.1);
+    return 0.1 * (1 - 2 * t * (1 - std::log(2 * t)));
+  };
+  const auto line = run.out.substr(run.out.find("slump,m,300,") + 12);
+  const double low = std::stod(line.substr(0, line.find(',')));
+  const double high = std::stod(line.substr(line.find(',') + 1));
+  CHECK(low == doctest::Approx(pashias(500)).epsilon(1e-6));
+  CHECK(high == doctest::Approx(pashias(100)).epsilon(1e-6));
+  SUBCASE("a parameter neither set nor varied is bad input") {
+    const Run bad = run_spreadfit(dir, "translate " + quoted(rig.string()) +
+                                           " --model bingham --vary 'yield_stress=100:500' --at 300");
+    CHECK(bad.exit_code == 2);
+    CHECK(bad.err.find("viscosity") != std::string::npos);
+  }
+}
