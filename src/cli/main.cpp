@@ -17,6 +17,7 @@
 #include "src/cli/history_command.hpp"
 #include "src/cli/predict_command.hpp"
 #include "src/cli/translate_command.hpp"
+#include "src/cli/plan_command.hpp"
 #include "src/cli/fit_command.hpp"
 #include "src/cli/simulate_command.hpp"
 #include "src/io/input_error.hpp"
@@ -149,6 +150,21 @@ int run(int argc, char** argv) {
   translate->add_option("--points", translate_options.points, "Grid points per varied parameter (default 5)")
       ->type_name("N");
 
+  // --- plan --------------------------------------------------------------------------------------------------
+  CLI::App* plan = app.add_subcommand(
+      "plan", "Compare candidate tests by the expected 95% intervals of the parameters for a guessed material.");
+  spreadfit::cli::PlanCommandOptions plan_options;
+  std::vector<std::string> plan_candidates;
+  plan->add_option("CANDIDATE.toml", plan_candidates, "Test descriptions of the candidate tests")
+      ->required()
+      ->type_name("");
+  plan->add_option("--model", plan_options.model, std::string("Model: ") + kModelHelp)->required()->type_name("NAME");
+  plan->add_option("--set", plan_options.set, "PARAM=VALUE of the guessed material")->type_name("PARAM=VALUE");
+  plan->add_option("--every", plan_options.every, "Reading interval for candidates without readings (default 5 s)")
+      ->type_name("DT");
+  plan->add_option("--until", plan_options.until, "Duration for candidates without readings (default 120 s)")
+      ->type_name("T");
+
   try {
     app.parse(argc, argv);
   } catch (const CLI::Success& e) {  // --help, --help-all, --version
@@ -159,12 +175,17 @@ int run(int argc, char** argv) {
                              : history->parsed()  ? history
                              : predict->parsed()  ? predict
                              : translate->parsed() ? translate
+                             : plan->parsed()      ? plan
                                                   : nullptr;
     std::cerr << "spreadfit: " << e.what() << '\n'
               << "Run 'spreadfit " << (chosen ? chosen->get_name() + " " : std::string()) << "--help' for usage.\n";
     return to_int(ExitCode::BadInput);
   }
 
+  if (plan->parsed()) {
+    plan_options.candidates.assign(plan_candidates.begin(), plan_candidates.end());
+    return spreadfit::cli::run_plan_command(plan_options, std::cout, std::cerr);
+  }
   if (translate->parsed()) {
     translate_options.test = translate_test;
     return spreadfit::cli::run_translate_command(translate_options, std::cout, std::cerr);

@@ -276,3 +276,18 @@ TEST_CASE("translate: yield-stress limits become slump limits by Pashias et al. 
     CHECK(bad.err.find("viscosity") != std::string::npos);
   }
 }
+
+TEST_CASE("plan: a larger fill on the plate determines a Bingham viscosity better, and the plan says which") {
+  // With the same ring, 150 mL spreads further and longer than 60 mL, so its readings carry more of the viscosity
+  // (expected-interval ranking from the Fisher information, src/fit/test_design.hpp).
+  TempDir dir;
+  const std::string head = "[sample]\nid = \"P\"\ndensity = \"1 g/mL\"\n[rig]\nkind = \"plate\"\nring_radius = \"3 cm\"\n";
+  const auto small = dir.write("small.toml", head + "volume = \"60 mL\"\n[readings]\nresolution = \"0.5 mm\"\n");
+  const auto large = dir.write("large.toml", head + "volume = \"150 mL\"\n[readings]\nresolution = \"0.5 mm\"\n");
+  const Run run = run_spreadfit(dir, "plan " + quoted(small.string()) + " " + quoted(large.string()) +
+                                         " --model bingham --set yield_stress=20 --set viscosity=5 --until 180");
+  INFO(run.out << run.err);
+  REQUIRE(run.exit_code == 0);
+  CHECK(run.out.find("recommended: large.toml") != std::string::npos);
+  CHECK(run.out.find("yield_stress") != std::string::npos);
+}
