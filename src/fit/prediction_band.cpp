@@ -44,6 +44,25 @@ bool run(const TestSetup& setup, const Material& m, double t0, const std::vector
 
 }  // namespace
 
+FitResult material_only(const FitResult& fit) {
+  FitResult out = fit;
+  std::vector<Eigen::Index> keep;
+  for (std::size_t i = 0; i < fit.names.size(); ++i)
+    if (fit.names[i] != "time_origin") keep.push_back(Eigen::Index(i));
+  const Eigen::Index k = Eigen::Index(keep.size());
+  out.names.clear();
+  out.estimate.resize(k);
+  out.covariance.resize(k, k);
+  for (Eigen::Index a = 0; a < k; ++a) {
+    out.names.push_back(fit.names[std::size_t(keep[std::size_t(a)])]);
+    out.estimate[a] = fit.estimate[keep[std::size_t(a)]];
+    for (Eigen::Index b = 0; b < k; ++b)
+      out.covariance(a, b) = fit.covariance(keep[std::size_t(a)], keep[std::size_t(b)]);
+  }
+  out.time_origins = {0.0};
+  return out;
+}
+
 PredictionBand prediction_band(const FitResult& fit, const TestSetup& setup, const std::vector<double>& times,
                                std::size_t series_index, int samples, unsigned seed) {
   PredictionBand band;

@@ -18,6 +18,10 @@ struct PredictionBand {
   bool ok = true;
 };
 
+/// The fit restricted to its material parameters: release times belong to the original test, so they are dropped
+/// from `names`, `estimate` and `covariance` (the marginal covariance of the rest) before predicting another rig.
+FitResult material_only(const FitResult& fit);
+
 /// times are measured from the series' own clock; `series_index` picks which fitted release time applies (the
 /// first one when the fit had fewer). samples = 0 gives the best-fit curve only. Fixed seed: reproducible output.
 PredictionBand prediction_band(const FitResult& fit, const TestSetup& setup, const std::vector<double>& times,

@@ -5,6 +5,7 @@
 #include <limits>
 #include <nlohmann/json.hpp>
 
+#include "src/fit/prediction_band.hpp"
 #include "src/io/input_error.hpp"
 
 namespace spreadfit {
@@ -37,33 +38,28 @@ FitResult load_fitted_material(const std::filesystem::path& path) {
   r.law = *law;
   r.status = FitStatus::Converged;
   try {
-    const auto names = (*block)["parameters"].get<std::vector<std::string>>();
+    r.names = (*block)["parameters"].get<std::vector<std::string>>();
     const auto estimate = (*block)["estimate"].get<std::vector<double>>();
     const auto& cov = (*block)["covariance"];
-    std::vector<int> keep;  // material parameters only
-    for (std::size_t i = 0; i < names.size(); ++i)
-      if (names[i] != "time_origin") keep.push_back(int(i));
-    r.estimate.resize(Eigen::Index(keep.size()));
-    r.covariance.resize(Eigen::Index(keep.size()), Eigen::Index(keep.size()));
-    for (std::size_t a = 0; a < keep.size(); ++a) {
-      r.names.push_back(names[std::size_t(keep[a])]);
-      r.estimate[Eigen::Index(a)] = estimate.at(std::size_t(keep[a]));
-      for (std::size_t b = 0; b < keep.size(); ++b) {
-        const auto& v = cov.at(std::size_t(keep[a])).at(std::size_t(keep[b]));
-        r.covariance(Eigen::Index(a), Eigen::Index(b)) =
-            v.is_null() ? std::numeric_limits<double>::infinity() : v.get<double>();
+    const Eigen::Index p = Eigen::Index(r.names.size());
+    if (Eigen::Index(estimate.size()) != p) throw io::InputError(file, 0, "fit.log_space", "estimate size mismatch");
+    r.estimate = Eigen::Map<const Eigen::VectorXd>(estimate.data(), p);
+    r.covariance.resize(p, p);
+    for (Eigen::Index a = 0; a < p; ++a)
+      for (Eigen::Index b = 0; b < p; ++b) {
+        const auto& v = cov.at(std::size_t(a)).at(std::size_t(b));
+        r.covariance(a, b) = v.is_null() ? std::numeric_limits<double>::infinity() : v.get<double>();
       }
-    }
   } catch (const nlohmann::json::exception& e) {
     throw io::InputError(file, 0, "fit.log_space", std::string("malformed: ") + e.what());
   }
+  r = material_only(r);
   for (std::size_t i = 0; i < r.names.size(); ++i) {
     const double v = std::exp(r.estimate[Eigen::Index(i)]);
     if (r.names[i] == "yield_stress") r.material.yield_stress = v;
     else if (r.names[i] == "flow_index") r.material.flow_index = v;
     else r.material.consistency = v;
   }
-  r.time_origins = {0.0};
   return r;
 }
 

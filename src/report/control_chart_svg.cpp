@@ -25,9 +25,9 @@ constexpr double label_font = 11;
 constexpr double label_slant = 40;         // degrees
 constexpr std::size_t longest_label = 24;  // characters shown of a batch id
 
-constexpr const char* ink = "#1b1f24";
-constexpr const char* muted = "#59606a";
-constexpr const char* frame = "#9aa1a9";
+using svg::frame;
+using svg::ink;
+using svg::muted;
 constexpr const char* line_colour = "#7a8594";
 constexpr const char* normal_colour = "#1f4e9c";
 constexpr const char* beyond_colour = "#c62828";

@@ -30,9 +30,9 @@ constexpr double badge_width = 104;
 constexpr int dense_points = 81;  // fitted curve: times from 0 to the last reading
 constexpr int band_draws = 200;   // parameter draws for the 95% band
 
-constexpr const char* ink = "#1b1f24";
-constexpr const char* muted = "#59606a";
-constexpr const char* frame = "#9aa1a9";
+using svg::frame;
+using svg::ink;
+using svg::muted;
 constexpr const char* alarm = "#b3261e";
 constexpr const char* good = "#1e7b34";
 constexpr const char* amber = "#8a5300";

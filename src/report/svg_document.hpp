@@ -109,6 +109,11 @@ void marker(Document& doc, Shape shape, double x, double y, double size, const A
 double text_box(Document& doc, std::string_view text, double x, double y, double width, double font_size,
                 std::string_view fill, std::string_view stroke, std::string_view ink);
 
+/// Colours every report shares: text, secondary text, plot frames.
+inline constexpr const char* ink = "#1b1f24";
+inline constexpr const char* muted = "#59606a";
+inline constexpr const char* frame = "#9aa1a9";
+
 /// The foot every report shares: the caution box across the page at `y`, the software name and version under it,
 /// then the finished document.
 std::string finish_with_caution(Document& doc, std::string_view caution, double y, double page_width,

@@ -17,19 +17,8 @@ struct Check {
 };
 
 Check predict_channel(const FitResult& fit, const Material& truth, const std::vector<double>& times) {
-  FitResult material = fit;  // the plate's release time does not carry over: predict from the channel's release
-  std::vector<int> keep;
-  for (std::size_t i = 0; i < fit.names.size(); ++i)
-    if (fit.names[i] != "time_origin") keep.push_back(int(i));
-  material.names.clear();
-  material.estimate.resize(Eigen::Index(keep.size()));
-  material.covariance.resize(Eigen::Index(keep.size()), Eigen::Index(keep.size()));
-  for (std::size_t a = 0; a < keep.size(); ++a) {
-    material.names.push_back(fit.names[std::size_t(keep[a])]);
-    material.estimate[Eigen::Index(a)] = fit.estimate[keep[a]];
-    for (std::size_t b = 0; b < keep.size(); ++b)
-      material.covariance(Eigen::Index(a), Eigen::Index(b)) = fit.covariance(keep[a], keep[b]);
-  }
+  // The plate's release time does not carry over: predict from the channel's release.
+  const FitResult material = material_only(fit);
   const PredictionBand band = prediction_band(material, channel_setup(), times, 0, 200);
   REQUIRE(band.ok);
   const std::vector<double> exact = predict_readings(channel_setup(), truth, times).readings;
