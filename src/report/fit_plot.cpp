@@ -156,32 +156,6 @@ void verdict_badge(Document& doc, const Verdict& verdict, double y) {
   }
 }
 
-// Time axis ticks and labels under a panel whose bottom edge is at `bottom`.
-void time_ticks(Document& doc, const LinearScale& t, double bottom) {
-  for (double v : t.ticks()) {
-    const double x = t(v);
-    doc.add("line", {{"x1", x}, {"y1", bottom}, {"x2", x}, {"y2", bottom + 4}, {"stroke", frame}});
-    doc.add_text("text",
-                 {{"x", x}, {"y", bottom + 17}, {"font-size", 11.0}, {"fill", "#3b4048"}, {"text-anchor", "middle"}},
-                 t.tick_label(v));
-  }
-}
-
-void vertical_grid(Document& doc, const LinearScale& t, double top, double bottom) {
-  for (double v : t.ticks())
-    doc.add("line", {{"x1", t(v)}, {"y1", top}, {"x2", t(v)}, {"y2", bottom}, {"stroke", "#eef0f2"}});
-}
-
-void panel_frame(Document& doc, double top, double bottom) {
-  doc.add("rect", {{"x", plot_left},
-                   {"y", top},
-                   {"width", plot_right - plot_left},
-                   {"height", bottom - top},
-                   {"fill", "none"},
-                   {"stroke", frame},
-                   {"stroke-width", 1.0}});
-}
-
 }  // namespace
 
 std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>& series) {
@@ -360,7 +334,7 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
     const double pad = 0.04 * (hi - lo);
     // Readings are lengths: no axis below zero unless the band itself goes there.
     const LinearScale value(lo >= 0 ? std::max(lo - pad, 0.0) : lo - pad, hi + pad, bottom, top, 6);
-    vertical_grid(doc, time, top, bottom);
+    svg::vertical_grid(doc, time, top, bottom);
     svg::y_axis(doc, value, plot_left, plot_right, fmt::format("{} [{}]", reading_name(p.reading), p.unit));
     for (std::size_t k : p.views) {  // bands first, under everything else
       const View& v = views[k];
@@ -409,8 +383,8 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
                     {{"class", "reading"}, {"fill", "#ffffff"}, {"stroke", v.look.colour}, {"stroke-width", 1.6}}, tip);
       }
     }
-    panel_frame(doc, top, bottom);
-    time_ticks(doc, time, bottom);
+    svg::plot_frame(doc, plot_left, top, plot_right, bottom);
+    svg::x_ticks(doc, time, bottom);
     y = bottom + 30;
     if (pi + 1 == panels.size() && !r) {  // the residual panel carries the time axis name when there is one
       doc.add_text("text",
@@ -450,7 +424,7 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
       }
     if (!(extent > 0)) extent = 1;
     const LinearScale res(-1.1 * extent, 1.1 * extent, bottom, top, 4);
-    vertical_grid(doc, time, top, bottom);
+    svg::vertical_grid(doc, time, top, bottom);
     svg::y_axis(doc, res, plot_left, plot_right, "reading \u2212 fit [mm]");
     doc.add("line", {{"x1", plot_left},
                      {"y1", res(0)},
@@ -479,8 +453,8 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
                     {{"class", "residual"}, {"fill", v.look.colour}, {"stroke", v.look.colour}},
                     fmt::format("{}: t = {:.4g} s, residual {:.3g} mm", v.name, v.series->times[i], e));
       }
-    panel_frame(doc, top, bottom);
-    time_ticks(doc, time, bottom);
+    svg::plot_frame(doc, plot_left, top, plot_right, bottom);
+    svg::x_ticks(doc, time, bottom);
     doc.add_text("text",
                  {{"x", 0.5 * (plot_left + plot_right)},
                   {"y", bottom + 36},

@@ -6,6 +6,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <initializer_list>
 #include <stdexcept>
 
 namespace spreadfit::svg {
@@ -223,6 +224,49 @@ std::string LinearScale::tick_label(double value) const {
   return number(value, decimals);
 }
 
+LogScale::LogScale(double lo, double hi, double pixel_lo, double pixel_hi, int target_ticks)
+    : pixel_lo_(pixel_lo), pixel_hi_(pixel_hi) {
+  if (!std::isfinite(lo) || !std::isfinite(hi) || !(lo > 0) || !(hi > 0)) lo = 1, hi = 10;
+  if (hi < lo) std::swap(lo, hi);
+  if (hi <= lo * (1 + 1e-12)) lo /= 1.1, hi *= 1.1;
+  lo_ = lo;
+  hi_ = hi;
+  target_ticks = std::max(target_ticks, 2);
+  const auto inside = [&](double v) { return v >= lo * (1 - 1e-9) && v <= hi * (1 + 1e-9); };
+  // m x 10^e as the nearest double to the decimal (dividing by an exact power of ten for e < 0).
+  const auto decimal = [](double m, int e) { return e >= 0 ? m * std::pow(10.0, e) : m / std::pow(10.0, -e); };
+  const auto decade_ticks = [&](std::initializer_list<double> mantissas) {
+    std::vector<double> t;
+    const int first = int(std::floor(std::log10(lo))) - 1, last = int(std::ceil(std::log10(hi))) + 1;
+    for (int e = first; e <= last; ++e)
+      for (double m : mantissas)
+        if (inside(decimal(m, e))) t.push_back(decimal(m, e));
+    return t;
+  };
+  ticks_ = decade_ticks({1.0});
+  if (int(ticks_.size()) >= target_ticks) return;
+  ticks_ = decade_ticks({1.0, 2.0, 5.0});
+  if (ticks_.size() >= 3) return;
+  ticks_.clear();
+  const LinearScale linear(lo, hi, 0, 1, 4);
+  for (double t : linear.ticks())
+    if (inside(t)) ticks_.push_back(t);
+}
+
+double LogScale::operator()(double value) const {
+  return pixel_lo_ + std::log(value / lo_) / std::log(hi_ / lo_) * (pixel_hi_ - pixel_lo_);
+}
+
+std::string LogScale::tick_label(double value) const {
+  // The fewest decimals that write the value exactly to 9 significant digits.
+  for (int decimals = 0; decimals < 12; ++decimals) {
+    const double shifted = value * std::pow(10.0, decimals);
+    if (std::abs(shifted - std::round(shifted)) <= 1e-9 * std::max(1.0, std::abs(shifted)))
+      return number(value, decimals);
+  }
+  return number(value, 12);
+}
+
 void y_axis(Document& doc, const LinearScale& y, double x_left, double x_right, std::string_view name) {
   for (double t : y.ticks()) {
     const double py = y(t);
@@ -244,6 +288,31 @@ void y_axis(Document& doc, const LinearScale& y, double x_left, double x_right, 
                 {"fill", "#1b1f24"},
                 {"transform", "rotate(-90 " + number(x) + " " + number(middle) + ")"}},
                name);
+}
+
+void x_ticks(Document& doc, const LinearScale& x, double bottom) {
+  for (double v : x.ticks()) {
+    const double px = x(v);
+    doc.add("line", {{"x1", px}, {"y1", bottom}, {"x2", px}, {"y2", bottom + 4}, {"stroke", frame}});
+    doc.add_text("text",
+                 {{"x", px}, {"y", bottom + 17}, {"font-size", 11.0}, {"fill", "#3b4048"}, {"text-anchor", "middle"}},
+                 x.tick_label(v));
+  }
+}
+
+void vertical_grid(Document& doc, const LinearScale& x, double top, double bottom) {
+  for (double v : x.ticks())
+    doc.add("line", {{"x1", x(v)}, {"y1", top}, {"x2", x(v)}, {"y2", bottom}, {"stroke", "#eef0f2"}});
+}
+
+void plot_frame(Document& doc, double left, double top, double right, double bottom) {
+  doc.add("rect", {{"x", left},
+                   {"y", top},
+                   {"width", right - left},
+                   {"height", bottom - top},
+                   {"fill", "none"},
+                   {"stroke", frame},
+                   {"stroke-width", 1.0}});
 }
 
 void marker(Document& doc, Shape shape, double x, double y, double size, const Attributes& attributes,

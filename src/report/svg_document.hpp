@@ -91,9 +91,41 @@ class LinearScale {
   std::vector<double> ticks_;
 };
 
+/// A logarithmic map from positive data values to pixels over exactly [lo, hi] (not widened: a contour map's
+/// plot area is its grid), with ticks at 1, 2 and 5 times powers of ten inside the range, or at powers of ten only
+/// when those alone give `target_ticks` or more. A range too narrow for three such ticks (less than about a factor
+/// of 2.5) gets the round linear ticks of LinearScale inside it instead. A non-positive or non-finite end gives
+/// the range [1, 10]; a zero-width range is widened by 10% each way.
+class LogScale {
+ public:
+  LogScale(double lo, double hi, double pixel_lo, double pixel_hi, int target_ticks = 6);
+
+  /// Pixel of a positive value (values outside [lo, hi] extrapolate).
+  double operator()(double value) const;
+  const std::vector<double>& ticks() const { return ticks_; }
+  double lo() const { return lo_; }
+  double hi() const { return hi_; }
+  /// A tick value as a plain number, never with an exponent: 0.002, 0.5, 20, 5000.
+  std::string tick_label(double value) const;
+
+ private:
+  double lo_ = 1, hi_ = 10, pixel_lo_ = 0, pixel_hi_ = 1;
+  std::vector<double> ticks_;
+};
+
 /// Horizontal grid lines and labelled ticks of a y axis on the plot area [x_left, x_right] x [scale range], and
 /// the axis name rotated along the left edge. Ticks are labelled with LinearScale::tick_label.
 void y_axis(Document& doc, const LinearScale& y, double x_left, double x_right, std::string_view name);
+
+/// Tick marks and labels of an x axis under a plot area whose bottom edge is at `bottom`, labelled with
+/// LinearScale::tick_label.
+void x_ticks(Document& doc, const LinearScale& x, double bottom);
+
+/// Light vertical grid lines at the x ticks, from `top` to `bottom`.
+void vertical_grid(Document& doc, const LinearScale& x, double top, double bottom);
+
+/// The outline of a plot area.
+void plot_frame(Document& doc, double left, double top, double right, double bottom);
 
 /// Marker shapes for scatter points: distinct in outline as well as colour, for readers who do not tell colours apart.
 enum class Shape { Circle, Square, Triangle, Diamond };
