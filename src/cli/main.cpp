@@ -129,10 +129,14 @@ int run(int argc, char** argv) {
           ->type_name("T1,T2,...");
   predict->add_option("--samples", predict_options.samples, "Parameter draws for the band (default 200; 0: no band)")
       ->type_name("N");
+  std::string predict_plot;
+  CLI::Option* predict_plot_option =
+      predict->add_option("--plot", predict_plot, "Also write the prediction as an SVG report")->type_name("FILE.svg");
 
   // --- translate ---------------------------------------------------------------------------------------------
   CLI::App* translate = app.add_subcommand(
-      "translate", "Turn parameter limits into reading limits on a rig at a time (forward model over a grid).");
+      "translate",
+      "Turn parameter limits into reading limits on a rig at a time, or reading limits into parameter limits.");
   spreadfit::cli::TranslateCommandOptions translate_options;
   std::string translate_test;
   translate->add_option("TEST.toml", translate_test, "Test description of the rig (readings optional)")
@@ -149,6 +153,20 @@ int run(int argc, char** argv) {
   translate->add_option("--at", translate_options.at, "Reading time, in s or with a unit")->required()->type_name("T");
   translate->add_option("--points", translate_options.points, "Grid points per varied parameter (default 5)")
       ->type_name("N");
+  std::string translate_between, translate_solve, translate_map;
+  CLI::Option* translate_between_option =
+      translate->add_option("--between", translate_between,
+                            "Reading limits, e.g. \"5.5 cm:8 cm\": solve for parameter limits instead")
+          ->type_name("LOW:HIGH");
+  CLI::Option* translate_solve_option =
+      translate
+          ->add_option("--solve", translate_solve, "With --between: the parameter to solve for (default: first --vary)")
+          ->type_name("PARAM");
+  CLI::Option* translate_map_option =
+      translate->add_option("--map", translate_map, "Also write an SVG map of the reading over the first two --vary")
+          ->type_name("FILE.svg");
+  translate->add_option("--map-points", translate_options.map_points, "Map grid points per axis (default 21)")
+      ->type_name("M");
 
   // --- plan --------------------------------------------------------------------------------------------------
   CLI::App* plan = app.add_subcommand(
@@ -159,7 +177,20 @@ int run(int argc, char** argv) {
       ->required()
       ->type_name("");
   plan->add_option("--model", plan_options.model, std::string("Model: ") + kModelHelp)->required()->type_name("NAME");
-  plan->add_option("--set", plan_options.set, "PARAM=VALUE of the guessed material")->type_name("PARAM=VALUE");
+  plan->add_option("--set", plan_options.set, "PARAM=VALUE of the guessed material (the parameters not varied)")
+      ->type_name("PARAM=VALUE");
+  plan->add_option("--vary", plan_options.vary,
+                   "PARAM=LOW:HIGH, a range of the guess, e.g. yield_stress=\"10 Pa:40 Pa\"; candidates are judged by "
+                   "their worst case over the guesses")
+      ->type_name("PARAM=LOW:HIGH");
+  plan->add_option_function<int>(
+          "--points", [&plan_options](const int& n) { plan_options.points = n; },
+          "Guesses per varied parameter (default 3; log-spaced except the flow index)")
+      ->type_name("N");
+  plan->add_option("--check", plan_options.check,
+                   "Refit N simulated reading sets of the recommended test and the runner-up at the middle guess "
+                   "(default 0: no check)")
+      ->type_name("N");
   plan->add_option("--every", plan_options.every, "Reading interval for candidates without readings (default 5 s)")
       ->type_name("DT");
   plan->add_option("--until", plan_options.until, "Duration for candidates without readings (default 120 s)")
@@ -188,12 +219,16 @@ int run(int argc, char** argv) {
   }
   if (translate->parsed()) {
     translate_options.test = translate_test;
+    if (translate_between_option->count() > 0) translate_options.between = translate_between;
+    if (translate_solve_option->count() > 0) translate_options.solve = translate_solve;
+    if (translate_map_option->count() > 0) translate_options.map = translate_map;
     return spreadfit::cli::run_translate_command(translate_options, std::cout, std::cerr);
   }
   if (predict->parsed()) {
     predict_options.result = predict_result;
     predict_options.rig = predict_rig;
     if (predict_times_option->count() > 0) predict_options.times = predict_times;
+    if (predict_plot_option->count() > 0) predict_options.plot = predict_plot;
     return spreadfit::cli::run_predict_command(predict_options, std::cout, std::cerr);
   }
   if (history->parsed())

@@ -1,83 +1,333 @@
 #include "src/cli/plan_command.hpp"
 
-#include <cmath>
 #include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
 #include <limits>
+#include <numbers>
+#include <utility>
+#include <variant>
 
 #include "src/cli/exit_codes.hpp"
+#include "src/cli/parameter_ranges.hpp"
 #include "src/cli/simulate_command.hpp"
+#include "src/fit/design_check.hpp"
 #include "src/fit/test_design.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/test_description.hpp"
 
 namespace spreadfit::cli {
 
+namespace {
+
+constexpr double default_sigma = 1e-3;  // a ruler read to the millimetre (common practice, no source)
+constexpr int max_check = 1000;         // refits per candidate: a bound on the check's run time
+
+/// One candidate test as planned: what it is and how it scores over the guesses.
+struct Candidate {
+  std::string name;
+  TestSetup setup;
+  std::vector<double> times;
+  double sigma = default_sigma;
+  WorstCaseEstimate estimate;
+};
+
+/// --every or --until as one time; parse_times names "--times", so its complaint is relocated to `option`.
+double one_time(const std::string& text, const std::string& option) {
+  std::vector<double> t;
+  try {
+    t = parse_times(text);
+  } catch (const io::InputError& e) {
+    throw io::InputError(std::string(command_line_source), 0, option, e.message());
+  }
+  if (t.size() != 1) throw io::InputError(std::string(command_line_source), 0, option, "expected one time");
+  return t.front();
+}
+
+/// The sample volume a rig holds [m^3] (the slump cylinder's from its size).
+double fill_volume(const Rig& rig) {
+  if (const auto* c = std::get_if<ChannelRig>(&rig)) return c->volume;
+  if (const auto* p = std::get_if<PlateRig>(&rig)) return p->volume;
+  if (const auto* s = std::get_if<SqueezeRig>(&rig)) return s->volume;
+  const auto& slump = std::get<SlumpRig>(rig);
+  return std::numbers::pi * slump.radius * slump.radius * slump.height;
+}
+
+std::string ratio_text(double r) {
+  return r < undetermined_ratio ? fmt::format("{:.3g}x", r) : std::string("undetermined");
+}
+
+/// A ratio in the check's table: four digits, since the two columns are compared by their logarithms; "-" when
+/// too few refits converged for a spread.
+std::string check_text(double r) {
+  if (std::isnan(r)) return "-";
+  return r < undetermined_ratio ? fmt::format("{:.4g}x", r) : std::string("undetermined");
+}
+
+/// A guess named by its varied values in SI, "20/5" (the header says which parameters, in which order).
+std::string guess_label(const Material& m, const std::vector<ParameterRange>& ranges) {
+  std::string out;
+  for (const ParameterRange& r : ranges) {
+    const double v = r.name == "yield_stress" ? m.yield_stress : r.name == "flow_index" ? m.flow_index : m.consistency;
+    out += fmt::format("{}{:.3g}", out.empty() ? "" : "/", v);
+  }
+  return out;
+}
+
+/// "yield_stress=20 viscosity=5": the guess in SI, for sentences.
+std::string guess_words(const Material& m, const std::vector<std::string>& names) {
+  std::string out;
+  for (const std::string& n : names) {
+    const double v = n == "yield_stress" ? m.yield_stress : n == "flow_index" ? m.flow_index : m.consistency;
+    out += fmt::format("{}{}={:.3g}", out.empty() ? "" : " ", n, v);
+  }
+  return out;
+}
+
+/// How often the guessed material stops before the last reading: "yes"/"no" for one guess, "k/G" for several.
+std::string stopped_text(const WorstCaseEstimate& e) {
+  if (e.guesses.size() == 1) return e.stopped > 0 ? "yes" : "no";
+  return fmt::format("{}/{}", e.stopped, e.guesses.size());
+}
+
+/// The spacing of evenly spaced times [s] (from the release, so the first reading is one interval in), else 0.
+double uniform_interval(const std::vector<double>& t) {
+  const double step = t.front();
+  for (std::size_t i = 1; i < t.size(); ++i)
+    if (std::abs(t[i] - t[i - 1] - step) > 1e-6 * step) return 0;
+  return step;
+}
+
+/// Two ratios, with enough digits to tell them apart (up to six).
+std::pair<std::string, std::string> ratio_pair(double a, double b) {
+  if (!(a < undetermined_ratio) || !(b < undetermined_ratio)) return {ratio_text(a), ratio_text(b)};
+  for (int digits = 3; digits < 6; ++digits) {
+    const std::string x = fmt::format("{:.{}g}x", a, digits), y = fmt::format("{:.{}g}x", b, digits);
+    if (x != y) return {x, y};
+  }
+  return {fmt::format("{:.6g}x", a), fmt::format("{:.6g}x", b)};
+}
+
+/// The ways `a` differs from `b` as a test (rig, fill, duration, reading count, resolution), in words.
+std::vector<std::string> differences(const Candidate& a, const Candidate& b) {
+  std::vector<std::string> out;
+  const std::string_view ka = io::rig_kind_name(a.setup.rig), kb = io::rig_kind_name(b.setup.rig);
+  if (ka != kb) out.push_back(fmt::format("rig {} vs {}", ka, kb));
+  const double va = fill_volume(a.setup.rig), vb = fill_volume(b.setup.rig);
+  if (std::abs(va - vb) > 1e-9 * std::max(va, vb))
+    out.push_back(fmt::format("fill {:.3g} mL vs {:.3g} mL", va * 1e6, vb * 1e6));  // 1 m^3 = 1e6 mL (SI)
+  if (a.times.back() != b.times.back())
+    out.push_back(fmt::format("duration {:.4g} s vs {:.4g} s", a.times.back(), b.times.back()));
+  const double ia = uniform_interval(a.times), ib = uniform_interval(b.times);
+  if (ia > 0 && ib > 0 && std::abs(ia - ib) > 1e-9 * std::max(ia, ib))
+    out.push_back(fmt::format("reading interval {:.4g} s vs {:.4g} s", ia, ib));
+  else if (a.times.front() != b.times.front())
+    out.push_back(fmt::format("first reading {:.4g} s vs {:.4g} s", a.times.front(), b.times.front()));
+  if (a.times.size() != b.times.size()) out.push_back(fmt::format("{} vs {} readings", a.times.size(), b.times.size()));
+  if (a.sigma != b.sigma) out.push_back(fmt::format("resolution {:.3g} mm vs {:.3g} mm", a.sigma * 1e3, b.sigma * 1e3));
+  return out;
+}
+
+/// Ranking of two candidates that both solved: fewer undetermined parameters first, then the lower score over
+/// the determined ones (for candidates that determine everything, design_score itself).
+bool ranks_before(const WorstCaseEstimate& a, const WorstCaseEstimate& b) {
+  const auto key = [](const WorstCaseEstimate& e) {
+    std::vector<double> determined;
+    for (double r : e.worst_ratio)
+      if (r < undetermined_ratio) determined.push_back(r);
+    return std::pair{e.worst_ratio.size() - determined.size(), design_score(determined)};
+  };
+  return key(a) < key(b);
+}
+
+std::string join(const std::vector<std::string>& parts, std::string_view sep) {
+  std::string out;
+  for (const std::string& p : parts) out += (out.empty() ? "" : std::string(sep)) + p;
+  return out;
+}
+
+}  // namespace
+
 int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::ostream& err) {
   const std::string where(command_line_source);
   const Law law = parse_simulation_model(options.model);
-  const SimulationParameters guess = parse_simulation_parameters(law, options.set);
-  const std::vector<double> every = parse_times(options.every), until = parse_times(options.until);
-  if (every.size() != 1 || until.size() != 1 || !(every[0] > 0) || until[0] < every[0])
+  if (options.points && options.vary.empty())
+    throw io::InputError(where, 0, "--points", "given without --vary (expected --vary PARAM=LOW:HIGH to set a range)");
+  const int points = options.points.value_or(3);
+  check_grid_points(points, "--points");
+  if (options.check < 0 || options.check > max_check)
+    throw io::InputError(where, 0, "--check", fmt::format("{} refits (expected 0 to {})", options.check, max_check));
+  const std::vector<ParameterRange> ranges = parse_parameter_ranges(law, options.set, options.vary);
+  const SimulationParameters base = range_base(law, options.set, ranges);
+  const double every = one_time(options.every, "--every"), until = one_time(options.until, "--until");
+  if (!(every > 0) || until < every)
     throw io::InputError(where, 0, "--every/--until", "expected one interval > 0 and a duration at least as long");
   if (options.candidates.empty()) throw io::InputError(where, 0, "CANDIDATE.toml", "expected at least one");
-  constexpr double default_sigma = 1e-3;  // a ruler read to the millimetre (common practice, no source)
 
-  struct Row {
-    std::string name;
-    DesignEstimate estimate;
-    double score = std::numeric_limits<double>::infinity();
-  };
-  std::vector<Row> rows;
+  const std::vector<GridPoint> grid = parameter_grid(base.material, ranges, points);
+  std::vector<Material> guesses;
+  for (const GridPoint& g : grid) guesses.push_back(g.material);
+  const bool range = !ranges.empty();
+
+  std::vector<Candidate> rows;
   for (const auto& path : options.candidates) {
     const io::TestDescription test = io::load_test_description(path);
-    TestSetup setup = test.setup;
-    std::vector<double> times;
+    Candidate c{path.filename().string(), test.setup, {}, test.resolution.value_or(default_sigma), {}};
     if (!test.series.empty()) {
-      setup.reading = test.series.front().kind;
-      times = test.series.front().times;
+      c.setup.reading = test.series.front().kind;
+      c.times = test.series.front().times;
     } else {
-      for (double t = every[0]; t <= until[0] + 1e-9; t += every[0]) times.push_back(t);
+      // Bounded by until/every readings (both checked above).
+      for (double t = every; t <= until + 1e-9; t += every) c.times.push_back(t);
     }
-    Row row{path.filename().string(),
-            expected_intervals(setup, law, guess.material, times, test.resolution.value_or(default_sigma)), 0.0};
-    // Score: geometric mean of the interval ratios' logs (a design good for every parameter).
-    double sum = 0;
-    for (double ratio : row.estimate.interval_ratio) sum += std::log(ratio);
-    row.score = row.estimate.ok ? sum / double(row.estimate.interval_ratio.size())
-                                : std::numeric_limits<double>::infinity();
-    rows.push_back(std::move(row));
+    c.estimate = worst_case_intervals(c.setup, law, guesses, c.times, c.sigma);
+    rows.push_back(std::move(c));
   }
-  out << fmt::format("Expected 95% intervals (upper/lower) for {} with", law_name(law));
-  for (const auto& s : options.set) out << " " << s;
-  out << "\n";
+
+  // The table.
+  const std::vector<std::string>& names = rows.front().estimate.names;
+  if (range) {
+    std::string over;
+    for (const ParameterRange& r : ranges)
+      over += fmt::format("{}{} {}..{}", over.empty() ? "" : ", ", r.name, r.low, r.high);
+    std::string order;
+    for (const ParameterRange& r : ranges) order += (order.empty() ? "" : "/") + r.name;
+    out << fmt::format("Expected 95% intervals (upper/lower) for {}, worst case over {} guesses ({} points each): {}",
+                       law_name(law), guesses.size(), points, over);
+    for (const auto& s : options.set) out << " " << s;
+    out << fmt::format(
+        "\n  (@ the worst guess as {} in SI units; stopped: guesses whose reading at 10x the duration is "
+        "within the resolution of the last)\n",
+        order);
+  } else {
+    out << fmt::format("Expected 95% intervals (upper/lower) for {} with", law_name(law));
+    for (const auto& s : options.set) out << " " << s;
+    out << "\n  (stopped: the reading at 10x the duration is within the resolution of the last)\n";
+  }
+  const int width = range ? 24 : 16;
   out << fmt::format("  {:<24}", "candidate");
-  for (const auto& n : rows.front().estimate.names) out << fmt::format(" {:>16}", n);
-  out << "\n";
-  std::size_t best = 0;
+  for (const auto& n : names) out << fmt::format(" {:>{}}", n, width);
+  out << fmt::format(" {:>8}\n", "stopped");
+  std::size_t best = rows.size();
   for (std::size_t i = 0; i < rows.size(); ++i) {
+    const WorstCaseEstimate& e = rows[i].estimate;
     out << fmt::format("  {:<24}", rows[i].name);
-    if (!rows[i].estimate.ok) {
-      out << " forward model failed\n";
+    if (!e.ok()) {
+      const DesignEstimate& failed = e.guesses[e.first_failure];
+      out << (range ? fmt::format(" forward model failed for {} of {} guesses, first at {} ({})\n", e.failed,
+                                  e.guesses.size(), guess_words(guesses[e.first_failure], names), failed.message)
+                    : fmt::format(" forward model failed ({})\n", failed.message));
       continue;
     }
-    for (double r : rows[i].estimate.interval_ratio)
-      out << (std::isfinite(r) && r < 1e6 ? fmt::format(" {:>15.3g}x", r) : fmt::format(" {:>16}", "undetermined"));
-    out << "\n";
-    if (rows[i].score < rows[best].score) best = i;
+    for (std::size_t p = 0; p < e.worst_ratio.size(); ++p) {
+      const std::string cell = ratio_text(e.worst_ratio[p]);
+      out << fmt::format(" {:>{}}", range ? cell + " @" + guess_label(guesses[e.worst_guess[p]], ranges) : cell, width);
+    }
+    out << fmt::format(" {:>8}\n", stopped_text(e));
+    if (best == rows.size() || ranks_before(e, rows[best].estimate)) best = i;
   }
-  if (!std::isfinite(rows[best].score)) {
-    err << "spreadfit: no candidate determines every parameter of this law; no recommendation\n";
+  if (best == rows.size() || !std::isfinite(rows[best].estimate.score())) {
+    err << "spreadfit: no candidate determines every parameter of this law" << (range ? " at every guess" : "")
+        << " (see the table); no recommendation\n";
     return to_int(ExitCode::NumericalFailure);
   }
-  // Which parameter limits the recommended test, in words.
-  const auto& e = rows[best].estimate;
-  std::size_t worst = 0;
-  for (std::size_t i = 1; i < e.interval_ratio.size(); ++i)
-    if (e.interval_ratio[i] > e.interval_ratio[worst]) worst = i;
-  out << fmt::format("recommended: {} (narrowest intervals overall; its widest is the {}, a factor {:.3g})\n",
-                     rows[best].name, e.names[worst], e.interval_ratio[worst]);
-  if (e.names[worst] == "yield_stress")
+
+  // The recommendation and its reasons, each from the numbers above.
+  const Candidate& b = rows[best];
+  const WorstCaseEstimate& e = b.estimate;
+  std::size_t limiting = 0;
+  for (std::size_t i = 1; i < e.worst_ratio.size(); ++i)
+    if (e.worst_ratio[i] > e.worst_ratio[limiting]) limiting = i;
+  if (range)
+    out << fmt::format(
+        "recommended: {} (narrowest worst-case intervals overall; its widest is the {}, a factor {:.3g} "
+        "at {})\n",
+        b.name, names[limiting], e.worst_ratio[limiting], guess_words(guesses[e.worst_guess[limiting]], names));
+  else
+    out << fmt::format("recommended: {} (narrowest intervals overall; its widest is the {}, a factor {:.3g})\n", b.name,
+                       names[limiting], e.worst_ratio[limiting]);
+  if (names[limiting] == "yield_stress")
     out << "  the yield stress shows in the approach to arrest: readings should continue until the sample stops\n";
+
+  // Whether the guessed material stops within each test.
+  if (range) {
+    std::string others;
+    for (std::size_t i = 0; i < rows.size(); ++i)
+      if (i != best && rows[i].estimate.ok())
+        others += fmt::format("{}{} on {}", others.empty() ? "" : ", ", stopped_text(rows[i].estimate), rows[i].name);
+    out << fmt::format("  the sample stops within the test for {} guesses on {}{}\n", stopped_text(e), b.name,
+                       others.empty() ? std::string() : " (" + others + ")");
+  } else {
+    std::vector<std::string> alike, unlike;
+    for (std::size_t i = 0; i < rows.size(); ++i)
+      if (i != best && rows[i].estimate.ok())
+        ((rows[i].estimate.stopped > 0) == (e.stopped > 0) ? alike : unlike).push_back(rows[i].name);
+    out << fmt::format("  the sample {} on {}",
+                       e.stopped > 0 ? "stops within the test" : "is still moving at the end of the test", b.name);
+    if (!alike.empty()) out << ", as on " << join(alike, ", ");
+    if (!unlike.empty())
+      out << (e.stopped > 0 ? "; it is still moving at the end on " : "; it stops within the test on ")
+          << join(unlike, ", ");
+    out << "\n";
+  }
+
+  // Over a range: at the guess where the yield stress is worst resolved, whether the sample had stopped (for one
+  // guess the sentence above says it).
+  if (range)
+    for (std::size_t p = 0; p < names.size(); ++p)
+      if (names[p] == "yield_stress" && !e.guesses[e.worst_guess[p]].stopped)
+        out << fmt::format(
+            "  at {}, its widest yield-stress case, the sample is still moving at the end of {}, which leaves the "
+            "yield stress at {}\n",
+            guess_words(guesses[e.worst_guess[p]], names), b.name, ratio_text(e.worst_ratio[p]));
+
+  // Against the runner-up: where it is narrower and how the tests differ.
+  std::size_t second = rows.size();
+  for (std::size_t i = 0; i < rows.size(); ++i)
+    if (i != best && rows[i].estimate.ok() &&
+        (second == rows.size() || ranks_before(rows[i].estimate, rows[second].estimate)))
+      second = i;
+  if (second < rows.size()) {
+    const Candidate& r = rows[second];
+    std::vector<std::string> narrower;
+    for (std::size_t p = 0; p < names.size(); ++p)
+      if (e.worst_ratio[p] < r.estimate.worst_ratio[p]) {
+        const auto [mine, theirs] = ratio_pair(e.worst_ratio[p], r.estimate.worst_ratio[p]);
+        narrower.push_back(fmt::format("{} ({} vs {})", names[p], mine, theirs));
+      }
+    const std::vector<std::string> diff = differences(b, r);
+    out << fmt::format("  against the runner-up {}: narrower for {}", r.name,
+                       narrower.empty() ? std::string("no single parameter") : join(narrower, ", "));
+    out << (diff.empty() ? std::string("; the two tests are set up alike")
+                         : "; the tests differ in " + join(diff, ", "))
+        << "\n";
+  }
+
+  // The Monte Carlo check at the middle of the ranges.
+  if (options.check > 0) {
+    Material middle = base.material;
+    for (const ParameterRange& r : ranges) middle = with_parameter(middle, r.name, range_value(r, 0.5));
+    constexpr unsigned first_seed = 1000;
+    out << fmt::format(
+        "check: {} simulated reading sets per candidate at {} (noise of the resolution, seeds {}-{}), "
+        "refitted with {}\n",
+        options.check, guess_words(middle, names), first_seed, first_seed + unsigned(options.check) - 1, law_name(law));
+    out << fmt::format("  {:<24} {:<16} {:>12} {:>12} {:>10}\n", "candidate", "parameter", "planned", "refits",
+                       "converged");
+    for (std::size_t i : {best, second}) {
+      if (i >= rows.size()) continue;
+      const Candidate& c = rows[i];
+      const DesignCheck k = check_design(c.setup, law, middle, c.times, c.sigma, options.check, first_seed);
+      if (k.planned_ratio.empty()) {
+        out << fmt::format("  {:<24} forward model failed at this guess ({})\n", c.name, k.message);
+        continue;
+      }
+      for (std::size_t p = 0; p < k.names.size(); ++p)
+        out << fmt::format("  {:<24} {:<16} {:>12} {:>12} {:>10}\n", c.name, k.names[p], check_text(k.planned_ratio[p]),
+                           check_text(k.empirical_ratio[p]), fmt::format("{}/{}", k.converged, k.replicates));
+    }
+  }
   return to_int(ExitCode::Done);
 }
 

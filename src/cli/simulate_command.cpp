@@ -55,19 +55,6 @@ std::string_view trim(std::string_view s) {
   return s;
 }
 
-/// A number in SI units, or a quantity with a unit; checked against `range`. Throws io::UnitError.
-double parse_value(std::string_view text, Dimension dimension, Range range) {
-  double value = 0;
-  try {
-    value = io::parse_number(text);
-  } catch (const io::UnitError&) {
-    // Not a bare number: a quantity with a unit, whose parser explains what is wrong.
-    return io::parse_quantity(text, dimension, range);
-  }
-  io::check_range(value, dimension, range, trim(text));
-  return value;
-}
-
 /// The parameters `law` takes on the command line: its own, then time_origin.
 std::vector<std::string_view> accepted_parameters(const std::vector<std::string>& own) {
   std::vector<std::string_view> names(own.begin(), own.end());
@@ -87,6 +74,18 @@ std::string takes_text(const std::vector<std::string>& own) {
 }
 
 }  // namespace
+
+double parse_value(std::string_view text, Dimension dimension, Range range) {
+  double value = 0;
+  try {
+    value = io::parse_number(text);
+  } catch (const io::UnitError&) {
+    // Not a bare number: a quantity with a unit, whose parser explains what is wrong.
+    return io::parse_quantity(text, dimension, range);
+  }
+  io::check_range(value, dimension, range, trim(text));
+  return value;
+}
 
 Law parse_simulation_model(std::string_view name) {
   std::vector<std::string_view> names;

@@ -32,6 +32,7 @@
 #include "models/rheology.hpp"
 #include "models/rig.hpp"
 #include "src/io/test_description.hpp"
+#include "src/io/units.hpp"
 
 namespace spreadfit::cli {
 
@@ -62,6 +63,10 @@ Law parse_simulation_model(std::string_view name);
 /// not a quantity of the parameter's dimension or out of its range; and naming the parameter when one the law
 /// needs is missing.
 SimulationParameters parse_simulation_parameters(Law law, const std::vector<std::string>& assignments);
+
+/// A number in SI units, or a quantity with a unit (as --set and --times take them); checked against `range`.
+/// Throws io::UnitError.
+double parse_value(std::string_view text, io::Dimension dimension, io::Range range);
 
 /// "T1,T2,..." in s: each a number in s or a quantity of time; >= 0 and strictly increasing; at least one.
 /// Throws io::InputError naming the entry.

@@ -1,104 +1,247 @@
 #include "src/cli/translate_command.hpp"
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <cmath>
-#include <fmt/format.h>
 #include <limits>
 
 #include "models/forward.hpp"
 #include "src/cli/exit_codes.hpp"
+#include "src/cli/parameter_ranges.hpp"
 #include "src/cli/simulate_command.hpp"
+#include "src/fit/parameter_names.hpp"
+#include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/test_description.hpp"
+#include "src/io/units.hpp"
+#include "src/qc/spec_translation.hpp"
+#include "src/report/reading_map_svg.hpp"
 
 namespace spreadfit::cli {
 
 namespace {
 
-struct Range {
-  std::string name;
-  std::string low, high;  // as written
-  double lo = 0, hi = 0;  // SI
-};
+std::string plain(std::string name) {
+  std::replace(name.begin(), name.end(), '_', ' ');
+  return name;
+}
 
-// The SI value of PARAM=TEXT, converted by the same rules as --set (units, ranges, names).
-double value_of(Law law, const std::vector<std::string>& fixed, const std::vector<Range>& ranges,
-                const std::string& name, const std::string& text) {
-  std::vector<std::string> assignments = fixed;
-  for (const Range& r : ranges) assignments.push_back(r.name + "=" + (r.name == name ? text : r.low));
-  const SimulationParameters p = parse_simulation_parameters(law, assignments);
-  if (name == "yield_stress") return p.material.yield_stress;
-  if (name == "flow_index") return p.material.flow_index;
-  return p.material.consistency;
+std::string with_unit(double value, const std::string& parameter) {
+  const std::string unit = parameter_unit(parameter);
+  return unit == "-" ? fmt::format("{:.4g}", value) : fmt::format("{:.4g} {}", value, unit);
+}
+
+bool log_axis(const ParameterRange& r) { return r.name != "flow_index" && r.lo > 0; }
+
+// The map's extent along one axis: the range itself (reverse: the search range), or widened by half its width
+// each way (forward: the parameter limits in the middle of the map). A point range is widened by a factor 2.
+std::pair<double, double> map_extent(const ParameterRange& r, bool widen) {
+  double lo = r.lo, hi = r.hi;
+  if (log_axis(r)) {
+    const double ratio = hi > lo ? std::sqrt(hi / lo) : 2.0;
+    if (widen || !(hi > lo)) lo /= ratio, hi *= ratio;
+  } else {
+    const double half = hi > lo ? 0.5 * (hi - lo) : std::max(0.5 * std::abs(hi), 0.1);
+    if (widen || !(hi > lo)) lo -= half, hi += half;
+    const double floor = r.name == "flow_index" ? 0.05 : 0.0;  // a flow index must stay positive
+    lo = std::max(lo, floor);
+  }
+  return {lo, hi};
+}
+
+std::vector<double> axis_values(const ParameterRange& r, std::pair<double, double> extent, int points) {
+  std::vector<double> v;
+  for (int i = 0; i < points; ++i) {
+    const double f = double(i) / (points - 1);
+    v.push_back(log_axis(r) ? extent.first * std::pow(extent.second / extent.first, f)
+                            : extent.first + f * (extent.second - extent.first));
+  }
+  return v;
+}
+
+// Reading limits "LOW:HIGH", each a length in SI or with a unit.
+std::pair<double, double> parse_reading_limits(const std::string& text) {
+  const std::string where(command_line_source);
+  const auto colon = text.find(':');
+  if (colon == std::string::npos)
+    throw io::InputError(where, 0, "--between", "expected LOW:HIGH reading limits, such as \"5.5 cm:8 cm\"");
+  double low = 0, high = 0;
+  try {
+    low = parse_value(text.substr(0, colon), io::Dimension::Length, io::Range::NonNegative);
+    high = parse_value(text.substr(colon + 1), io::Dimension::Length, io::Range::NonNegative);
+  } catch (const io::UnitError& e) {
+    throw io::InputError(where, 0, "--between", e.what());
+  }
+  if (!(low <= high)) throw io::InputError(where, 0, "--between", "low is above high (expected LOW:HIGH)");
+  return {low, high};
 }
 
 }  // namespace
 
 int run_translate_command(const TranslateCommandOptions& options, std::ostream& out, std::ostream& err) {
   const std::string where(command_line_source);
-  if (options.points < 2 || options.points > 25)
-    throw io::InputError(where, 0, "--points", fmt::format("{} points (expected 2 to 25)", options.points));
+  check_grid_points(options.points, "--points");
+  if (options.map && (options.map_points < 5 || options.map_points > 61))
+    throw io::InputError(where, 0, "--map-points", fmt::format("{} points (expected 5 to 61)", options.map_points));
   const Law law = parse_simulation_model(options.model);
   const std::vector<double> at = parse_times(options.at);
   if (at.size() != 1) throw io::InputError(where, 0, "--at", "expected one time");
   if (options.vary.empty()) throw io::InputError(where, 0, "--vary", "expected at least one PARAM=LOW:HIGH");
-  std::vector<Range> ranges;
-  for (const std::string& v : options.vary) {
-    const auto eq = v.find('='), colon = v.find(':', eq == std::string::npos ? 0 : eq);
-    if (eq == std::string::npos || colon == std::string::npos)
-      throw io::InputError(where, 0, "--vary " + v, "expected PARAM=LOW:HIGH, such as yield_stress=\"20 Pa:35 Pa\"");
-    ranges.push_back({v.substr(0, eq), v.substr(eq + 1, colon - eq - 1), v.substr(colon + 1)});
+  if (options.solve && !options.between) throw io::InputError(where, 0, "--solve", "only with --between");
+  const std::vector<ParameterRange> ranges = parse_parameter_ranges(law, options.set, options.vary);
+  if (options.map && ranges.size() < 2)
+    throw io::InputError(where, 0, "--map", "the map's axes are the first two --vary parameters (one given)");
+  const SimulationParameters nominal = range_base(law, options.set, ranges);
+  std::optional<std::pair<double, double>> between;
+  std::size_t solved = 0;
+  if (options.between) {
+    between = parse_reading_limits(*options.between);
+    if (options.solve) {
+      const auto it =
+          std::find_if(ranges.begin(), ranges.end(), [&](const ParameterRange& r) { return r.name == *options.solve; });
+      if (it == ranges.end())
+        throw io::InputError(where, 0, "--solve " + *options.solve,
+                             "not among the --vary parameters (its range is where to look)");
+      solved = std::size_t(it - ranges.begin());
+    }
+    if (!(ranges[solved].lo < ranges[solved].hi))
+      throw io::InputError(where, 0, "--vary " + ranges[solved].name, "the range to search is a single value");
   }
-  for (Range& r : ranges) {
-    r.lo = value_of(law, options.set, ranges, r.name, r.low);
-    r.hi = value_of(law, options.set, ranges, r.name, r.high);
-    if (!(r.lo <= r.hi))
-      throw io::InputError(where, 0, "--vary " + r.name, "low is above high (expected PARAM=LOW:HIGH)");
-  }
-  std::vector<std::string> base = options.set;
-  for (const Range& r : ranges) base.push_back(r.name + "=" + r.low);
-  const SimulationParameters nominal = parse_simulation_parameters(law, base);
   const io::TestDescription test = io::load_test_description(options.test);
   TestSetup setup = test.setup;
   if (!test.series.empty()) setup.reading = test.series.front().kind;
+  const double when = std::max(at.front() - nominal.time_origin, 0.0);
+  const std::string reading(reading_name(setup.reading));
+  const std::string rig_name(io::rig_kind_name(setup.rig));
 
-  // Grid over the varied parameters: odometer over points^k combinations.
-  const int k = int(ranges.size());
-  std::vector<int> index(std::size_t(k), 0);
-  double low = std::numeric_limits<double>::infinity(), high = -low;
-  int solves = 0;
-  const std::vector<double> when{std::max(at.front() - nominal.time_origin, 0.0)};
-  while (true) {
-    Material m = nominal.material;
-    for (int d = 0; d < k; ++d) {
-      const Range& r = ranges[std::size_t(d)];
-      const double f = double(index[std::size_t(d)]) / (options.points - 1);
-      const double v = r.name == "flow_index" || r.lo <= 0 ? r.lo + f * (r.hi - r.lo)
-                                                           : r.lo * std::pow(r.hi / r.lo, f);
-      if (r.name == "yield_stress") m.yield_stress = v;
-      else if (r.name == "flow_index") m.flow_index = v;
-      else m.consistency = v;
-    }
-    const ForwardResult res = predict_readings(setup, m, when);
-    ++solves;
-    if (!res.ok()) {
-      err << fmt::format("spreadfit: {}: the forward model failed inside the ranges ({}); no limits written\n",
-                         options.test.string(), res.message);
+  std::string over;
+  for (std::size_t i = 0; i < ranges.size(); ++i)
+    if (!between || i != solved)
+      over += fmt::format("{}{} {}..{}", over.empty() ? "" : ", ", ranges[i].name, ranges[i].low, ranges[i].high);
+
+  ReadingMap map;
+  std::optional<Interval> possible;
+  std::string report;
+  int code = to_int(ExitCode::Done);
+  if (!between) {
+    std::vector<Material> grid;
+    for (const GridPoint& g : parameter_grid(nominal.material, ranges, options.points)) grid.push_back(g.material);
+    const ReadingRange r = reading_range(setup, grid, when);
+    if (!r.ok()) {
+      err << fmt::format("spreadfit: {}: {} ({} forward solves); no limits written\n", options.test.string(), r.failure,
+                         r.solves);
       return to_int(ExitCode::NumericalFailure);
     }
-    low = std::min(low, res.readings.front());
-    high = std::max(high, res.readings.front());
-    int d = 0;
-    while (d < k && ++index[std::size_t(d)] == options.points) index[std::size_t(d++)] = 0;
-    if (d == k) break;
+    report = fmt::format("{} at {} s on {}: between {:.4g} m and {:.4g} m over {} ({} forward solves)\n", reading,
+                         at.front(), rig_name, r.low, r.high, over, r.solves);
+    report += "reading,unit,time [s],low,high\n" + fmt::format("{},m,{},{},{}\n", reading, at.front(), r.low, r.high);
+    map.reading_limits = std::pair{r.low, r.high};
+  } else {
+    // The other varied parameters span their grid; the solved one is searched over its own range.
+    std::vector<ParameterRange> others;
+    for (std::size_t i = 0; i < ranges.size(); ++i)
+      if (i != solved) others.push_back(ranges[i]);
+    std::vector<Material> combos;
+    for (const GridPoint& g : parameter_grid(nominal.material, others, options.points)) combos.push_back(g.material);
+    const ParameterRange& s = ranges[solved];
+    const SearchRange search{s.name, s.lo, s.hi, log_axis(s)};
+    const ParameterLimits limits = solve_parameter_limits(setup, when, combos, search, between->first, between->second);
+    if (!limits.ok()) {
+      err << fmt::format("spreadfit: {}: {} while solving for {}; no limits written\n", options.test.string(),
+                         limits.failure, s.name);
+      return to_int(ExitCode::NumericalFailure);
+    }
+    const std::string context = fmt::format("{} at {} s on {} between {:.4g} m and {:.4g} m", reading, at.front(),
+                                            rig_name, between->first, between->second) +
+                                (over.empty() ? "" : ", over " + over) +
+                                fmt::format(" ({} forward solves)", limits.solves);
+    if (!limits.possible) {
+      err << fmt::format("spreadfit: {}: no {} in {}..{} gives a {}; no limits written\n", options.test.string(),
+                         s.name, s.low, s.high, context);
+      return to_int(ExitCode::NumericalFailure);
+    }
+    possible = limits.possible;
+    report = fmt::format("{} for a {}:\n", s.name, context);
+    report += fmt::format("  possible: {} to {} (a reading within the limits allows no value outside){}\n",
+                          with_unit(limits.possible->lo, s.name), with_unit(limits.possible->hi, s.name),
+                          limits.single_interval ? "" : "; the reading is not monotone in it: this is the hull");
+    if (limits.assured)
+      report += fmt::format("  assured: {} to {} (every value here reads within the limits{}){}\n",
+                            with_unit(limits.assured->lo, s.name), with_unit(limits.assured->hi, s.name),
+                            others.empty() ? "" : ", whatever the others",
+                            limits.assured_single_interval ? "" : "; not one interval: this is the hull");
+    else
+      report += "  assured: none (no value reads within the limits for every combination of the others)\n";
+    if (limits.possible_at_low_edge || limits.possible_at_high_edge)
+      report += fmt::format(
+          "  note: the possible range reaches the {} end of the search range {}..{}: widen --vary "
+          "{} to see how far it goes\n",
+          limits.possible_at_low_edge ? "low" : "high", s.low, s.high, s.name);
+    report += "parameter,unit,time [s],possible low,possible high,assured low,assured high\n";
+    report += fmt::format("{},{},{},{},{},", s.name, parameter_unit(s.name), at.front(), limits.possible->lo,
+                          limits.possible->hi);
+    report += limits.assured ? fmt::format("{},{}\n", limits.assured->lo, limits.assured->hi) : ",\n";
+    map.reading_limits = between;
   }
-  const std::string reading(reading_name(setup.reading));
-  std::string over;
-  for (const Range& r : ranges) over += fmt::format("{}{} {}..{}", over.empty() ? "" : ", ", r.name, r.low, r.high);
-  out << fmt::format("{} at {} s on {}: between {:.4g} m and {:.4g} m over {} ({} forward solves)\n", reading,
-                     at.front(), io::rig_kind_name(setup.rig), low, high, over, solves);
-  out << "reading,unit,time [s],low,high\n" << fmt::format("{},m,{},{},{}\n", reading, at.front(), low, high);
-  return to_int(ExitCode::Done);
+
+  if (options.map) {
+    const ParameterRange& xr = ranges[0];
+    const ParameterRange& yr = ranges[1];
+    const bool widen = !between;
+    map.x_log = log_axis(xr);
+    map.y_log = log_axis(yr);
+    map.x = axis_values(xr, map_extent(xr, widen), options.map_points);
+    map.y = axis_values(yr, map_extent(yr, widen), options.map_points);
+    map.x_name = fmt::format("{} [{}]", plain(xr.name), parameter_unit(xr.name));
+    map.y_name = fmt::format("{} [{}]", plain(yr.name), parameter_unit(yr.name));
+    map.reading_name = reading;
+    map.title = fmt::format("{} at {} s on the {} ({}), {}", reading, at.front(), rig_name,
+                            options.test.filename().string(), law_name(law));
+    Material held = nominal.material;
+    for (std::size_t i = 2; i < ranges.size(); ++i) {
+      held = with_parameter(held, ranges[i].name, range_value(ranges[i], 0.5));
+      map.notes.push_back(fmt::format("{} held at the middle of its range, {}", ranges[i].name,
+                                      with_unit(range_value(ranges[i], 0.5), ranges[i].name)));
+    }
+    for (const std::string& s : options.set) map.notes.push_back("fixed: " + s);
+    if (!between) {
+      map.x_limits = std::pair{xr.lo, xr.hi};
+      map.y_limits = std::pair{yr.lo, yr.hi};
+      map.notes.push_back(
+          "box: the parameter limits; shaded: the reading limits they give over every varied "
+          "parameter");
+    } else {
+      map.notes.push_back("shaded: readings within the limits given");
+      if (solved < 2) {
+        (solved == 0 ? map.x_limits : map.y_limits) = std::pair{possible->lo, possible->hi};
+        map.notes.push_back(fmt::format("box: the possible range of {}", ranges[solved].name));
+      }
+    }
+    std::vector<Material> grid;
+    for (double yv : map.y)
+      for (double xv : map.x) grid.push_back(with_parameter(with_parameter(held, xr.name, xv), yr.name, yv));
+    const std::vector<std::optional<double>> values = readings_at(setup, grid, when);
+    map.reading.assign(map.y.size(), std::vector<double>(map.x.size(), std::numeric_limits<double>::quiet_NaN()));
+    int failed = 0;
+    for (std::size_t j = 0; j < map.y.size(); ++j)
+      for (std::size_t i = 0; i < map.x.size(); ++i) {
+        const auto& v = values[j * map.x.size() + i];
+        if (v)
+          map.reading[j][i] = *v;
+        else
+          ++failed;
+      }
+    if (failed == int(grid.size())) {
+      err << fmt::format("spreadfit: {}: the forward model failed at every point of the map; no map written\n",
+                         options.test.string());
+      code = to_int(ExitCode::NumericalFailure);
+    } else {
+      io::write_file_atomically(*options.map, reading_map_svg(map));
+    }
+  }
+  out << report;
+  return code;
 }
 
 }  // namespace spreadfit::cli

@@ -14,6 +14,7 @@
 #include <stdexcept>
 
 #include "src/fit/fit_problem.hpp"
+#include "src/fit/parameter_names.hpp"
 #include "src/fit/levenberg_marquardt.hpp"
 
 namespace spreadfit {
@@ -41,14 +42,6 @@ double aicc(double ssr, int n, int k) {
 }
 
 namespace {
-
-std::string parameter_unit(const std::string& name) {
-  if (name == "yield_stress") return "Pa";
-  if (name == "viscosity") return "Pa.s";
-  if (name == "consistency") return "Pa.s^n";
-  if (name == "flow_index") return "-";
-  return "s";
-}
 
 std::string plain_name(const std::string& name) {
   if (name == "yield_stress") return "yield stress";

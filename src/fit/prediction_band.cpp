@@ -5,6 +5,9 @@
 #include <cmath>
 #include <random>
 
+#include "src/fit/parameter_names.hpp"
+#include "src/parallel_for.hpp"
+
 namespace spreadfit {
 
 namespace {
@@ -17,29 +20,30 @@ void unpack(const FitResult& fit, const Eigen::VectorXd& x, std::size_t series_i
   for (std::size_t i = 0; i < fit.names.size(); ++i) {
     const std::string& name = fit.names[i];
     const double v = x[Eigen::Index(i)];
-    if (name == "yield_stress") m.yield_stress = std::exp(v);
-    else if (name == "viscosity" || name == "consistency") m.consistency = std::exp(v);
-    else if (name == "flow_index") m.flow_index = std::exp(v);
-    else if (name == "time_origin") {
+    if (name != "time_origin") {
+      m = with_parameter(m, name, std::exp(v));
+    } else {
       if (origin == series_index || (origin == 0 && t0 == 0.0)) t0 = v;
       ++origin;
     }
   }
 }
 
-bool run(const TestSetup& setup, const Material& m, double t0, const std::vector<double>& times,
-         std::vector<double>& out) {
+enum class Outcome { Solved, OutsideLaw, Failed };
+
+Outcome run(const TestSetup& setup, const Material& m, double t0, const std::vector<double>& times,
+            std::vector<double>& out) {
   std::vector<double> shifted(times.size());
   for (std::size_t i = 0; i < times.size(); ++i) shifted[i] = std::max(times[i] - t0, 0.0);
   try {
     validate(m);
   } catch (const std::invalid_argument&) {
-    return false;
+    return Outcome::OutsideLaw;
   }
   const ForwardResult r = predict_readings(setup, m, shifted);
-  if (!r.ok()) return false;
+  if (!r.ok()) return Outcome::Failed;
   out = r.readings;
-  return true;
+  return Outcome::Solved;
 }
 
 }  // namespace
@@ -74,7 +78,7 @@ PredictionBand prediction_band(const FitResult& fit, const TestSetup& setup, con
   } else {
     unpack(fit, fit.estimate, series_index, m, t0);
   }
-  if (!run(setup, m, t0, times, band.reading)) {
+  if (run(setup, m, t0, times, band.reading) != Outcome::Solved) {
     band.ok = false;
     return band;
   }
@@ -84,15 +88,31 @@ PredictionBand prediction_band(const FitResult& fit, const TestSetup& setup, con
   const Eigen::LLT<Eigen::MatrixXd> llt(fit.covariance + 1e-12 * Eigen::MatrixXd::Identity(p, p));
   if (llt.info() != Eigen::Success) return band;
   const Eigen::MatrixXd L = llt.matrixL();
+  // Draws first, from one generator in a fixed order (reproducible), then the solves on every core.
   std::mt19937 rng(seed);
   std::normal_distribution<double> normal(0.0, 1.0);
-  std::vector<std::vector<double>> draws;
-  std::vector<double> r;
+  std::vector<Eigen::VectorXd> parameters;
   for (int k = 0; k < samples; ++k) {
     Eigen::VectorXd z(p);
     for (Eigen::Index i = 0; i < p; ++i) z[i] = normal(rng);
-    unpack(fit, fit.estimate + L * z, series_index, m, t0);
-    if (run(setup, m, t0, times, r)) draws.push_back(r);
+    parameters.push_back(fit.estimate + L * z);
+  }
+  std::vector<std::vector<double>> solved(parameters.size());
+  std::vector<Outcome> outcome(parameters.size());
+  parallel_for(parameters.size(), [&](std::size_t k) {
+    Material mk;
+    double tk = 0;
+    unpack(fit, parameters[k], series_index, mk, tk);
+    outcome[k] = run(setup, mk, tk, times, solved[k]);
+  });
+  std::vector<std::vector<double>> draws;
+  for (std::size_t k = 0; k < parameters.size(); ++k) {
+    if (outcome[k] == Outcome::Solved)
+      draws.push_back(std::move(solved[k]));
+    else if (outcome[k] == Outcome::OutsideLaw)
+      ++band.outside_law;
+    else
+      ++band.failed;
   }
   band.samples = int(draws.size());
   if (draws.size() < 10) return band;

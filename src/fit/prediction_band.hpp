@@ -15,6 +15,8 @@ struct PredictionBand {
   std::vector<double> reading;          ///< at the best fit [m]
   std::vector<double> lower, upper;     ///< 95% band [m]
   int samples = 0;                      ///< parameter draws that solved
+  int outside_law = 0;                  ///< draws outside the law's range (e.g. a flow index above 2): left out
+  int failed = 0;                       ///< draws whose forward solve failed: left out
   bool ok = true;
 };
 

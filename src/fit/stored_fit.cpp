@@ -4,7 +4,9 @@
 #include <fstream>
 #include <limits>
 #include <nlohmann/json.hpp>
+#include <stdexcept>
 
+#include "src/fit/parameter_names.hpp"
 #include "src/fit/prediction_band.hpp"
 #include "src/io/input_error.hpp"
 
@@ -55,10 +57,11 @@ FitResult load_fitted_material(const std::filesystem::path& path) {
   }
   r = material_only(r);
   for (std::size_t i = 0; i < r.names.size(); ++i) {
-    const double v = std::exp(r.estimate[Eigen::Index(i)]);
-    if (r.names[i] == "yield_stress") r.material.yield_stress = v;
-    else if (r.names[i] == "flow_index") r.material.flow_index = v;
-    else r.material.consistency = v;
+    try {
+      r.material = with_parameter(r.material, r.names[i], std::exp(r.estimate[Eigen::Index(i)]));
+    } catch (const std::invalid_argument& e) {
+      throw io::InputError(file, 0, "fit.log_space.parameters", e.what());
+    }
   }
   return r;
 }

@@ -3,11 +3,15 @@
 #include <Eigen/Eigenvalues>
 #include <cmath>
 #include <limits>
+#include <stdexcept>
+
+#include "src/parallel_for.hpp"
 
 namespace spreadfit {
 
 DesignEstimate expected_intervals(const TestSetup& setup, Law law, const Material& guess,
-                                  const std::vector<double>& times, double sigma, bool fit_time_origin) {
+                                  const std::vector<double>& times, double sigma, bool fit_time_origin,
+                                  const ForwardOptions& forward) {
   DesignEstimate out;
   const bool has_tau = law == Law::Bingham || law == Law::HerschelBulkley;
   const bool has_n = law == Law::PowerLaw || law == Law::HerschelBulkley;
@@ -26,8 +30,9 @@ DesignEstimate expected_intervals(const TestSetup& setup, Law law, const Materia
     std::vector<double> shifted(times.size());
     for (std::size_t k = 0; k < times.size(); ++k) shifted[k] = std::max(times[k] - t0, 0.0);
     ++out.solves;
-    const ForwardResult res = predict_readings(setup, m, shifted);
+    const ForwardResult res = predict_readings(setup, m, shifted, forward);
     r = res.readings;
+    if (!res.ok() && out.message.empty()) out.message = res.message;
     return res.ok();
   };
   Eigen::VectorXd theta(p);
@@ -37,6 +42,24 @@ DesignEstimate expected_intervals(const TestSetup& setup, Law law, const Materia
     theta[i++] = std::log(guess.consistency);
     if (has_n) theta[i++] = std::log(guess.flow_index);
     if (fit_time_origin) theta[pm] = 0.0;
+  }
+  // The guess's own readings, and one a decade after the last: whether the sample stops within the test is part
+  // of the plan's explanation. The approach to arrest decays like t^-n (Matson & Hogg 2007, J. Non-Newt. Fluid
+  // Mech. 142), so for n <= 1 a further decade shows most of the motion still to come; two closely spaced last
+  // readings could hide a slow creep.
+  {
+    std::vector<double> with_late = times;
+    if (!times.empty()) with_late.push_back(10 * times.back());
+    ++out.solves;
+    const ForwardResult res = predict_readings(setup, guess, with_late, forward);
+    if (!res.ok() || res.readings.size() != with_late.size() || times.empty()) {
+      out.ok = false;
+      out.message = res.ok() ? "no reading times" : res.message;
+      return out;
+    }
+    out.late_reading = res.readings.back();
+    out.readings.assign(res.readings.begin(), res.readings.end() - 1);
+    out.stopped = std::abs(out.late_reading - out.readings.back()) < sigma;
   }
   // Central differences: 2% in log parameters, 0.05 s in the release time.
   Eigen::MatrixXd J(Eigen::Index(times.size()), p);
@@ -67,7 +90,57 @@ DesignEstimate expected_intervals(const TestSetup& setup, Law law, const Materia
   for (int i = 0; i < pm; ++i) {
     const double se = std::sqrt(cov(i, i));
     out.interval_ratio.push_back(singular || !std::isfinite(se) ? std::numeric_limits<double>::infinity()
-                                                                 : std::exp(2 * 1.96 * se));
+                                                                : std::exp(2 * 1.96 * se));
+  }
+  return out;
+}
+
+double design_score(const std::vector<double>& interval_ratio) {
+  if (interval_ratio.empty()) return std::numeric_limits<double>::infinity();
+  double sum = 0;
+  for (double ratio : interval_ratio) {
+    if (!(ratio < undetermined_ratio)) return std::numeric_limits<double>::infinity();
+    sum += std::log(ratio);
+  }
+  return sum / double(interval_ratio.size());
+}
+
+double WorstCaseEstimate::score() const {
+  return ok() ? design_score(worst_ratio) : std::numeric_limits<double>::infinity();
+}
+
+WorstCaseEstimate worst_case_intervals(const TestSetup& setup, Law law, const std::vector<Material>& guesses,
+                                       const std::vector<double>& times, double sigma, bool fit_time_origin,
+                                       const ForwardOptions& forward) {
+  if (guesses.empty()) throw std::invalid_argument("guesses: expected at least one material");
+  WorstCaseEstimate out;
+  // The guesses are independent forward solves: spread over the cores, each writing only its own slot.
+  out.guesses.resize(guesses.size());
+  parallel_for(guesses.size(), [&](std::size_t g) {
+    out.guesses[g] = expected_intervals(setup, law, guesses[g], times, sigma, fit_time_origin, forward);
+  });
+  out.names = out.guesses.front().names;
+  for (std::size_t g = 0; g < guesses.size(); ++g) {
+    const DesignEstimate& e = out.guesses[g];
+    if (!e.ok) {
+      if (out.failed++ == 0) out.first_failure = g;
+      continue;
+    }
+    if (e.stopped) ++out.stopped;
+    if (out.worst_ratio.empty()) {
+      out.worst_ratio = e.interval_ratio;
+      out.worst_guess.assign(e.interval_ratio.size(), g);
+    }
+    // Worst case per parameter; a NaN never occurs (the ratios are exp of a square root or infinity).
+    for (std::size_t i = 0; i < e.interval_ratio.size(); ++i)
+      if (e.interval_ratio[i] > out.worst_ratio[i]) {
+        out.worst_ratio[i] = e.interval_ratio[i];
+        out.worst_guess[i] = g;
+      }
+  }
+  if (out.failed > 0) {
+    out.worst_ratio.clear();
+    out.worst_guess.clear();
   }
   return out;
 }

@@ -6,12 +6,15 @@
 #include <cstdio>
 #include <functional>
 #include <random>
+#include <string>
 #include <vector>
 
 #include "models/forward.hpp"
 #include "models/low_order.hpp"
 #include "models/thin_film.hpp"
 #include "src/fit/fit_law.hpp"
+#include "src/fit/prediction_band.hpp"
+#include "src/qc/spec_translation.hpp"
 
 using namespace spreadfit;
 
@@ -129,6 +132,7 @@ int main(int argc, char** argv) {
 
   std::printf("\nFits of a 30-point curve with 0.5 mm reading noise (median of %d)\n", quick ? 3 : 7);
   std::printf("%-9s %-17s %-8s %10s %8s\n", "rig", "true law", "fit", "time [ms]", "solves");
+  FitResult plate_fit;
   for (const Rig_& r : {rigs[0], rigs[1]}) {
     const Material truth = {20, 10.0, 0.4};
     FitSeries s;
@@ -149,6 +153,38 @@ int main(int argc, char** argv) {
     solves = 0;
     for (const auto& f : c.candidates) solves += f.evaluations;
     std::printf("%-9s %-17s %-8s %10.1f %8d\n", r.name, "herschel-bulkley", "auto", ms, solves);
+    if (r.setup.reading == Reading::Radius && c.chosen >= 0) plate_fit = c.candidates[std::size_t(c.chosen)];
+  }
+
+  // Using a fitted material elsewhere: a 200-draw band on another rig, a 21 x 21 reading map, reading limits solved
+  // back to yield-stress limits over a 5 x 5 grid of the other parameters (all at the default forward settings).
+  std::printf("\nPrediction, map and spec translation (median of %d)\n", quick ? 3 : 5);
+  {
+    std::vector<double> every_2s;
+    for (int i = 1; i <= 30; ++i) every_2s.push_back(2.0 * i);
+    const FitResult material = material_only(plate_fit);
+    PredictionBand band;
+    double ms = median_ms([&] { band = prediction_band(material, channel(), every_2s, 0, 200); }, quick ? 3 : 5);
+    std::printf("  band, plate fit (%s) on the channel, 200 draws x 30 times: %8.1f ms (%d draws solved)\n",
+                std::string(law_name(material.law)).c_str(), ms, band.samples);
+    ms = median_ms([&] { band = prediction_band(material, plate(), every_2s, 0, 200); }, quick ? 3 : 5);
+    std::printf("  band, plate fit (%s) on the plate,   200 draws x 30 times: %8.1f ms (%d draws solved)\n",
+                std::string(law_name(material.law)).c_str(), ms, band.samples);
+    std::vector<Material> grid;
+    for (int j = 0; j < 21; ++j)
+      for (int i = 0; i < 21; ++i)
+        grid.push_back({10 * std::pow(5.0, i / 20.0), 1 * std::pow(20.0, j / 20.0), 0.45});
+    ms = median_ms([&] { (void)readings_at(channel(), grid, 30); }, quick ? 3 : 5);
+    std::printf("  map, channel front at 30 s, 21 x 21 grid:            %8.1f ms\n", ms);
+    std::vector<Material> others;
+    for (int j = 0; j < 5; ++j)
+      for (int i = 0; i < 5; ++i) others.push_back({0, 2 * std::pow(6.0, i / 4.0), 0.3 + 0.3 * j / 4.0});
+    ParameterLimits limits;
+    ms = median_ms([&] {
+      limits = solve_parameter_limits(channel(), 30, others, {"yield_stress", 5, 200, true, 17}, 0.055, 0.08);
+    }, quick ? 3 : 5);
+    std::printf("  yield-stress limits from channel limits, 25 combos:  %8.1f ms (%d forward solves)\n", ms,
+                limits.solves);
   }
   return 0;
 }

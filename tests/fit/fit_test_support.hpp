@@ -6,6 +6,7 @@
 
 #include "models/forward.hpp"
 #include "src/fit/fit_types.hpp"
+#include "src/fit/synthetic_readings.hpp"
 
 namespace spreadfit::testing {
 
@@ -33,22 +34,13 @@ inline TestSetup squeeze_setup() {
   return s;
 }
 
-/// Readings every `step` seconds up to `end`, released at t0, with noise of standard deviation sigma.
+/// Readings every `step` seconds up to `end`, released at t0, with noise of standard deviation sigma
+/// (src/fit/synthetic_readings.hpp).
 inline FitSeries synthetic(const TestSetup& setup, const Material& m, double sigma, unsigned seed, double t0 = 0.3,
                            double step = 2.0, double end = 60.0) {
-  FitSeries s;
-  s.setup = setup;
-  for (double t = step; t <= end + 1e-9; t += step) s.times.push_back(t);
-  std::vector<double> shifted;
-  for (double t : s.times) shifted.push_back(t - t0);
-  s.values = predict_readings(setup, m, shifted).readings;
-  std::mt19937 rng(seed);
-  std::normal_distribution<double> noise(0.0, 1.0);
-  if (sigma > 0) {
-    for (double& v : s.values) v += sigma * noise(rng);
-    s.sigma = sigma;
-  }
-  return s;
+  std::vector<double> times;
+  for (double t = step; t <= end + 1e-9; t += step) times.push_back(t);
+  return synthetic_readings(setup, m, times, sigma, seed, t0);
 }
 
 inline const ParameterEstimate& estimate(const FitResult& r, const std::string& name) {
