@@ -76,7 +76,8 @@ std::string material_text(const FitResult& fit, const std::string& source) {
     const std::string unit = parameter_unit(fit.names[i]) == "-" ? "" : " " + parameter_unit(fit.names[i]);
     text += fmt::format("{} {} {:.4g}{}", i == 0 ? ": " : "; ", name, std::exp(centre), unit);
     if (finite(se))
-      text += fmt::format(" (95%: {:.3g} to {:.3g})", std::exp(centre - 1.96 * se), std::exp(centre + 1.96 * se));
+      text +=
+          fmt::format(" (95% of draws: {:.3g} to {:.3g})", std::exp(centre - 1.96 * se), std::exp(centre + 1.96 * se));
     else
       text += " (interval undetermined)";
   }
