@@ -40,6 +40,14 @@ std::vector<FitSeries> series_of(const std::vector<io::TestDescription>& tests) 
   return out;
 }
 
+// Throws io::InputError when the tests of one sample id give nothing to fit (no series and no final reading).
+void check_fittable(const std::vector<io::TestDescription>& tests) {
+  for (const auto& t : tests)
+    if (!t.series.empty() || t.final_reading) return;
+  throw io::InputError(tests.front().path.string(), 0, "readings",
+                       "no readings to fit (expected [readings] file, files or final)");
+}
+
 // Fits one material: all tests of one sample id.
 FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optional<Law>& forced,
                         const io::ProductSpec* product) {
@@ -48,16 +56,13 @@ FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optio
   FitOutcome o;
   o.tests = std::move(tests);
   const io::TestDescription& first = o.tests.front();
+  check_fittable(o.tests);
   const std::vector<FitSeries> series = series_of(o.tests);
   if (series.empty()) {
     // Final-only: one arrested reading per test; the first test's reading gives the estimate.
     const io::TestDescription* t = nullptr;
     for (const auto& d : o.tests)
       if (d.final_reading) t = &d;
-    if (t == nullptr) {
-      throw io::InputError(first.path.string(), 0, "readings",
-                           "no readings to fit (expected [readings] file, files or final)");
-    }
     o.candidates.push_back(fit_final_reading(t->setup, *t->final_reading, t->resolution));
     o.chosen = o.candidates.front().converged() ? 0 : -1;
     o.choice_explanation = "yield stress from the arrested reading";
@@ -135,7 +140,8 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
                                                           io::did_you_mean(options.model, names)));
     }
   }
-  // Read every test; a bad file is reported and skipped so the others still run (exit 2 at the end).
+  // Read and check every input before fitting anything: each bad file is reported, and then the run stops with
+  // exit 2 and writes no output file (interface.md), so a batch list is never left half-written.
   bool bad_input = false;
   std::map<std::string, std::vector<io::TestDescription>> by_sample;
   std::vector<std::string> order;
@@ -158,6 +164,20 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
     if (it == catalogues.end()) it = catalogues.emplace(file, io::load_spec_catalogue(file)).first;
     return &it->second;
   };
+  for (const std::string& id : order) {
+    const std::vector<io::TestDescription>& tests = by_sample[id];
+    try {
+      check_fittable(tests);
+      catalogue_for(tests.front());
+    } catch (const io::InputError& e) {
+      err << "spreadfit: " << e.what() << "\n";
+      bad_input = true;
+    }
+  }
+  if (bad_input) {
+    err << "spreadfit: bad input above; nothing fitted and no output file written\n";
+    return to_int(ExitCode::BadInput);
+  }
   bool out_of_spec = false, failed = false;
   nlohmann::json all = nlohmann::json::array();
   std::vector<FitOutcome> outcomes;

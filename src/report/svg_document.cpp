@@ -1,13 +1,13 @@
 #include "src/report/svg_document.hpp"
 
-#include "src/version.hpp"
-
 #include <fmt/format.h>
 
 #include <algorithm>
 #include <cmath>
 #include <initializer_list>
 #include <stdexcept>
+
+#include "src/version.hpp"
 
 namespace spreadfit::svg {
 
@@ -354,7 +354,7 @@ void marker(Document& doc, Shape shape, double x, double y, double size, const A
 }
 
 double text_box(Document& doc, std::string_view text, double x, double y, double width, double font_size,
-                std::string_view fill, std::string_view stroke, std::string_view ink) {
+                std::string_view fill, std::string_view stroke, std::string_view text_colour) {
   const double pad = 0.75 * font_size, line_height = 1.4 * font_size;
   const std::vector<std::string> lines = wrap(text, width - 2 * pad, font_size);
   const double height = 2 * pad + line_height * double(lines.size()) - (line_height - font_size);
@@ -366,8 +366,8 @@ double text_box(Document& doc, std::string_view text, double x, double y, double
                    {"fill", std::string(fill)},
                    {"stroke", std::string(stroke)},
                    {"stroke-width", 1.0}});
-  doc.add_text_lines({{"font-size", font_size}, {"fill", std::string(ink)}}, lines, x + pad, y + pad + 0.8 * font_size,
-                     line_height);
+  doc.add_text_lines({{"font-size", font_size}, {"fill", std::string(text_colour)}}, lines, x + pad,
+                     y + pad + 0.8 * font_size, line_height);
   return height;
 }
 
@@ -400,11 +400,14 @@ std::vector<std::string> wrap(std::string_view text, double max_width, double fo
   return lines;
 }
 
-std::string finish_with_caution(Document& doc, std::string_view caution, double y, double page_width,
-                                double margin, std::string_view muted) {
+std::string finish_with_caution(Document& doc, std::string_view caution, double y, double page_width, double margin,
+                                std::string_view footer_colour) {
   y += text_box(doc, caution, margin, y, page_width - 2 * margin, 12, "#fbf5e6", "#dcc48e", "#3a3020");
   doc.add_text("text",
-               {{"x", page_width - margin}, {"y", y + 18}, {"font-size", 10.0}, {"fill", std::string(muted)},
+               {{"x", page_width - margin},
+                {"y", y + 18},
+                {"font-size", 10.0},
+                {"fill", std::string(footer_colour)},
                 {"text-anchor", "end"}},
                fmt::format("{} {}", software_name, software_version()));
   return doc.finish(y + 28);

@@ -137,9 +137,9 @@ void marker(Document& doc, Shape shape, double x, double y, double size, const A
             std::string_view tooltip = {});
 
 /// `text` wrapped to fit a box of `width` px whose top-left corner is (x, y), drawn with a `fill` background and a
-/// `stroke` border, text in `ink` at `font_size` px; one <text> element (add_text_lines). Returns the box height.
+/// `stroke` border, text in `text_colour` at `font_size` px; one <text> element (add_text_lines). Returns the box height.
 double text_box(Document& doc, std::string_view text, double x, double y, double width, double font_size,
-                std::string_view fill, std::string_view stroke, std::string_view ink);
+                std::string_view fill, std::string_view stroke, std::string_view text_colour);
 
 /// Colours every report shares: text, secondary text, plot frames.
 inline constexpr const char* ink = "#1b1f24";
@@ -149,7 +149,7 @@ inline constexpr const char* frame = "#9aa1a9";
 /// The foot every report shares: the caution box across the page at `y`, the software name and version under it,
 /// then the finished document.
 std::string finish_with_caution(Document& doc, std::string_view caution, double y, double page_width,
-                                double margin, std::string_view muted);
+                                double margin, std::string_view footer_colour);
 
 /// Approximate width [px] of `text` in the generic sans-serif face at `font_size` px (0.56 em a character on
 /// average, a little generous so that layouts built on it do not overlap).

@@ -118,12 +118,20 @@ TEST_CASE("fit: bad input exits 2 naming the field") {
     CHECK(run.exit_code == 2);
     CHECK(run.err.find("nope.toml") != std::string::npos);
   }
-  SUBCASE("a bad file does not stop the good one") {
+  SUBCASE("one bad file among several: every bad one named, nothing fitted, no output file (interface.md)") {
     const auto json_file = dir.path() / "both.json";
+    const auto out_dir = dir.path() / "out";
+    std::filesystem::create_directory(out_dir);
+    const auto empty = dir.write("empty.toml", "[sample]\nid = \"E\"\ndensity = \"1 g/mL\"\n" + std::string(plate_rig));
     const Run run = run_spreadfit(dir, "fit " + quoted((dir.path() / "nope.toml").string()) + " " +
-                                           quoted(test.string()) + " --json " + quoted(json_file.string()));
+                                           quoted(test.string()) + " " + quoted(empty.string()) + " --json " +
+                                           quoted(json_file.string()) + " --out-dir " + quoted(out_dir.string()));
     CHECK(run.exit_code == 2);
-    CHECK(run.out.find("LT9-0005") != std::string::npos);
+    CHECK(run.err.find("nope.toml") != std::string::npos);
+    CHECK(run.err.find("empty.toml") != std::string::npos);
+    CHECK(run.out.empty());
+    CHECK_FALSE(std::filesystem::exists(json_file));
+    CHECK(std::filesystem::is_empty(out_dir));
   }
   SUBCASE("--plot and --db write a report and a history row") {
     const auto svg = dir.path() / "p.svg";
