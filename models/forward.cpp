@@ -26,6 +26,7 @@ SpreadingOptions spreading_options(const ForwardOptions& o) {
   s.cells = o.cells;
   s.rel_tol = o.rel_tol;
   s.max_steps = o.max_steps;
+  s.jacobian_reuse = o.jacobian_reuse;
   return s;
 }
 

@@ -16,6 +16,7 @@ struct ForwardOptions {
   int cells = 40;                ///< Lagrangian cells of the thin-film models (>= 8)
   double rel_tol = 1e-4;           ///< relative local error tolerance of the thin-film time stepper
   std::size_t max_steps = 200000;  ///< bound on accepted + rejected steps per solve
+  int jacobian_reuse = 4;          ///< thin-film stepper: accepted steps one Jacobian serves (SpreadingOptions)
 };
 
 enum class SolveStatus { Ok, StepLimit, Failed };

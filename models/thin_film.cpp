@@ -122,7 +122,7 @@ SpreadingSolution solve_spreading(const SpreadingProblem& problem, const std::ve
   auto observer = [&](const Eigen::VectorXd& state, double) {
     if (seen++ > 0) out.fronts.push_back(state[state.size() - 1] * problem.initial_extent);
   };
-  TridiagonalRosenbrock2 stepper(options.abs_tol, options.rel_tol);
+  TridiagonalRosenbrock2 stepper(options.abs_tol, options.rel_tol, options.jacobian_reuse);
   try {
     out.steps = boost::numeric::odeint::integrate_times(
         std::ref(stepper), std::cref(system), x, obs_times.begin(), obs_times.end(), dt, observer,

@@ -40,6 +40,8 @@ struct SpreadingOptions {
   double rel_tol = 1e-4;           ///< stepper tolerance (relative)
   double abs_tol = 1e-8;           ///< stepper tolerance, in units of the initial extent
   std::size_t max_steps = 200000;  ///< bound on steps between two requested times
+  int jacobian_reuse = 4;          ///< accepted steps one finite-difference Jacobian serves (tridiagonal_rosenbrock;
+                                   ///< 4 changes readings by < 5e-5 relative against 1, 1.6x faster)
 };
 
 struct SpreadingSolution {

@@ -9,7 +9,10 @@
 //   y_{n+1} = y_n + (3/2) h k1 + (1/2) h k2,
 // with the embedded first-order solution y_n + h k1, so the local error estimate is (h/2)(k1 + k2).
 // The Jacobian is formed by finite differences with three colours (columns i, i+3, i+6, ... perturbed together),
-// i.e. three extra right-hand-side calls a step, and W is solved in O(N) by the Thomas algorithm. A stock dense
+// i.e. three extra right-hand-side calls, and W is solved in O(N) by the Thomas algorithm. ROS2 keeps order two
+// for any matrix J in W (Verwer et al. 1999, section 2; from memory: it is what lets them use approximate
+// Jacobians), so J may be kept for `jacobian_reuse` accepted steps; the error control still judges every step, and
+// a step rejected on a kept J is retried with a fresh one. A retry at the same point reuses f(y_n) and a fresh J. A stock dense
 // stepper (odeint's rosenbrock4) costs O(N^3) a step; for N ~ 40-80 this stepper is one to two orders faster.
 //
 // The system is a plain callable sys(const Eigen::VectorXd& x, Eigen::VectorXd& dxdt, double t); it must be
@@ -35,7 +38,9 @@ class TridiagonalRosenbrock2 {
   using stepper_category = boost::numeric::odeint::controlled_stepper_tag;
 
   /// abs_tol and rel_tol act per component: err_i / (abs_tol + rel_tol |x_i|) <= 1 accepts a step.
-  TridiagonalRosenbrock2(double abs_tol, double rel_tol) : abs_tol_(abs_tol), rel_tol_(rel_tol) {}
+  /// jacobian_reuse: accepted steps a finite-difference Jacobian serves (1: a fresh one every step).
+  TridiagonalRosenbrock2(double abs_tol, double rel_tol, int jacobian_reuse = 1)
+      : abs_tol_(abs_tol), rel_tol_(rel_tol), reuse_(std::max(jacobian_reuse, 1)) {}
 
   static constexpr order_type order() { return 2; }
 
@@ -48,8 +53,20 @@ class TridiagonalRosenbrock2 {
     using boost::numeric::odeint::success;
     const Eigen::Index n = x.size();
     resize(n);
-    sys(x, f0_, t);
-    jacobian(sys, x, t);
+    const bool same_point = have_f0_ && t == t_f0_ && x.size() == x_f0_.size() && (x.array() == x_f0_.array()).all();
+    if (!same_point) {
+      sys(x, f0_, t);
+      ++rhs_calls_;
+      x_f0_ = x;
+      t_f0_ = t;
+      have_f0_ = true;
+      ++age_;
+    }
+    if (age_ >= reuse_ || refresh_) {
+      jacobian(sys, x, t);
+      age_ = 0;
+      refresh_ = false;
+    }
     const double gamma = 1.0 + 1.0 / std::sqrt(2.0);
     // W = I - gamma dt J, in the three diagonals.
     for (Eigen::Index i = 0; i < n; ++i) {
@@ -59,14 +76,14 @@ class TridiagonalRosenbrock2 {
     }
     if (!factorize()) {
       dt *= 0.25;
-      ++rejected_;
+      reject();
       return fail;
     }
     k1_ = f0_;
     solve(k1_);
     y1_ = x + dt * k1_;
     sys(y1_, f1_, t + dt);
-    rhs_calls_ += 2;
+    ++rhs_calls_;
     k2_ = f1_ - 2.0 * k1_;
     solve(k2_);
     // Error against the embedded first-order solution, scaled per component.
@@ -79,14 +96,14 @@ class TridiagonalRosenbrock2 {
     }
     if (!std::isfinite(err)) {
       dt *= 0.25;
-      ++rejected_;
+      reject();
       return fail;
     }
     // Standard controller for an order-2 method with a first-order estimate: h_new = h * 0.9 err^(-1/2).
     const double factor = std::clamp(0.9 / std::sqrt(std::max(err, 1e-12)), 0.2, 5.0);
     if (err > 1.0) {
       dt *= std::min(factor, 0.9);
-      ++rejected_;
+      reject();
       return fail;
     }
     x += 1.5 * dt * k1_ + 0.5 * dt * k2_;
@@ -96,6 +113,12 @@ class TridiagonalRosenbrock2 {
   }
 
  private:
+  // A rejected step on a kept Jacobian is retried with a fresh one (it may have been the cause).
+  void reject() {
+    ++rejected_;
+    if (age_ > 0) refresh_ = true;
+  }
+
   void resize(Eigen::Index n) {
     if (f0_.size() == n) return;
     for (auto* v : {&f0_, &f1_, &k1_, &k2_, &y1_, &xp_, &fp_, &jd_, &jl_, &ju_, &wd_, &wl_, &wu_, &cp_})
@@ -111,7 +134,7 @@ class TridiagonalRosenbrock2 {
       xp_ = x;
       for (Eigen::Index j = colour; j < n; j += 3) xp_[j] += delta(x[j]);
       sys(xp_, fp_, t);
-      ++rhs_calls_;
+      ++rhs_calls_;  // f0_ is f at x: the caller evaluated it at this point
       for (Eigen::Index j = colour; j < n; j += 3) {
         const double d = xp_[j] - x[j];
         if (j > 0) ju_[j - 1] = (fp_[j - 1] - f0_[j - 1]) / d;
@@ -151,8 +174,16 @@ class TridiagonalRosenbrock2 {
 
   double abs_tol_;
   double rel_tol_;
+  int reuse_ = 1;
   std::size_t rhs_calls_ = 0;
   std::size_t rejected_ = 0;
+  // f(y_n) at the point (x_f0_, t_f0_), and the age of the Jacobian in accepted steps; a new stepper starts with
+  // age_ = reuse_ so that its first step forms one.
+  bool have_f0_ = false;
+  double t_f0_ = 0.0;
+  Eigen::VectorXd x_f0_;
+  int age_ = 1 << 20;
+  bool refresh_ = false;
   Eigen::VectorXd f0_, f1_, k1_, k2_, y1_, xp_, fp_, jd_, jl_, ju_, wd_, wl_, wu_, cp_;
 };
 

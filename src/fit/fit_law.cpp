@@ -9,6 +9,7 @@
 #include <exception>
 #include <fmt/format.h>
 #include <limits>
+#include <mutex>
 #include <nlopt.hpp>
 #include <optional>
 #include <stdexcept>
@@ -208,7 +209,14 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
   Eigen::VectorXd start = global_start(problem, options.global_evaluations);
 
   std::string failure;
-  auto f = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return problem.residuals(x, r, &failure); };
+  std::mutex failure_lock;  // Jacobian columns run on several threads
+  auto f = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
+    std::string why;
+    if (problem.residuals(x, r, &why)) return true;
+    const std::lock_guard<std::mutex> hold(failure_lock);
+    failure = why;
+    return false;
+  };
   if (!hints.empty()) {
     Eigen::VectorXd r;
     double best_cost = f(start, r) ? r.squaredNorm() : std::numeric_limits<double>::infinity();

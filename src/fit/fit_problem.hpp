@@ -5,6 +5,7 @@
 #pragma once
 
 #include <Eigen/Core>
+#include <atomic>
 #include <string>
 #include <vector>
 
@@ -41,7 +42,7 @@ class FitProblem {
   /// The forward model's validity remarks (e.g. slump regime, side walls) for every series at theta, each once.
   std::vector<std::string> notes(const Eigen::VectorXd& theta) const;
 
-  int evaluations() const { return evaluations_; }
+  int evaluations() const { return evaluations_.load(); }
   double weight_sigma(std::size_t s) const { return sigma_[s]; }
   const std::vector<FitSeries>& series() const { return series_; }
   const std::vector<std::vector<double>>& fitted_times() const { return times_; }
@@ -61,7 +62,7 @@ class FitProblem {
   bool sigma_stated_ = true;
   Eigen::VectorXd lower_, upper_;
   std::vector<std::string> names_;
-  mutable int evaluations_ = 0;
+  mutable std::atomic<int> evaluations_{0};  // residuals may run on several threads (Jacobian columns)
 };
 
 }  // namespace spreadfit

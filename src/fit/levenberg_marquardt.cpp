@@ -4,22 +4,27 @@
 #include <Eigen/QR>
 #include <algorithm>
 #include <cmath>
+#include <vector>
+
+#include "src/parallel_for.hpp"
 
 namespace spreadfit {
 
 bool finite_difference_jacobian(const ResidualFunction& f, const Eigen::VectorXd& x, const Eigen::VectorXd& r,
                                 const Eigen::VectorXd& upper, const Eigen::VectorXd& step, Eigen::MatrixXd& J) {
   J.resize(r.size(), x.size());
-  Eigen::VectorXd xp = x, rp;
-  for (Eigen::Index j = 0; j < x.size(); ++j) {
+  std::vector<char> ok(std::size_t(x.size()), 0);
+  parallel_for(std::size_t(x.size()), [&](std::size_t column) {
+    const auto j = Eigen::Index(column);
     double h = step[j];
     if (x[j] + h > upper[j]) h = -h;
+    Eigen::VectorXd xp = x, rp;
     xp[j] = x[j] + h;
-    if (!f(xp, rp) || rp.size() != r.size()) return false;
+    if (!f(xp, rp) || rp.size() != r.size()) return;
     J.col(j) = (rp - r) / h;
-    xp[j] = x[j];
-  }
-  return true;
+    ok[column] = 1;
+  });
+  return std::all_of(ok.begin(), ok.end(), [](char c) { return c != 0; });
 }
 
 LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x0, const Eigen::VectorXd& lower,

@@ -32,13 +32,15 @@ struct LmResult {
   std::string message;      ///< why it stopped
 };
 
-/// Returns false from f to mark a failed evaluation (treated as an infinitely bad point).
+/// Returns false from f to mark a failed evaluation (treated as an infinitely bad point). f must be safe to call
+/// from several threads at once: the columns of a finite-difference Jacobian are evaluated in parallel.
 using ResidualFunction = std::function<bool(const Eigen::VectorXd& x, Eigen::VectorXd& r)>;
 
 LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x0, const Eigen::VectorXd& lower,
                              const Eigen::VectorXd& upper, const LmOptions& options);
 
-/// Forward-difference Jacobian of f at x (steps reversed at an upper bound). Returns false if f failed.
+/// Forward-difference Jacobian of f at x (steps reversed at an upper bound), one column a thread
+/// (src/parallel_for.hpp). Returns false if f failed.
 bool finite_difference_jacobian(const ResidualFunction& f, const Eigen::VectorXd& x, const Eigen::VectorXd& r,
                                 const Eigen::VectorXd& upper, const Eigen::VectorXd& step, Eigen::MatrixXd& J);
 

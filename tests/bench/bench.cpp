@@ -130,30 +130,38 @@ int main(int argc, char** argv) {
                 g == Geometry::Planar ? "planar" : "axisymmetric", count, 100 * sum / count, 100 * worst);
   }
 
-  std::printf("\nFits of a 30-point curve with 0.5 mm reading noise (median of %d)\n", quick ? 3 : 7);
+  std::printf("\nFits of a 30-point curve with 0.5 mm reading noise (mean over 8 noise seeds)\n");
   std::printf("%-9s %-17s %-8s %10s %8s\n", "rig", "true law", "fit", "time [ms]", "solves");
   FitResult plate_fit;
+  // Mean over eight noise seeds: the number of solves a fit needs depends on where the noise puts the optimum
+  // (near a bound of the flow index, a profile may need several refits), so one seed can mislead.
+  constexpr unsigned seeds = 8;
   for (const Rig_& r : {rigs[0], rigs[1]}) {
     const Material truth = {20, 10.0, 0.4};
-    FitSeries s;
-    s.setup = r.setup;
-    for (int i = 1; i <= 30; ++i) s.times.push_back(2.0 * i);
-    std::vector<double> shifted;
-    for (double t : s.times) shifted.push_back(t - 0.3);
-    s.values = predict_readings(r.setup, truth, shifted).readings;
-    std::mt19937 rng(5);
-    std::normal_distribution<double> noise(0, 5e-4);
-    for (double& v : s.values) v += noise(rng);
-    s.sigma = 5e-4;
-    int solves = 0;
-    double ms = median_ms([&] { solves = fit_law({s}, Law::HerschelBulkley).evaluations; }, quick ? 3 : 7);
-    std::printf("%-9s %-17s %-8s %10.1f %8d\n", r.name, "herschel-bulkley", "HB", ms, solves);
-    ModelChoice c;
-    ms = median_ms([&] { c = fit_auto({s}); }, quick ? 3 : 7);
-    solves = 0;
-    for (const auto& f : c.candidates) solves += f.evaluations;
-    std::printf("%-9s %-17s %-8s %10.1f %8d\n", r.name, "herschel-bulkley", "auto", ms, solves);
-    if (r.setup.reading == Reading::Radius && c.chosen >= 0) plate_fit = c.candidates[std::size_t(c.chosen)];
+    double hb_ms = 0, auto_ms = 0;
+    int hb_solves = 0, auto_solves = 0;
+    for (unsigned seed = 1; seed <= seeds; ++seed) {
+      FitSeries s;
+      s.setup = r.setup;
+      for (int i = 1; i <= 30; ++i) s.times.push_back(2.0 * i);
+      std::vector<double> shifted;
+      for (double t : s.times) shifted.push_back(t - 0.3);
+      s.values = predict_readings(r.setup, truth, shifted).readings;
+      std::mt19937 rng(seed);
+      std::normal_distribution<double> noise(0, 5e-4);
+      for (double& v : s.values) v += noise(rng);
+      s.sigma = 5e-4;
+      hb_ms += median_ms([&] { hb_solves += fit_law({s}, Law::HerschelBulkley).evaluations; }, 1);
+      ModelChoice c;
+      auto_ms += median_ms([&] { c = fit_auto({s}); }, 1);
+      for (const auto& f : c.candidates) auto_solves += f.evaluations;
+      if (seed == 5 && r.setup.reading == Reading::Radius && c.chosen >= 0)
+        plate_fit = c.candidates[std::size_t(c.chosen)];
+    }
+    std::printf("%-9s %-17s %-8s %10.1f %8.1f\n", r.name, "herschel-bulkley", "HB", hb_ms / seeds,
+                double(hb_solves) / seeds);
+    std::printf("%-9s %-17s %-8s %10.1f %8.1f\n", r.name, "herschel-bulkley", "auto", auto_ms / seeds,
+                double(auto_solves) / seeds);
   }
 
   // Using a fitted material elsewhere: a 200-draw band on another rig, a 21 x 21 reading map, reading limits solved
