@@ -94,16 +94,6 @@ std::string parameter_text(const ParameterEstimate& p) {
 
 bool finite(double v) { return std::isfinite(v); }
 
-// Draws text lines at `x` from baseline `y`; returns the baseline after the last line.
-double lines(Document& doc, const std::vector<std::string>& text, double x, double y, double size, const char* fill,
-             const char* weight = "normal") {
-  for (const auto& line : text) {
-    doc.add_text("text", {{"x", x}, {"y", y}, {"font-size", size}, {"fill", fill}, {"font-weight", weight}}, line);
-    y += 1.45 * size;
-  }
-  return y;
-}
-
 void verdict_badge(Document& doc, const Verdict& verdict, double y) {
   const char* colour = verdict.status == Verdict::Status::Pass   ? good
                        : verdict.status == Verdict::Status::Fail ? alarm
@@ -212,34 +202,35 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
   const double text_width = page_width - 2 * page_margin - badge_width - 24;
   std::string title = "Sample " + sample_id;
   if (!product.empty()) title += "  \u00b7  product " + product;
-  double y = lines(doc, svg::wrap(title, text_width, 19), page_margin, 34, 19, ink, "bold");
+  double y = svg::text_lines(doc, svg::wrap(title, text_width, 19), page_margin, 34, 19, ink, "bold");
   y += 2;
   if (r) {
     std::string model = fmt::format("Model: {}", law_name(r->law));
     if (!outcome.choice_explanation.empty()) model += " (" + outcome.choice_explanation + ")";
-    y = lines(doc, svg::wrap(model, text_width, 13), page_margin, y, 13, ink);
+    y = svg::text_lines(doc, svg::wrap(model, text_width, 13), page_margin, y, 13, ink);
     std::string parameters;
     for (const auto& p : r->parameters) {
       if (p.name == "time_origin") continue;
       if (!parameters.empty()) parameters += ";  ";
       parameters += parameter_text(p);
     }
-    y = lines(doc, svg::wrap(parameters, text_width, 13), page_margin, y, 13, ink);
-    y = lines(doc,
-              svg::wrap(fmt::format("Fit: rmse {:.3g} mm over {} points; reading standard uncertainty {:.3g} mm",
-                                    r->rmse * 1e3, r->points, r->sigma * 1e3),
-                        text_width, 12),
-              page_margin, y, 12, muted);
+    y = svg::text_lines(doc, svg::wrap(parameters, text_width, 13), page_margin, y, 13, ink);
+    y = svg::text_lines(
+        doc,
+        svg::wrap(fmt::format("Fit: rmse {:.3g} mm over {} points; reading standard uncertainty {:.3g} mm",
+                              r->rmse * 1e3, r->points, r->sigma * 1e3),
+                  text_width, 12),
+        page_margin, y, 12, muted);
   } else {
-    y = lines(doc,
-              svg::wrap("No result: the fit failed, so no parameters, curve or residuals are shown.", text_width, 13),
-              page_margin, y, 13, alarm, "bold");
+    y = svg::text_lines(
+        doc, svg::wrap("No result: the fit failed, so no parameters, curve or residuals are shown.", text_width, 13),
+        page_margin, y, 13, alarm, "bold");
     for (const auto& c : outcome.candidates)
-      y = lines(doc,
-                svg::wrap(fmt::format("{}: {}{}", law_name(c.law), fit_status_name(c.status),
-                                      c.reason.empty() ? "" : " \u2014 " + c.reason),
-                          text_width, 12),
-                page_margin, y, 12, muted);
+      y = svg::text_lines(doc,
+                          svg::wrap(fmt::format("{}: {}{}", law_name(c.law), fit_status_name(c.status),
+                                                c.reason.empty() ? "" : " \u2014 " + c.reason),
+                                    text_width, 12),
+                          page_margin, y, 12, muted);
   }
   verdict_badge(doc, outcome.verdict, 14);
   const double badge_bottom = 14 + 62 + double(outcome.verdict.checks.size() + 1) * 13.0;
@@ -387,13 +378,7 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
     svg::x_ticks(doc, time, bottom);
     y = bottom + 30;
     if (pi + 1 == panels.size() && !r) {  // the residual panel carries the time axis name when there is one
-      doc.add_text("text",
-                   {{"x", 0.5 * (plot_left + plot_right)},
-                    {"y", y + 6},
-                    {"font-size", 12.0},
-                    {"fill", ink},
-                    {"text-anchor", "middle"}},
-                   "time [s]");
+      svg::x_axis_name(doc, plot_left, plot_right, y + 6, "time [s]");
       y += 16;
     }
     y += 10;
@@ -455,13 +440,7 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
       }
     svg::plot_frame(doc, plot_left, top, plot_right, bottom);
     svg::x_ticks(doc, time, bottom);
-    doc.add_text("text",
-                 {{"x", 0.5 * (plot_left + plot_right)},
-                  {"y", bottom + 36},
-                  {"font-size", 12.0},
-                  {"fill", ink},
-                  {"text-anchor", "middle"}},
-                 "time [s]");
+    svg::x_axis_name(doc, plot_left, plot_right, bottom + 36, "time [s]");
     y = bottom + 52;
   } else if (r && !panels.empty()) {
     doc.add_text("text", {{"x", page_margin}, {"y", y + 6}, {"font-size", 12.0}, {"fill", muted}},
@@ -473,7 +452,7 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
   const double footer_width = page_width - 2 * page_margin;
   if (r)
     for (const auto& w : r->warnings)
-      y = lines(doc, svg::wrap("Warning: " + w, footer_width, 12), page_margin, y + 4, 12, amber) - 4;
+      y = svg::text_lines(doc, svg::wrap("Warning: " + w, footer_width, 12), page_margin, y + 4, 12, amber) - 4;
   y += 6;
   return svg::finish_with_caution(doc, bench_caution, y, page_width, page_margin, muted);
 }

@@ -31,15 +31,6 @@ constexpr const char* amber = "#8a5300";
 
 bool finite(double v) { return std::isfinite(v); }
 
-double lines(Document& doc, const std::vector<std::string>& text, double x, double y, double size, const char* fill,
-             const char* weight = "normal") {
-  for (const auto& line : text) {
-    doc.add_text("text", {{"x", x}, {"y", y}, {"font-size", size}, {"fill", fill}, {"font-weight", weight}}, line);
-    y += 1.45 * size;
-  }
-  return y;
-}
-
 std::string length(double metres) {
   return metres >= 0.1 ? fmt::format("{:.4g} cm", metres * 100) : fmt::format("{:.3g} mm", metres * 1000);
 }
@@ -145,12 +136,13 @@ std::string prediction_plot_svg(const PredictionReport& report) {
 
   // --- header ---------------------------------------------------------------------------------------------------
   const double text_width = page_width - 2 * page_margin;
-  double y = lines(
+  double y = svg::text_lines(
       doc, svg::wrap(fmt::format("Predicted {} on the {}", reading, io::rig_kind_name(rig.setup.rig)), text_width, 19),
       page_margin, 34, 19, ink, "bold");
   y += 2;
-  y = lines(doc, svg::wrap(rig_text(rig), text_width, 13), page_margin, y, 13, ink);
-  y = lines(doc, svg::wrap(material_text(fit, report.material_source), text_width, 13), page_margin, y, 13, ink);
+  y = svg::text_lines(doc, svg::wrap(rig_text(rig), text_width, 13), page_margin, y, 13, ink);
+  y = svg::text_lines(doc, svg::wrap(material_text(fit, report.material_source), text_width, 13), page_margin, y, 13,
+                      ink);
   std::string band_text =
       has_band ? fmt::format("Band: 2.5% to 97.5% of the readings of {} parameter draws from the fit's uncertainty.",
                              curve.samples)
@@ -162,7 +154,7 @@ std::string prediction_plot_svg(const PredictionReport& report) {
                                         sigma > 0 ? " allowing the stated resolution" : "")
                           : ".";
   }
-  y = lines(doc, svg::wrap(band_text, text_width, 12), page_margin, y, 12, muted);
+  y = svg::text_lines(doc, svg::wrap(band_text, text_width, 12), page_margin, y, 12, muted);
 
   // --- legend -----------------------------------------------------------------------------------------------------
   {
@@ -266,13 +258,7 @@ std::string prediction_plot_svg(const PredictionReport& report) {
     }
   svg::plot_frame(doc, plot_left, top, plot_right, bottom);
   svg::x_ticks(doc, time, bottom);
-  doc.add_text("text",
-               {{"x", 0.5 * (plot_left + plot_right)},
-                {"y", bottom + 36},
-                {"font-size", 12.0},
-                {"fill", ink},
-                {"text-anchor", "middle"}},
-               "time after the release [s]");
+  svg::x_axis_name(doc, plot_left, plot_right, bottom + 36, "time after the release [s]");
   y = bottom + 56;
 
   // --- footer -----------------------------------------------------------------------------------------------------
@@ -282,7 +268,7 @@ std::string prediction_plot_svg(const PredictionReport& report) {
                "between two rigs of the same design, or the other rig's release time (the prediction starts at its "
                "release).");
   if (!has_curve) notes.push_back("The forward model failed for the best fit on this rig: no curve is drawn.");
-  for (const auto& n : notes) y = lines(doc, svg::wrap(n, text_width, 12), page_margin, y, 12, amber) + 2;
+  for (const auto& n : notes) y = svg::text_lines(doc, svg::wrap(n, text_width, 12), page_margin, y, 12, amber) + 2;
   y += 6;
   return svg::finish_with_caution(doc, bench_caution, y, page_width, page_margin, muted);
 }

@@ -182,18 +182,6 @@ void label_chain(Document& doc, const std::vector<std::pair<double, double>>& li
   }
 }
 
-double text_lines(Document& doc, const std::vector<std::string>& lines, double y, double size, const char* fill,
-                  const char* cls, const char* weight = "normal") {
-  for (const auto& line : lines) {
-    doc.add_text(
-        "text",
-        {{"class", cls}, {"x", page_margin}, {"y", y}, {"font-size", size}, {"fill", fill}, {"font-weight", weight}},
-        line);
-    y += 1.45 * size;
-  }
-  return y;
-}
-
 }  // namespace
 
 std::string reading_map_svg(const ReadingMap& map) {
@@ -227,9 +215,10 @@ std::string reading_map_svg(const ReadingMap& map) {
 
   // --- header ---------------------------------------------------------------------------------------------------
   const double text_width = page_width - 2 * page_margin;
-  double y = text_lines(doc, svg::wrap(heading, text_width, 19), 34, 19, ink, "title", "bold");
+  double y = svg::text_lines(doc, svg::wrap(heading, text_width, 19), page_margin, 34, 19, ink, "bold", "title");
   y += 2;
-  for (const auto& note : map.notes) y = text_lines(doc, svg::wrap(note, text_width, 13), y, 13, ink, "note");
+  for (const auto& note : map.notes)
+    y = svg::text_lines(doc, svg::wrap(note, text_width, 13), page_margin, y, 13, ink, "normal", "note");
   std::string summary = fmt::format("{} over a {} \u00d7 {} grid of {} and {}", name, nx, ny, map.x_name, map.y_name);
   if (any_finite)
     summary += fmt::format(": {} to {} {}.", plain(lo, scale), plain(hi, scale), unit);
@@ -237,15 +226,15 @@ std::string reading_map_svg(const ReadingMap& map) {
     summary += ": the model failed at every grid point, so there is nothing to draw.";
   if (any_finite && levels.empty() && limit_levels.empty())
     summary += " The reading varies too little over the grid for contour lines.";
-  y = text_lines(doc, svg::wrap(summary, text_width, 12), y, 12, muted, "summary");
+  y = svg::text_lines(doc, svg::wrap(summary, text_width, 12), page_margin, y, 12, muted, "normal", "summary");
   if (failed_points > 0 && any_finite)
-    y = text_lines(
+    y = svg::text_lines(
         doc,
         svg::wrap(fmt::format("The model failed at {} of {} grid points: cells touching them are hatched and "
                               "carry no contour lines.",
                               failed_points, nx * ny),
                   text_width, 12),
-        y, 12, muted, "failed-note");
+        page_margin, y, 12, muted, "normal", "failed-note");
 
   // --- geometry -----------------------------------------------------------------------------------------------
   const double legend_top = y + 4;

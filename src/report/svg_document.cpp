@@ -315,6 +315,24 @@ void plot_frame(Document& doc, double left, double top, double right, double bot
                    {"stroke-width", 1.0}});
 }
 
+void x_axis_name(Document& doc, double left, double right, double y, std::string_view name) {
+  doc.add_text("text",
+               {{"x", 0.5 * (left + right)}, {"y", y}, {"font-size", 12.0}, {"fill", ink}, {"text-anchor", "middle"}},
+               name);
+}
+
+double text_lines(Document& doc, const std::vector<std::string>& lines, double x, double y, double size,
+                  std::string_view fill, std::string_view weight, std::string_view cls) {
+  for (const auto& line : lines) {
+    Attributes a{
+        {"x", x}, {"y", y}, {"font-size", size}, {"fill", std::string(fill)}, {"font-weight", std::string(weight)}};
+    if (!cls.empty()) a.insert(a.begin(), Attribute("class", std::string(cls)));
+    doc.add_text("text", a, line);
+    y += 1.45 * size;
+  }
+  return y;
+}
+
 void marker(Document& doc, Shape shape, double x, double y, double size, const Attributes& attributes,
             std::string_view tooltip) {
   Attributes a;

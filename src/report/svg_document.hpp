@@ -127,6 +127,14 @@ void vertical_grid(Document& doc, const LinearScale& x, double top, double botto
 /// The outline of a plot area.
 void plot_frame(Document& doc, double left, double top, double right, double bottom);
 
+/// The name of an x axis, centred under the plot area [left, right] on baseline `y`.
+void x_axis_name(Document& doc, double left, double right, double y, std::string_view name);
+
+/// One <text> element a line at `x`, the first on baseline `y` and each next 1.45 x `size` lower, in `fill` and
+/// `weight`, with the class `cls` when it is not empty. Returns the baseline after the last line.
+double text_lines(Document& doc, const std::vector<std::string>& lines, double x, double y, double size,
+                  std::string_view fill, std::string_view weight = "normal", std::string_view cls = {});
+
 /// Marker shapes for scatter points: distinct in outline as well as colour, for readers who do not tell colours apart.
 enum class Shape { Circle, Square, Triangle, Diamond };
 
@@ -137,7 +145,8 @@ void marker(Document& doc, Shape shape, double x, double y, double size, const A
             std::string_view tooltip = {});
 
 /// `text` wrapped to fit a box of `width` px whose top-left corner is (x, y), drawn with a `fill` background and a
-/// `stroke` border, text in `text_colour` at `font_size` px; one <text> element (add_text_lines). Returns the box height.
+/// `stroke` border, text in `text_colour` at `font_size` px; one <text> element (add_text_lines). Returns the box
+/// height.
 double text_box(Document& doc, std::string_view text, double x, double y, double width, double font_size,
                 std::string_view fill, std::string_view stroke, std::string_view text_colour);
 
@@ -148,8 +157,8 @@ inline constexpr const char* frame = "#9aa1a9";
 
 /// The foot every report shares: the caution box across the page at `y`, the software name and version under it,
 /// then the finished document.
-std::string finish_with_caution(Document& doc, std::string_view caution, double y, double page_width,
-                                double margin, std::string_view footer_colour);
+std::string finish_with_caution(Document& doc, std::string_view caution, double y, double page_width, double margin,
+                                std::string_view footer_colour);
 
 /// Approximate width [px] of `text` in the generic sans-serif face at `font_size` px (0.56 em a character on
 /// average, a little generous so that layouts built on it do not overlap).
