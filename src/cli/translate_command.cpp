@@ -32,6 +32,11 @@ std::string with_unit(double value, const std::string& parameter) {
   return unit == "-" ? fmt::format("{:.4g}", value) : fmt::format("{:.4g} {}", value, unit);
 }
 
+// A reading for people: in cm when the larger of the pair reaches 3 cm, else in mm (as the reports); CSV stays SI.
+std::string length_text(double metres, double larger) {
+  return larger >= 0.03 ? fmt::format("{:.4g} cm", metres * 100) : fmt::format("{:.4g} mm", metres * 1000);
+}
+
 bool log_axis(const ParameterRange& r) { return r.name != "flow_index" && r.lo > 0; }
 
 // The map's extent along one axis: the range itself (reverse: the search range), or widened by half its width
@@ -133,8 +138,8 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
                          r.solves);
       return to_int(ExitCode::NumericalFailure);
     }
-    report = fmt::format("{} at {} s on {}: between {:.4g} m and {:.4g} m over {} ({} forward solves)\n", reading,
-                         at.front(), rig_name, r.low, r.high, over, r.solves);
+    report = fmt::format("{} at {} s on {}: between {} and {} over {} ({} forward solves)\n", reading, at.front(),
+                         rig_name, length_text(r.low, r.high), length_text(r.high, r.high), over, r.solves);
     report += "reading,unit,time [s],low,high\n" + fmt::format("{},m,{},{},{}\n", reading, at.front(), r.low, r.high);
     map.reading_limits = std::pair{r.low, r.high};
   } else {
@@ -152,8 +157,9 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
                          limits.failure, s.name);
       return to_int(ExitCode::NumericalFailure);
     }
-    const std::string context = fmt::format("{} at {} s on {} between {:.4g} m and {:.4g} m", reading, at.front(),
-                                            rig_name, between->first, between->second) +
+    const std::string context = fmt::format("{} at {} s on {} between {} and {}", reading, at.front(), rig_name,
+                                            length_text(between->first, between->second),
+                                            length_text(between->second, between->second)) +
                                 (over.empty() ? "" : ", over " + over) +
                                 fmt::format(" ({} forward solves)", limits.solves);
     if (!limits.possible) {
