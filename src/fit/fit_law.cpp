@@ -8,6 +8,7 @@
 #include <cstdlib>
 #include <exception>
 #include <fmt/format.h>
+#include <future>
 #include <limits>
 #include <mutex>
 #include <nlopt.hpp>
@@ -306,7 +307,9 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
   // Profiles run on the coarse problem around its own optimum (half the cost of a fine solve; the interval's
   // width, not its centre, is taken from it).
   const bool coarse_ok = coarse && coarse_best.r.size() == n;
-  Profiler profiler(coarse_ok ? *coarse : problem, coarse_ok ? coarse_best : best, s2, q);
+  const FitProblem& profiled = coarse_ok ? *coarse : problem;
+  const LmResult& profiled_best = coarse_ok ? coarse_best : best;
+  Profiler profiler(profiled, profiled_best, s2, q);
   for (int i = 0; i < p; ++i) {
     ParameterEstimate e;
     e.name = problem.names()[i];
@@ -324,8 +327,14 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
       // of the yield stress is too narrow on one side (Monte Carlo coverage 0.83 instead of 0.95 for a plate
       // test of a Herschel-Bulkley material): use its profile likelihood.
       if (options.profile_intervals && e.name == "yield_stress" && !on_upper) {
-        if (!on_lower) down = profiler.limit(i, -1, down);
+        // The two sides are independent refits: the lower one runs on a second thread (each side its own
+        // Profiler, whose warm start is per side).
+        std::future<double> lower_side;
+        Profiler other(profiled, profiled_best, s2, q);
+        if (!on_lower)
+          lower_side = std::async(std::launch::async, [&other, i, guess = down] { return other.limit(i, -1, guess); });
         up = profiler.limit(i, +1, up);
+        if (!on_lower) down = lower_side.get();
       }
       e.lower = std::exp(x - down);
       e.upper = std::exp(x + up);
