@@ -147,45 +147,11 @@ std::string join(const std::vector<std::string>& parts, std::string_view sep) {
   return out;
 }
 
-}  // namespace
-
-int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::ostream& err) {
-  const std::string where(command_line_source);
-  const Law law = parse_simulation_model(options.model);
-  if (options.points && options.vary.empty())
-    throw io::InputError(where, 0, "--points", "given without --vary (expected --vary PARAM=LOW:HIGH to set a range)");
-  const int points = options.points.value_or(3);
-  check_grid_points(points, "--points");
-  if (options.check < 0 || options.check > max_check)
-    throw io::InputError(where, 0, "--check", fmt::format("{} refits (expected 0 to {})", options.check, max_check));
-  const std::vector<ParameterRange> ranges = parse_parameter_ranges(law, options.set, options.vary);
-  const SimulationParameters base = range_base(law, options.set, ranges);
-  const double every = one_time(options.every, "--every"), until = one_time(options.until, "--until");
-  if (!(every > 0) || until < every)
-    throw io::InputError(where, 0, "--every/--until", "expected one interval > 0 and a duration at least as long");
-  if (options.candidates.empty()) throw io::InputError(where, 0, "CANDIDATE.toml", "expected at least one");
-
-  const std::vector<GridPoint> grid = parameter_grid(base.material, ranges, points);
-  std::vector<Material> guesses;
-  for (const GridPoint& g : grid) guesses.push_back(g.material);
+// The table: one row per candidate, each parameter's (worst) expected ratio, and whether the sample stops.
+void print_table(std::ostream& out, const PlanCommandOptions& options, Law law,
+                 const std::vector<ParameterRange>& ranges, const std::vector<Material>& guesses, int points,
+                 const std::vector<Candidate>& rows) {
   const bool range = !ranges.empty();
-
-  std::vector<Candidate> rows;
-  for (const auto& path : options.candidates) {
-    const io::TestDescription test = io::load_test_description(path);
-    Candidate c{path.filename().string(), test.setup, {}, test.resolution.value_or(default_sigma), {}};
-    if (!test.series.empty()) {
-      c.setup.reading = test.series.front().kind;
-      c.times = test.series.front().times;
-    } else {
-      // Bounded by until/every readings (both checked above).
-      for (double t = every; t <= until + 1e-9; t += every) c.times.push_back(t);
-    }
-    c.estimate = worst_case_intervals(c.setup, law, guesses, c.times, c.sigma);
-    rows.push_back(std::move(c));
-  }
-
-  // The table.
   const std::vector<std::string>& names = rows.front().estimate.names;
   if (range) {
     std::string over;
@@ -209,7 +175,6 @@ int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::
   out << fmt::format("  {:<24}", "candidate");
   for (const auto& n : names) out << fmt::format(" {:>{}}", n, width);
   out << fmt::format(" {:>8}\n", "stopped");
-  std::size_t best = rows.size();
   for (std::size_t i = 0; i < rows.size(); ++i) {
     const WorstCaseEstimate& e = rows[i].estimate;
     out << fmt::format("  {:<24}", rows[i].name);
@@ -225,15 +190,25 @@ int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::
       out << fmt::format(" {:>{}}", range ? cell + " @" + guess_label(guesses[e.worst_guess[p]], ranges) : cell, width);
     }
     out << fmt::format(" {:>8}\n", stopped_text(e));
-    if (best == rows.size() || ranks_before(e, rows[best].estimate)) best = i;
   }
-  if (best == rows.size() || !std::isfinite(rows[best].estimate.score())) {
-    err << "spreadfit: no candidate determines every parameter of this law" << (range ? " at every guess" : "")
-        << " (see the table); no recommendation\n";
-    return to_int(ExitCode::NumericalFailure);
-  }
+}
 
-  // The recommendation and its reasons, each from the numbers above.
+// The best-ranked candidate that solved, other than `skip` (rows.size() when none).
+std::size_t pick(const std::vector<Candidate>& rows, std::size_t skip) {
+  std::size_t chosen = rows.size();
+  for (std::size_t i = 0; i < rows.size(); ++i)
+    if (i != skip && rows[i].estimate.ok() &&
+        (chosen == rows.size() || ranks_before(rows[i].estimate, rows[chosen].estimate)))
+      chosen = i;
+  return chosen;
+}
+
+// The recommendation and its reasons, each read off the numbers in the table; `second` is the runner-up
+// (rows.size() when there is none).
+void print_reasons(std::ostream& out, const std::vector<ParameterRange>& ranges, const std::vector<Material>& guesses,
+                   const std::vector<Candidate>& rows, std::size_t best, std::size_t second) {
+  const bool range = !ranges.empty();
+  const std::vector<std::string>& names = rows[best].estimate.names;
   const Candidate& b = rows[best];
   const WorstCaseEstimate& e = b.estimate;
   std::size_t limiting = 0;
@@ -283,11 +258,6 @@ int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::
             guess_words(guesses[e.worst_guess[p]], names), b.name, ratio_text(e.worst_ratio[p]));
 
   // Against the runner-up: where it is narrower and how the tests differ.
-  std::size_t second = rows.size();
-  for (std::size_t i = 0; i < rows.size(); ++i)
-    if (i != best && rows[i].estimate.ok() &&
-        (second == rows.size() || ranks_before(rows[i].estimate, rows[second].estimate)))
-      second = i;
   if (second < rows.size()) {
     const Candidate& r = rows[second];
     std::vector<std::string> narrower;
@@ -303,31 +273,85 @@ int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::
                          : "; the tests differ in " + join(diff, ", "))
         << "\n";
   }
+}
 
-  // The Monte Carlo check at the middle of the ranges.
-  if (options.check > 0) {
-    Material middle = base.material;
-    for (const ParameterRange& r : ranges) middle = with_parameter(middle, r.name, range_value(r, 0.5));
-    constexpr unsigned first_seed = 1000;
-    out << fmt::format(
-        "check: {} simulated reading sets per candidate at {} (noise of the resolution, seeds {}-{}), "
-        "refitted with {}\n",
-        options.check, guess_words(middle, names), first_seed, first_seed + unsigned(options.check) - 1, law_name(law));
-    out << fmt::format("  {:<24} {:<16} {:>12} {:>12} {:>10}\n", "candidate", "parameter", "planned", "refits",
-                       "converged");
-    for (std::size_t i : {best, second}) {
-      if (i >= rows.size()) continue;
-      const Candidate& c = rows[i];
-      const DesignCheck k = check_design(c.setup, law, middle, c.times, c.sigma, options.check, first_seed);
-      if (k.planned_ratio.empty()) {
-        out << fmt::format("  {:<24} forward model failed at this guess ({})\n", c.name, k.message);
-        continue;
-      }
-      for (std::size_t p = 0; p < k.names.size(); ++p)
-        out << fmt::format("  {:<24} {:<16} {:>12} {:>12} {:>10}\n", c.name, k.names[p], check_text(k.planned_ratio[p]),
-                           check_text(k.empirical_ratio[p]), fmt::format("{}/{}", k.converged, k.replicates));
+// The Monte Carlo check at the middle of the ranges, for the recommended candidate and the runner-up.
+void print_check(std::ostream& out, const PlanCommandOptions& options, Law law, const SimulationParameters& base,
+                 const std::vector<ParameterRange>& ranges, const std::vector<Candidate>& rows, std::size_t best,
+                 std::size_t second) {
+  const std::vector<std::string>& names = rows[best].estimate.names;
+  Material middle = base.material;
+  for (const ParameterRange& r : ranges) middle = with_parameter(middle, r.name, range_value(r, 0.5));
+  constexpr unsigned first_seed = 1000;
+  out << fmt::format(
+      "check: {} simulated reading sets per candidate at {} (noise of the resolution, seeds {}-{}), "
+      "refitted with {}\n",
+      options.check, guess_words(middle, names), first_seed, first_seed + unsigned(options.check) - 1, law_name(law));
+  out << fmt::format("  {:<24} {:<16} {:>12} {:>12} {:>10}\n", "candidate", "parameter", "planned", "refits",
+                     "converged");
+  for (std::size_t i : {best, second}) {
+    if (i >= rows.size()) continue;
+    const Candidate& c = rows[i];
+    const DesignCheck k = check_design(c.setup, law, middle, c.times, c.sigma, options.check, first_seed);
+    if (k.planned_ratio.empty()) {
+      out << fmt::format("  {:<24} forward model failed at this guess ({})\n", c.name, k.message);
+      continue;
     }
+    for (std::size_t p = 0; p < k.names.size(); ++p)
+      out << fmt::format("  {:<24} {:<16} {:>12} {:>12} {:>10}\n", c.name, k.names[p], check_text(k.planned_ratio[p]),
+                         check_text(k.empirical_ratio[p]), fmt::format("{}/{}", k.converged, k.replicates));
   }
+}
+
+}  // namespace
+
+int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::ostream& err) {
+  const std::string where(command_line_source);
+  const Law law = parse_simulation_model(options.model);
+  if (options.points && options.vary.empty())
+    throw io::InputError(where, 0, "--points", "given without --vary (expected --vary PARAM=LOW:HIGH to set a range)");
+  const int points = options.points.value_or(3);
+  check_grid_points(points, "--points");
+  if (options.check < 0 || options.check > max_check)
+    throw io::InputError(where, 0, "--check", fmt::format("{} refits (expected 0 to {})", options.check, max_check));
+  const std::vector<ParameterRange> ranges = parse_parameter_ranges(law, options.set, options.vary);
+  const SimulationParameters base = range_base(law, options.set, ranges);
+  const double every = one_time(options.every, "--every"), until = one_time(options.until, "--until");
+  if (!(every > 0) || until < every)
+    throw io::InputError(where, 0, "--every/--until", "expected one interval > 0 and a duration at least as long");
+  if (options.candidates.empty()) throw io::InputError(where, 0, "CANDIDATE.toml", "expected at least one");
+
+  const std::vector<GridPoint> grid = parameter_grid(base.material, ranges, points);
+  std::vector<Material> guesses;
+  for (const GridPoint& g : grid) guesses.push_back(g.material);
+  const bool range = !ranges.empty();
+
+  std::vector<Candidate> rows;
+  for (const auto& path : options.candidates) {
+    const io::TestDescription test = io::load_test_description(path);
+    Candidate c{path.filename().string(), test.setup, {}, test.resolution.value_or(default_sigma), {}};
+    if (!test.series.empty()) {
+      c.setup.reading = test.series.front().kind;
+      c.times = test.series.front().times;
+    } else {
+      // Bounded by until/every readings (both checked above).
+      for (double t = every; t <= until + 1e-9; t += every) c.times.push_back(t);
+    }
+    c.estimate = worst_case_intervals(c.setup, law, guesses, c.times, c.sigma);
+    rows.push_back(std::move(c));
+  }
+
+  print_table(out, options, law, ranges, guesses, points, rows);
+  const std::size_t best = pick(rows, rows.size());
+  if (best == rows.size() || !std::isfinite(rows[best].estimate.score())) {
+    err << "spreadfit: no candidate determines every parameter of this law" << (range ? " at every guess" : "")
+        << " (see the table); no recommendation\n";
+    return to_int(ExitCode::NumericalFailure);
+  }
+
+  const std::size_t second = pick(rows, best);
+  print_reasons(out, ranges, guesses, rows, best, second);
+  if (options.check > 0) print_check(out, options, law, base, ranges, rows, best, second);
   return to_int(ExitCode::Done);
 }
 
