@@ -157,11 +157,10 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
                          limits.failure, s.name);
       return to_int(ExitCode::NumericalFailure);
     }
-    const std::string context = fmt::format("{} at {} s on {} between {} and {}", reading, at.front(), rig_name,
-                                            length_text(between->first, between->second),
-                                            length_text(between->second, between->second)) +
-                                (over.empty() ? "" : ", over " + over) +
-                                fmt::format(" ({} forward solves)", limits.solves);
+    const std::string context =
+        fmt::format("{} at {} s on {} between {} and {}", reading, at.front(), rig_name,
+                    length_text(between->first, between->second), length_text(between->second, between->second)) +
+        (over.empty() ? "" : ", over " + over) + fmt::format(" ({} forward solves)", limits.solves);
     if (!limits.possible) {
       err << fmt::format("spreadfit: {}: no {} in {}..{} gives a {}; no limits written\n", options.test.string(),
                          s.name, s.low, s.high, context);
@@ -181,9 +180,12 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
       report += "  assured: none (no value reads within the limits for every combination of the others)\n";
     if (limits.possible_at_low_edge || limits.possible_at_high_edge)
       report += fmt::format(
-          "  note: the possible range reaches the {} end of the search range {}..{}: widen --vary "
-          "{} to see how far it goes\n",
-          limits.possible_at_low_edge ? "low" : "high", s.low, s.high, s.name);
+          "  note: the possible range reaches {} of the search range {}..{}: widen --vary {} to see how far it "
+          "goes\n",
+          limits.possible_at_low_edge && limits.possible_at_high_edge ? "both ends"
+          : limits.possible_at_low_edge                               ? "low end"
+                                                                      : "high end",
+          s.low, s.high, s.name);
     report += "parameter,unit,time [s],possible low,possible high,assured low,assured high\n";
     report += fmt::format("{},{},{},{},{},", s.name, parameter_unit(s.name), at.front(), limits.possible->lo,
                           limits.possible->hi);

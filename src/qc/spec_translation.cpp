@@ -13,6 +13,13 @@ namespace spreadfit {
 
 namespace {
 
+// The searched parameter at u in [0, 1] of its range; the ends exactly (not lo + (hi - lo) rounded).
+double search_value(const SearchRange& search, double u) {
+  if (u <= 0) return search.lo;
+  if (u >= 1) return search.hi;
+  return search.log_spaced ? search.lo * std::pow(search.hi / search.lo, u) : search.lo + u * (search.hi - search.lo);
+}
+
 // Where the reading is against the limits: -1 below, 0 within, +1 above.
 int side(double r, double low, double high) { return r < low ? -1 : (r > high ? 1 : 0); }
 
@@ -30,9 +37,7 @@ struct Scan {
 Scan scan(const TestSetup& setup, double time, const Material& other, const SearchRange& search, double low,
           double high) {
   Scan out;
-  const auto value_at = [&](double u) {
-    return search.log_spaced ? search.lo * std::pow(search.hi / search.lo, u) : search.lo + u * (search.hi - search.lo);
-  };
+  const auto value_at = [&](double u) { return search_value(search, u); };
   const auto reading = [&](double u) {
     ++out.solves;
     const auto r = reading_at(setup, with_parameter(other, search.parameter, value_at(u)), time);
@@ -152,9 +157,7 @@ ParameterLimits solve_parameter_limits(const TestSetup& setup, double time, cons
     if (!s.failure.empty() && out.failure.empty()) out.failure = s.failure;
   }
   if (!out.ok()) return out;
-  const auto value_at = [&](double u) {
-    return search.log_spaced ? search.lo * std::pow(search.hi / search.lo, u) : search.lo + u * (search.hi - search.lo);
-  };
+  const auto value_at = [&](double u) { return search_value(search, u); };
   double union_lo = INFINITY, union_hi = -INFINITY;
   std::vector<Piece> common = {{0.0, 1.0}};
   for (const Scan& s : scans) {
