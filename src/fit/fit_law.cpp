@@ -173,7 +173,7 @@ class Profiler {
       return problem_.residuals(theta, r);
     };
     LmOptions o;
-    o.max_iterations = 5;
+    o.max_iterations = 12;
     o.initial_damping = 1e-6;
     o.fd_step = h;
     const LmResult sub = levenberg_marquardt(f, x0, lo, hi, o);
