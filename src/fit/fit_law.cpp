@@ -177,7 +177,12 @@ class Profiler {
     o.initial_damping = 1e-6;
     o.fd_step = h;
     const LmResult sub = levenberg_marquardt(f, x0, lo, hi, o);
-    if (sub.r.size() == 0) return 0.0;  // the model failed there: treat as no information
+    // A refit the model failed in is no conditional optimum: treat it as no information (inside the level, so the
+    // search errs wide), and keep no warm start from it, which would mislead every later refit.
+    if (sub.r.size() == 0 || sub.model_failed) {
+      rest_.reset();
+      return 0.0;
+    }
     rest_ = sub.x;
     return std::sqrt(std::max(sub.cost - best_.cost, 0.0));
   }

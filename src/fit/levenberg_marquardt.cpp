@@ -33,6 +33,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
   out.x = x0.cwiseMax(lower).cwiseMin(upper);
   if (!f(out.x, out.r)) {
     out.message = "the model could not be evaluated at the starting point";
+    out.model_failed = true;
     return out;
   }
   out.cost = 0.5 * out.r.squaredNorm();
@@ -53,6 +54,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
     if ((!fresh && (o.broyden_refresh <= 1 || since_refresh >= o.broyden_refresh || out.jacobian.size() == 0)) &&
         !refresh()) {
       out.message = "the model failed while differentiating";
+      out.model_failed = true;
       return out;
     }
     Eigen::MatrixXd JtJ = out.jacobian.transpose() * out.jacobian;
@@ -85,6 +87,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
         if (!fresh) {  // judged on an updated Jacobian: confirm with a true one
           if (!refresh()) {
             out.message = "the model failed while differentiating";
+            out.model_failed = true;
             return out;
           }
           --out.iterations;
@@ -147,6 +150,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
     if (!accepted && !fresh) {  // an updated Jacobian may just be poor: retry with a true one
       if (!refresh()) {
         out.message = "the model failed while differentiating";
+        out.model_failed = true;
         return out;
       }
       continue;

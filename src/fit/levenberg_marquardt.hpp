@@ -29,6 +29,7 @@ struct LmResult {
   double cost = 0;          ///< 0.5 |r|^2
   int iterations = 0;
   bool converged = false;
+  bool model_failed = false; ///< stopped because the residual function failed (the point is not an optimum)
   std::string message;      ///< why it stopped
 };
 
