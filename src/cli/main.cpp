@@ -167,6 +167,10 @@ int run(int argc, char** argv) {
           ->type_name("FILE.svg");
   translate->add_option("--map-points", translate_options.map_points, "Map grid points per axis (default 21)")
       ->type_name("M");
+  std::string translate_grid;
+  CLI::Option* translate_grid_option =
+      translate->add_option("--grid", translate_grid, "Also write every grid point's parameters and reading as CSV")
+          ->type_name("FILE.csv");
 
   // --- plan --------------------------------------------------------------------------------------------------
   CLI::App* plan = app.add_subcommand(
@@ -222,6 +226,7 @@ int run(int argc, char** argv) {
     if (translate_between_option->count() > 0) translate_options.between = translate_between;
     if (translate_solve_option->count() > 0) translate_options.solve = translate_solve;
     if (translate_map_option->count() > 0) translate_options.map = translate_map;
+    if (translate_grid_option->count() > 0) translate_options.grid = translate_grid;
     return spreadfit::cli::run_translate_command(translate_options, std::cout, std::cerr);
   }
   if (predict->parsed()) {

@@ -94,6 +94,8 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
   if (at.size() != 1) throw io::InputError(where, 0, "--at", "expected one time");
   if (options.vary.empty()) throw io::InputError(where, 0, "--vary", "expected at least one PARAM=LOW:HIGH");
   if (options.solve && !options.between) throw io::InputError(where, 0, "--solve", "only with --between");
+  if (options.grid && options.between)
+    throw io::InputError(where, 0, "--grid", "only without --between (the table of the forward direction)");
   const std::vector<ParameterRange> ranges = parse_parameter_ranges(law, options.set, options.vary);
   if (options.map && ranges.size() < 2)
     throw io::InputError(where, 0, "--map", "the map's axes are the first two --vary parameters (one given)");
@@ -131,7 +133,8 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
   int code = to_int(ExitCode::Done);
   if (!between) {
     std::vector<Material> grid;
-    for (const GridPoint& g : parameter_grid(nominal.material, ranges, options.points)) grid.push_back(g.material);
+    const std::vector<GridPoint> points = parameter_grid(nominal.material, ranges, options.points);
+    for (const GridPoint& g : points) grid.push_back(g.material);
     const ReadingRange r = reading_range(setup, grid, when);
     if (!r.ok()) {
       err << fmt::format("spreadfit: {}: {} ({} forward solves); no limits written\n", options.test.string(), r.failure,
@@ -142,6 +145,17 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
                          rig_name, length_text(r.low, r.high), length_text(r.high, r.high), over, r.solves);
     report += "reading,unit,time [s],low,high\n" + fmt::format("{},m,{},{},{}\n", reading, at.front(), r.low, r.high);
     map.reading_limits = std::pair{r.low, r.high};
+    if (options.grid) {
+      std::string table;
+      for (const ParameterRange& p : ranges) table += fmt::format("{} [{}],", p.name, parameter_unit(p.name));
+      table += fmt::format("{} [m]\n", reading);
+      for (std::size_t k = 0; k < points.size(); ++k) {
+        for (std::size_t d = 0; d < ranges.size(); ++d)
+          table += fmt::format("{},", range_value(ranges[d], double(points[k].index[d]) / (options.points - 1)));
+        table += fmt::format("{}\n", r.readings[k]);
+      }
+      io::write_file_atomically(*options.grid, table);
+    }
   } else {
     // The other varied parameters span their grid; the solved one is searched over its own range.
     std::vector<ParameterRange> others;

@@ -1,5 +1,6 @@
 // `spreadfit translate TEST.toml --model NAME --vary PARAM=LOW:HIGH... [--set PARAM=VALUE...] --at TIME
-//                     [--between LOW:HIGH [--solve PARAM]] [--points N] [--map FILE.svg [--map-points M]]`:
+//                     [--points N] [--grid FILE.csv] [--between LOW:HIGH [--solve PARAM]]
+//                     [--map FILE.svg [--map-points M]]`:
 // a spec moved between parameters and readings on a named rig at a named time (src/qc/spec_translation.hpp).
 //
 // Without --between, parameter limits become reading limits: every parameter of the law is fixed (--set) or given
@@ -11,6 +12,9 @@
 // With --between, reading limits become limits of the parameter --solve (default: the first --vary, whose range is
 // where to look): the values possible with a reading within the limits, and those assured to read within them
 // whatever the other varied parameters are.
+//
+// --grid FILE.csv (forward only) writes the table behind the limits: one row per grid point, the varied parameters
+// in SI and the reading in m.
 //
 // --map writes an SVG map of the reading over the first two varied parameters (src/report/reading_map_svg.hpp),
 // further varied parameters held at the middle of their ranges: with the parameter limits as a box and the reading
@@ -36,6 +40,7 @@ struct TranslateCommandOptions {
   std::optional<std::string> between;        ///< reading limits LOW:HIGH (lengths): the reverse direction
   std::optional<std::string> solve;          ///< the parameter solved for with --between (default: the first --vary)
   std::optional<std::filesystem::path> map;  ///< SVG map of the reading over the first two varied parameters
+  std::optional<std::filesystem::path> grid; ///< CSV of every grid point's parameters and reading (forward only)
   int map_points = 21;                       ///< map grid points per axis (5..61)
 };
 

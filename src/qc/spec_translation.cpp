@@ -135,6 +135,7 @@ ReadingRange reading_range(const TestSetup& setup, const std::vector<Material>& 
     }
     out.low = std::min(out.low, *r);
     out.high = std::max(out.high, *r);
+    out.readings.push_back(*r);
   }
   return out;
 }

@@ -30,6 +30,7 @@ std::vector<std::optional<double>> readings_at(const TestSetup& setup, const std
 
 struct ReadingRange {
   double low = 0, high = 0;  ///< [m]
+  std::vector<double> readings;  ///< [m], one per material in the order given (when ok)
   int solves = 0;
   std::string failure;  ///< non-empty when some material's forward solve failed (then low/high are unset)
   bool ok() const { return failure.empty(); }

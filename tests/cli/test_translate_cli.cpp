@@ -63,6 +63,39 @@ TEST_CASE("translate: yield-stress limits become slump limits by Pashias et al. 
   }
 }
 
+TEST_CASE("translate --grid: every grid point's slump is that of Pashias et al. (1996)") {
+  TempDir dir;
+  const auto rig = dir.write("slump.toml", slump_rig);
+  const auto grid = dir.path() / "grid.csv";
+  const Run run = run_spreadfit(dir, "translate " + quoted(rig.string()) +
+                                         " --model bingham --vary 'yield_stress=100 Pa:500 Pa' --vary viscosity=1:20 "
+                                         "--at 300 --points 4 --grid " +
+                                         quoted(grid.string()));
+  INFO(run.out << run.err);
+  REQUIRE(run.exit_code == 0);
+  std::istringstream table(read_text(grid));
+  std::string line;
+  std::getline(table, line);
+  CHECK(line == "yield_stress [Pa],viscosity [Pa.s],slump [m]");
+  int rows = 0;
+  while (std::getline(table, line)) {
+    double tau = 0, viscosity = 0, slump = 0;
+    char comma = 0;
+    std::istringstream row(line);
+    REQUIRE(bool(row >> tau >> comma >> viscosity >> comma >> slump));
+    CHECK(slump == doctest::Approx(pashias(tau)).epsilon(1e-6));
+    ++rows;
+  }
+  CHECK(rows == 16);
+  const Run both = run_spreadfit(dir, "translate " + quoted(rig.string()) +
+                                          " --model bingham --vary 'yield_stress=10:500' --set viscosity=5 --at 300 "
+                                          "--between 1cm:2cm --grid " +
+                                          quoted((dir.path() / "g2.csv").string()));
+  CHECK(both.exit_code == 2);
+  CHECK(both.err.find("--grid") != std::string::npos);
+  CHECK_FALSE(std::filesystem::exists(dir.path() / "g2.csv"));
+}
+
 TEST_CASE("translate --between: slump limits become the yield-stress limits of Pashias et al. (1996), with a map") {
   // Slumps between s(500 Pa) and s(100 Pa) mean a yield stress of 100 to 500 Pa; the viscosity plays no part in a
   // static slump, so the possible and assured ranges coincide whatever its range.
