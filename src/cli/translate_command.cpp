@@ -55,13 +55,12 @@ std::pair<double, double> map_extent(const ParameterRange& r, bool widen) {
   return {lo, hi};
 }
 
-std::vector<double> axis_values(const ParameterRange& r, std::pair<double, double> extent, int points) {
+// The map's grid along one axis: the range's own spacing (range_value) over the map's extent.
+std::vector<double> axis_values(ParameterRange r, std::pair<double, double> extent, int points) {
+  r.lo = extent.first;
+  r.hi = extent.second;
   std::vector<double> v;
-  for (int i = 0; i < points; ++i) {
-    const double f = double(i) / (points - 1);
-    v.push_back(log_axis(r) ? extent.first * std::pow(extent.second / extent.first, f)
-                            : extent.first + f * (extent.second - extent.first));
-  }
+  for (int i = 0; i < points; ++i) v.push_back(range_value(r, double(i) / (points - 1)));
   return v;
 }
 

@@ -9,8 +9,10 @@
 #include <vector>
 
 #include "src/qc/spec_translation.hpp"
+#include "tests/fit/fit_test_support.hpp"
 
 using namespace spreadfit;
+using spreadfit::testing::channel_setup;  // the fit tests' channel: 5 cm wide, 5 cm block, 100 mL
 
 namespace {
 
@@ -19,14 +21,6 @@ TestSetup slump_setup() {
   s.rig = SlumpRig{0.05, 0.1};
   s.density = 1100;
   s.reading = Reading::Slump;
-  return s;
-}
-
-TestSetup channel_setup() {
-  TestSetup s;
-  s.rig = ChannelRig{0.05, 0.05, 1e-4, true};
-  s.density = 1100;
-  s.reading = Reading::Front;
   return s;
 }
 
