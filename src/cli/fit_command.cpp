@@ -11,6 +11,8 @@
 #include "src/cli/history_command.hpp"
 #include "src/fit/final_only.hpp"
 #include "src/fit/fit_law.hpp"
+#include "src/fit/flow_index_prior.hpp"
+#include "src/history/history_db.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/test_description.hpp"
@@ -48,9 +50,57 @@ void check_fittable(const std::vector<io::TestDescription>& tests) {
                        "no readings to fit (expected [readings] file, files or final)");
 }
 
+// The flow index each earlier batch of `product` got from its readings alone (the history's result JSON), for
+// learning a prior. Batches fitted with a prior contribute their readings-alone value, never the prior's.
+std::vector<BatchFlowIndex> earlier_flow_indices(const std::filesystem::path& db, const std::string& product) {
+  std::vector<BatchFlowIndex> out;
+  if (product.empty() || !std::filesystem::exists(db)) return out;
+  for (const history::StoredResult& r : history::load(db, product)) {
+    const nlohmann::json j = nlohmann::json::parse(r.result_json, nullptr, false);
+    if (j.is_discarded() || !j.is_object()) continue;
+    BatchFlowIndex b;
+    const nlohmann::json* n = nullptr;
+    if (j.contains("fit") && j["fit"].contains("flow_index_without_prior")) {
+      n = &j["fit"]["flow_index_without_prior"];
+      b.determined = n->value("determined", false);
+    } else if (j.contains("parameters") && j["parameters"].contains("flow_index")) {
+      n = &j["parameters"]["flow_index"];
+      b.determined = n->value("identifiable", true) && !n->value("lower_open", false) && !n->value("upper_open", false);
+    }
+    if (!n || !n->contains("value") || !n->contains("ci95") || !(*n)["ci95"].is_array() || (*n)["ci95"].size() != 2 ||
+        !(*n)["value"].is_number() || !(*n)["ci95"][0].is_number() || !(*n)["ci95"][1].is_number())
+      continue;
+    b.value = (*n)["value"].get<double>();
+    b.lower = (*n)["ci95"][0].get<double>();
+    b.upper = (*n)["ci95"][1].get<double>();
+    out.push_back(b);
+  }
+  return out;
+}
+
+// The prior on the flow index for this material: the spec catalogue's, else one learned from the history (--db).
+std::optional<FlowIndexPrior> prior_for(const io::ProductSpec* product, const std::string& product_code,
+                                        const FitCommandOptions& options, std::string& note) {
+  if (!options.use_prior) return std::nullopt;
+  if (product && product->flow_index_prior) {
+    FlowIndexPrior p;
+    p.typical = product->flow_index_prior->first;
+    p.spread = product->flow_index_prior->second;
+    p.source = "from the spec catalogue";
+    return p;
+  }
+  if (!options.db) return std::nullopt;
+  std::string why_not;
+  std::optional<FlowIndexPrior> learned =
+      learn_flow_index_prior(earlier_flow_indices(*options.db, product_code), &why_not);
+  if (!learned && !product_code.empty()) note = "no flow-index prior: " + why_not;
+  return learned;
+}
+
 // Fits one material: all tests of one sample id.
 FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optional<Law>& forced,
-                        const io::ProductSpec* product) {
+                        const io::ProductSpec* product, const std::optional<FlowIndexPrior>& prior,
+                        const std::string& prior_absent) {
   const std::vector<io::SpecLimit> none;
   const std::vector<io::SpecLimit>& catalogue_limits = product ? product->limits : none;
   FitOutcome o;
@@ -78,7 +128,15 @@ FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optio
       ModelChoice choice = fit_auto(series, options);
       o.candidates = std::move(choice.candidates);
       o.chosen = choice.chosen;
+      o.best_description = choice.best_description;
+      o.weights = choice.weights;
       o.choice_explanation = choice.explanation;
+    }
+    if (o.result()) {
+      FitResult& r = o.candidates[std::size_t(o.chosen)];
+      const bool has_n = r.law == Law::PowerLaw || r.law == Law::HerschelBulkley;
+      if (prior && has_n) r = fit_with_prior(series, r, options, *prior);
+      else if (has_n && !prior_absent.empty()) r.warnings.push_back(prior_absent);
     }
   }
   // Inline [spec] limits override the catalogue's, parameter by parameter.
@@ -200,7 +258,9 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
           err << fmt::format("spreadfit: note: {}: no limits for product '{}' in {}\n", where,
                              product.empty() ? std::string("(none given)") : product, options.specs->string());
       }
-      o = fit_material(std::move(tests), forced, from_catalogue);
+      std::string prior_absent;
+      const std::optional<FlowIndexPrior> prior = prior_for(from_catalogue, product, options, prior_absent);
+      o = fit_material(std::move(tests), forced, from_catalogue, prior, prior_absent);
     } catch (const io::InputError& e) {
       err << "spreadfit: " << e.what() << "\n";
       bad_input = true;

@@ -19,6 +19,7 @@ struct FitCommandOptions {
   std::optional<std::filesystem::path> db;       ///< --db FILE
   std::optional<std::filesystem::path> specs;    ///< --specs FILE
   std::optional<std::filesystem::path> csv;      ///< --csv FILE
+  bool use_prior = true;                         ///< false with --no-prior: readings alone
 };
 
 /// Runs the fit subcommand; returns the exit code (interface.md). Throws io::InputError for bad input.

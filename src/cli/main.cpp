@@ -74,6 +74,9 @@ int run(int argc, char** argv) {
   fit_db.add_to(*fit, "--db", "FILE", "Append the results to the batch history FILE");
   fit_specs.add_to(*fit, "--specs", "FILE", "Read product specifications from FILE");
   fit_csv.add_to(*fit, "--csv", "FILE", "Write the results as a CSV table to FILE");
+  bool fit_no_prior = false;
+  fit->add_flag("--no-prior", fit_no_prior,
+                "Fit the readings alone: no flow-index prior from the spec catalogue or the history (--db)");
 
   // --- simulate ----------------------------------------------------------------------------------------------
   CLI::App* simulate = app.add_subcommand(
@@ -253,6 +256,7 @@ int run(int argc, char** argv) {
   options.db = fit_db.get();
   options.specs = fit_specs.get();
   options.csv = fit_csv.get();
+  options.use_prior = !fit_no_prior;
   return spreadfit::cli::run_fit_command(options, std::cout, std::cerr);
 }
 

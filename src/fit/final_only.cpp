@@ -77,13 +77,11 @@ FitResult fit_final_reading(const TestSetup& setup, double reading, std::optiona
         "surface tension, ignored here, shortens the spread, so this yield stress reads high",
         deepest * 1e3, 3.0 * capillary_length * 1e3));
   const double se = dlog_tau * out.sigma;
-  ParameterEstimate e;
-  e.name = "yield_stress";
-  e.unit = "Pa";
-  e.value = tau;
-  e.lower = tau * std::exp(-1.96 * se);
-  e.upper = tau * std::exp(1.96 * se);
-  out.parameters.push_back(e);
+  out.parameters.push_back(ParameterEstimate{.name = "yield_stress",
+                                             .unit = "Pa",
+                                             .value = tau,
+                                             .lower = tau * std::exp(-1.96 * se),
+                                             .upper = tau * std::exp(1.96 * se)});
   out.names = {"yield_stress"};
   out.material.yield_stress = tau;
   out.correlation = Eigen::MatrixXd::Identity(1, 1);

@@ -18,6 +18,9 @@
 #include "src/fit/fit_problem.hpp"
 #include "src/fit/parameter_names.hpp"
 #include "src/fit/levenberg_marquardt.hpp"
+#include "src/fit/profile_likelihood.hpp"
+#include "src/fit/fit_quality.hpp"
+#include "src/parallel_for.hpp"
 
 namespace spreadfit {
 
@@ -119,80 +122,54 @@ Eigen::VectorXd fd_steps(const FitProblem& problem) {
   return h;
 }
 
-// Profile likelihood (Venzon & Moolgavkar 1988): the limit of parameter j on one side is where the cost,
-// re-optimised over the other parameters, exceeds the optimum by q^2 s^2 / 2. Searched from the quadratic
-// (Wald) guess: when the profile there is already within 15% of the target the guess stands (one refit), else
-// a secant on the signed root sqrt(delta cost), which is close to linear in the parameter, refines it (at most
-// four refits a side). Returns the step from the optimum (>= 0), or the distance to the box limit when the
-// profile never reaches the target there.
-class Profiler {
- public:
-  Profiler(const FitProblem& problem, const LmResult& best, double s2, double q)
-      : problem_(problem), best_(best), target_(0.5 * q * q * s2), steps_(fd_steps(problem)) {}
-
-  double limit(int j, int dir, double guess) {
-    const double room = dir > 0 ? problem_.upper()[j] - best_.x[j] : best_.x[j] - problem_.lower()[j];
-    if (room <= 1e-9) return 0.0;
-    rest_.reset();
-    // Start from the quadratic guess, but no further than a factor e: beyond that the refit starts far from its
-    // optimum and the guess is meaningless anyway.
-    double t1 = std::min({std::isfinite(guess) && guess > 0 ? guess : 1.0, 1.0, room});
-    double r1 = signed_root(j, dir, t1);
-    const double goal = std::sqrt(target_);
-    if (std::abs(r1 / goal - 1.0) < 0.075) return t1;  // delta cost within ~15% of the target
-    if (t1 >= room && r1 < goal) return room;
-    double t0 = 0.0, r0 = 0.0;
-    for (int it = 0; it < 3; ++it) {
-      double t2 = r1 > r0 ? t0 + (goal - r0) * (t1 - t0) / (r1 - r0) : 2.0 * t1;
-      t2 = std::clamp(t2, 0.25 * t1, std::min(4.0 * t1, room));
-      const double r2 = signed_root(j, dir, t2);
-      if (std::abs(r2 / goal - 1.0) < 0.075 || (t2 >= room && r2 < goal)) return t2;
-      t0 = t1, r0 = r1, t1 = t2, r1 = r2;
+// Quadratic (Wald) covariance s^2 (J^T J)^-1 in log space; directions the readings do not determine (eigenvalues
+// below 1e-12 of the largest) are infinite.
+Eigen::MatrixXd wald_covariance(const Eigen::MatrixXd& J, double s2) {
+  const Eigen::Index p = J.cols();
+  const Eigen::MatrixXd JtJ = J.transpose() * J;
+  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig(JtJ);
+  const double max_ev = eig.eigenvalues().maxCoeff();
+  Eigen::MatrixXd cov = Eigen::MatrixXd::Zero(p, p);
+  for (Eigen::Index i = 0; i < p; ++i) {
+    const double ev = eig.eigenvalues()[i];
+    if (!(ev > 1e-12 * max_ev)) {
+      for (Eigen::Index a = 0; a < p; ++a)
+        for (Eigen::Index b = 0; b < p; ++b)
+          if (std::abs(eig.eigenvectors()(a, i) * eig.eigenvectors()(b, i)) > 1e-6)
+            cov(a, b) = std::numeric_limits<double>::infinity();
+      continue;
     }
-    return t1;
+    cov += s2 / ev * eig.eigenvectors().col(i) * eig.eigenvectors().col(i).transpose();
   }
+  return cov;
+}
 
- private:
-  double signed_root(int j, int dir, double t) {
-    const int p = problem_.size();
-    std::vector<int> free;
-    for (int i = 0; i < p; ++i)
-      if (i != j) free.push_back(i);
-    Eigen::VectorXd lo(free.size()), hi(free.size()), h(free.size()), x0(free.size());
-    for (std::size_t k = 0; k < free.size(); ++k) {
-      lo[k] = problem_.lower()[free[k]];
-      hi[k] = problem_.upper()[free[k]];
-      h[k] = steps_[free[k]];
-      x0[k] = rest_ ? (*rest_)[Eigen::Index(k)] : best_.x[free[k]];
-    }
-    const double value = best_.x[j] + dir * t;
-    auto f = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
-      Eigen::VectorXd theta = best_.x;
-      theta[j] = value;
-      for (std::size_t k = 0; k < free.size(); ++k) theta[free[k]] = x[Eigen::Index(k)];
-      return problem_.residuals(theta, r);
-    };
-    LmOptions o;
-    o.max_iterations = 12;
-    o.initial_damping = 1e-6;
-    o.fd_step = h;
-    const LmResult sub = levenberg_marquardt(f, x0, lo, hi, o);
-    // A refit the model failed in is no conditional optimum: treat it as no information (inside the level, so the
-    // search errs wide), and keep no warm start from it, which would mislead every later refit.
-    if (sub.r.size() == 0 || sub.model_failed) {
-      rest_.reset();
-      return 0.0;
-    }
-    rest_ = sub.x;
-    return std::sqrt(std::max(sub.cost - best_.cost, 0.0));
-  }
-
-  const FitProblem& problem_;
-  const LmResult& best_;
-  double target_;
-  Eigen::VectorXd steps_;
-  std::optional<Eigen::VectorXd> rest_;
+// Both sides of every material parameter's profile-likelihood interval (src/fit/profile_likelihood.hpp), on
+// the machine's cores. Returns the sides in the order (parameter 0 lower, parameter 0 upper, parameter 1 lower,
+// ...), and a point below the optimum if a refit found one.
+struct Profiles {
+  std::vector<ProfileSide> sides;
+  std::optional<Eigen::VectorXd> better;
+  int refits = 0;
 };
+
+Profiles profile_material(const FitProblem& problem, const LmResult& best, double s2, double q,
+                          const Eigen::MatrixXd& cov, double reference_cost) {
+  const ResidualFunction f = [&problem](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
+    return problem.residuals(x, r);
+  };
+  const ProfileLikelihood profile(f, problem.lower(), problem.upper(), fd_steps(problem), best.x, reference_cost, s2,
+                                  q, cov);
+  Profiles out;
+  const int pm = problem.material_parameters();
+  out.sides.resize(std::size_t(2 * pm));
+  parallel_for(out.sides.size(), [&](std::size_t k) {
+    out.sides[k] = profile.side(int(k / 2), k % 2 == 0 ? -1 : +1);
+  });
+  for (const ProfileSide& s : out.sides) out.refits += s.refits;
+  out.better = profile.better_point();
+  return out;
+}
 
 }  // namespace
 
@@ -248,21 +225,115 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
     coarse.emplace(series, law, coarse_options);
     auto fc = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return coarse->residuals(x, r); };
     coarse_best = levenberg_marquardt(fc, start, problem.lower(), problem.upper(), lm);
-    if (coarse_best.r.size() == n) start = coarse_best.x;
+    if (coarse_best.r.size() == problem.residual_count()) start = coarse_best.x;
     lm.max_iterations = std::max(8, options.max_iterations / 3);
     lm.initial_damping = 1e-6;
   }
-  const LmResult best = levenberg_marquardt(f, start, problem.lower(), problem.upper(), lm);
+  const int m = problem.residual_count();
+  LmResult best = levenberg_marquardt(f, start, problem.lower(), problem.upper(), lm);
+  // Along the long curved ridges of a thin-film fit the polish may run out of iterations while still improving:
+  // one more budget from where it stopped (still bounded).
+  if (!best.converged && !best.model_failed && best.r.size() == m) {
+    LmOptions more = lm;
+    more.max_iterations = options.max_iterations;
+    LmResult again = levenberg_marquardt(f, best.x, problem.lower(), problem.upper(), more);
+    if (again.r.size() == m && again.cost <= best.cost) {
+      again.iterations += best.iterations;
+      best = std::move(again);
+    }
+  }
   out.iterations = best.iterations;
-  if (best.r.size() != n || best.jacobian.rows() != n) {
+  if (best.r.size() != m || best.jacobian.rows() != m) {
     out.status = FitStatus::ForwardFailure;
     out.reason = best.message + (failure.empty() ? "" : ": " + failure);
-    out.evaluations = problem.evaluations();
+    out.evaluations = problem.evaluations() + (coarse ? coarse->evaluations() : 0);
     return out;
   }
+  const int dof = n - p;
+  const double q = boost::math::quantile(boost::math::complement(boost::math::students_t(double(dof)), 0.025));
+  // The profiles run on the coarse problem around its own optimum (half the cost of a fine solve; the interval's
+  // width, not its centre, is taken from it).
+  bool coarse_ok = coarse && coarse_best.r.size() == m && coarse_best.jacobian.rows() == m;
+  // Residual variance from the readings alone (a prior's residual is not a reading).
+  auto variance = [&](const LmResult& r) {
+    const double chi2 = r.r.head(n).squaredNorm();
+    return problem.sigma_stated() ? std::max(1.0, chi2 / dof) : chi2 / dof;
+  };
+  Profiles profiles;
+  std::vector<Profiles> other_basins;  // profiles around other local optima within the cut-off
+  Eigen::MatrixXd cov = wald_covariance(best.jacobian, variance(best));
+  if (options.profile_intervals) {
+    auto fc = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return coarse->residuals(x, r); };
+    LmOptions polish = lm;
+    polish.initial_damping = 1e-6;
+    // Other valleys: with a flow index, a fit that starts far from n can settle in a second local optimum (a
+    // strongly shear-thinning flow released late against a nearly Newtonian one released early). The likelihood
+    // interval is the set of all parameter values within the cut-off, so every such optimum within it adds its
+    // own profile to the interval (their hull). Found by polishing from the optimum with n moved to 0.35 and to
+    // 1 (common shear-thinning and Newtonian values); a lower optimum found this way becomes the best.
+    std::vector<LmResult> basins;
+    const int n_index = [&] {
+      for (int i = 0; i < problem.material_parameters(); ++i)
+        if (problem.names()[i] == "flow_index") return i;
+      return -1;
+    }();
+    if (coarse_ok && n_index >= 0) {
+      const double cutoff = 0.5 * q * q * variance(best);
+      for (double n_try : {0.35, 1.0}) {
+        Eigen::VectorXd x0 = coarse_best.x;
+        if (std::abs(x0[n_index] - std::log(n_try)) < 0.4) continue;
+        x0[n_index] = std::log(n_try);
+        LmOptions search = lm;
+        search.max_iterations = std::max(8, options.max_iterations / 2);
+        LmResult b = levenberg_marquardt(fc, x0, problem.lower(), problem.upper(), search);
+        if (b.r.size() != m || b.jacobian.rows() != m) continue;
+        const double distance = (b.x - coarse_best.x).head(problem.material_parameters()).cwiseAbs().maxCoeff();
+        if (distance < 0.1) continue;  // the same valley
+        if (b.cost < coarse_best.cost - 0.01 * variance(best)) {
+          // A lower valley: polish it on the fine problem and make it the optimum.
+          LmResult fine = levenberg_marquardt(f, b.x, problem.lower(), problem.upper(), polish);
+          if (fine.r.size() == m && fine.jacobian.rows() == m && fine.cost < best.cost) {
+            fine.iterations += best.iterations;
+            best = std::move(fine);
+            cov = wald_covariance(best.jacobian, variance(best));
+            std::swap(b, coarse_best);
+          }
+        }
+        if (b.cost < coarse_best.cost + cutoff) basins.push_back(std::move(b));
+      }
+    }
+    for (int round = 0; round < 2; ++round) {
+      const FitProblem& profiled = coarse_ok ? *coarse : problem;
+      const LmResult& around = coarse_ok ? coarse_best : best;
+      profiles = profile_material(profiled, around, variance(best), q, wald_covariance(around.jacobian, variance(best)),
+                                  around.cost);
+      if (!profiles.better || round == 1) break;
+      // A refit found a clearly lower cost: the polish had stopped short of the optimum. Polish from there on both
+      // resolutions and profile again (once).
+      LmResult again = levenberg_marquardt(f, *profiles.better, problem.lower(), problem.upper(), polish);
+      if (again.r.size() != m || again.jacobian.rows() != m || again.cost >= best.cost) break;
+      again.iterations += best.iterations;
+      best = std::move(again);
+      cov = wald_covariance(best.jacobian, variance(best));
+      if (coarse_ok) {
+        coarse_best = levenberg_marquardt(fc, best.x, problem.lower(), problem.upper(), polish);
+        coarse_ok = coarse_best.r.size() == m && coarse_best.jacobian.rows() == m;
+      }
+    }
+    if (coarse_ok)
+      for (const LmResult& b : basins) {
+        if (b.cost > coarse_best.cost + 0.5 * q * q * variance(best)) continue;
+        Profiles other = profile_material(*coarse, b, variance(best), q, wald_covariance(b.jacobian, variance(best)),
+                                          coarse_best.cost);
+        // The sides are limits of that valley; record them as absolute values (ProfileSide::limit is absolute).
+        other_basins.push_back(std::move(other));
+      }
+  }
+  out.iterations = best.iterations;
   out.cost = best.cost;
   out.material = problem.material(best.x);
   out.time_origins = problem.time_origins(best.x);
+  out.prior = problem.has_prior() ? options.flow_index_prior : std::nullopt;
 
   // Residual statistics: unweighted rmse over all series, variance from the residuals unless stated.
   double sq = 0.0;
@@ -273,31 +344,10 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
         sq += std::pow(best.r[k] * problem.weight_sigma(s), 2);
   }
   out.rmse = std::sqrt(sq / n);
-  const int dof = n - p;
-  const double chi2 = 2.0 * best.cost;
-  const double s2 = problem.sigma_stated() ? std::max(1.0, chi2 / dof) : chi2 / dof;
+  const double chi2 = best.r.head(n).squaredNorm();
+  const double s2 = variance(best);
   out.sigma = std::sqrt(s2) * problem.weight_sigma(0);
   out.aicc = aicc(chi2, n, p + 1);
-  const double q = boost::math::quantile(boost::math::complement(boost::math::students_t(double(dof)), 0.025));
-
-  // Covariance in log space. Columns of parameters on a bound are excluded (their interval comes from a profile).
-  const Eigen::MatrixXd JtJ = best.jacobian.transpose() * best.jacobian;
-  Eigen::SelfAdjointEigenSolver<Eigen::MatrixXd> eig(JtJ);
-  const double max_ev = eig.eigenvalues().maxCoeff();
-  Eigen::VectorXd inv_ev = eig.eigenvalues();
-  for (Eigen::Index i = 0; i < inv_ev.size(); ++i)
-    inv_ev[i] = inv_ev[i] > 1e-12 * max_ev ? 1.0 / inv_ev[i] : std::numeric_limits<double>::infinity();
-  Eigen::MatrixXd cov = Eigen::MatrixXd::Zero(p, p);
-  for (Eigen::Index i = 0; i < p; ++i) {
-    if (std::isinf(inv_ev[i])) {
-      for (Eigen::Index a = 0; a < p; ++a)
-        for (Eigen::Index b = 0; b < p; ++b)
-          if (std::abs(eig.eigenvectors()(a, i) * eig.eigenvectors()(b, i)) > 1e-6)
-            cov(a, b) = std::numeric_limits<double>::infinity();
-      continue;
-    }
-    cov += s2 * inv_ev[i] * eig.eigenvectors().col(i) * eig.eigenvectors().col(i).transpose();
-  }
   out.estimate = best.x;
   out.covariance = cov;
   out.correlation = Eigen::MatrixXd::Identity(p, p);
@@ -308,86 +358,128 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
         out.correlation(a, b) = std::isfinite(c) ? c : 1.0;
       }
 
+  const bool profiled = options.profile_intervals && !profiles.sides.empty();
+  const Eigen::VectorXd& profile_centre = coarse_ok ? coarse_best.x : best.x;
   int identifiable = 0;
-  // Profiles run on the coarse problem around its own optimum (half the cost of a fine solve; the interval's
-  // width, not its centre, is taken from it).
-  const bool coarse_ok = coarse && coarse_best.r.size() == n;
-  const FitProblem& profiled = coarse_ok ? *coarse : problem;
-  const LmResult& profiled_best = coarse_ok ? coarse_best : best;
-  Profiler profiler(profiled, profiled_best, s2, q);
   for (int i = 0; i < p; ++i) {
     ParameterEstimate e;
     e.name = problem.names()[i];
     e.unit = parameter_unit(e.name);
     const bool log_scale = i < problem.material_parameters();
-    const double se = std::sqrt(cov(i, i));
     const double x = best.x[i];
-    const bool on_lower = x - problem.lower()[i] < 1e-3;
-    const bool on_upper = problem.upper()[i] - x < 1e-3;
+    const double se = std::sqrt(cov(i, i));
+    const double lo_box = problem.lower()[i], hi_box = problem.upper()[i];
+    double lo = x - q * se, hi = x + q * se;
+    bool lo_open = !std::isfinite(lo) || lo <= lo_box, hi_open = !std::isfinite(hi) || hi >= hi_box;
+    if (profiled && log_scale) {
+      e.profiled = true;
+      const ProfileSide& down = profiles.sides[std::size_t(2 * i)];
+      const ProfileSide& up = profiles.sides[std::size_t(2 * i + 1)];
+      lo_open = down.end != ProfileEnd::Crossed;
+      hi_open = up.end != ProfileEnd::Crossed;
+      lo = lo_open ? lo_box : x - (profile_centre[i] - down.limit);
+      hi = hi_open ? hi_box : x + (up.limit - profile_centre[i]);
+      // The hull with the other valleys' intervals (in the coarse problem's coordinates, shifted like the main
+      // one's).
+      for (const Profiles& other : other_basins) {
+        const ProfileSide& d = other.sides[std::size_t(2 * i)];
+        const ProfileSide& u = other.sides[std::size_t(2 * i + 1)];
+        if (d.end != ProfileEnd::Crossed) lo_open = true, lo = lo_box;
+        else if (!lo_open) lo = std::min(lo, d.limit + (x - profile_centre[i]));
+        if (u.end != ProfileEnd::Crossed) hi_open = true, hi = hi_box;
+        else if (!hi_open) hi = std::max(hi, u.limit + (x - profile_centre[i]));
+      }
+      // The coarse optimum and the fine one differ slightly; a limit can never be on the wrong side of the value.
+      lo = std::min(lo, x);
+      hi = std::max(hi, x);
+    }
+    lo = std::max(lo, lo_box);
+    hi = std::min(hi, hi_box);
     if (log_scale) {
       e.value = std::exp(x);
-      e.identifiable = std::isfinite(se) && 2.0 * q * se < std::log(100.0);
-      double down = q * se, up = q * se;
-      // The yield stress and the consistency lie in a curved (banana-shaped) valley, where the quadratic interval
-      // of the yield stress is too narrow on one side (Monte Carlo coverage 0.83 instead of 0.95 for a plate
-      // test of a Herschel-Bulkley material): use its profile likelihood.
-      if (options.profile_intervals && e.name == "yield_stress" && !on_upper) {
-        // The two sides are independent refits: the lower one runs on a second thread (each side its own
-        // Profiler, whose warm start is per side).
-        std::future<double> lower_side;
-        Profiler other(profiled, profiled_best, s2, q);
-        if (!on_lower)
-          lower_side = std::async(std::launch::async, [&other, i, guess = down] { return other.limit(i, -1, guess); });
-        up = profiler.limit(i, +1, up);
-        if (!on_lower) down = lower_side.get();
-      }
-      e.lower = std::exp(x - down);
-      e.upper = std::exp(x + up);
-      if (on_lower && e.name == "yield_stress") {
-        e.upper_only = true;
-        e.lower = 0.0;
-        e.identifiable = true;
+      e.lower = std::exp(lo);
+      e.upper = std::exp(hi);
+      if (e.name == "flow_index") e.upper = std::min(e.upper, 2.0);
+    } else {
+      e.value = x;
+      e.lower = lo;
+      e.upper = hi;
+    }
+    e.lower_open = lo_open;
+    e.upper_open = hi_open;
+    if (e.name == "yield_stress" && lo_open) {
+      // A yield stress the readings do not need: the honest statement is an upper bound.
+      e.upper_only = true;
+      e.lower = 0.0;
+      e.identifiable = !hi_open;
+      if (e.identifiable)
         out.warnings.push_back(fmt::format(
             "the readings need no yield stress: only an upper bound ({:.3g} Pa) is supported; if the sample was "
             "still spreading when readings ended, continue them until it stops",
             e.upper));
-      }
-      if (on_lower && e.name != "yield_stress") {
-        e.identifiable = false;
-        out.warnings.push_back(fmt::format("the {} rests on its lower limit ({:.3g} {}): the readings do not "
-                                           "determine it",
-                                           plain_name(e.name), e.value, e.unit));
-      }
-      if (on_upper) {
-        e.identifiable = false;
-        out.warnings.push_back(fmt::format("the {} rests on its upper limit ({:.3g} {}): the readings barely changed, "
-                                           "so only a lower bound could follow",
-                                           plain_name(e.name), e.value, e.unit));
-      }
+    } else if (log_scale) {
+      e.identifiable = !lo_open && !hi_open && hi - lo < std::log(100.0);
     } else {
-      e.value = x;
-      e.lower = x - q * se;
-      e.upper = x + q * se;
       e.identifiable = std::isfinite(se);
     }
-    if (log_scale && e.identifiable) ++identifiable;
-    if (log_scale && !e.identifiable && !on_lower && !on_upper)
-      out.warnings.push_back(fmt::format("the {} is not determined by these readings (95% interval spans more "
-                                         "than a factor of 100)",
-                                         plain_name(e.name)));
+    if (log_scale) {
+      if (!e.identifiable && lo_open && hi_open)
+        out.warnings.push_back(fmt::format("the {} is not determined by these readings: its 95% interval spans its "
+                                           "whole range ({:.3g} to {:.3g} {})",
+                                           plain_name(e.name), e.lower, e.upper, e.unit));
+      else if (!e.upper_only && lo_open)
+        out.warnings.push_back(fmt::format("the readings set no lower limit on the {} (95% interval reaches the "
+                                           "end of its range, {:.3g} {})",
+                                           plain_name(e.name), e.lower, e.unit));
+      else if (hi_open)
+        out.warnings.push_back(fmt::format("the readings set no upper limit on the {} (95% interval reaches the "
+                                           "end of its range, {:.3g} {})",
+                                           plain_name(e.name), e.upper, e.unit));
+      else if (!e.identifiable)
+        out.warnings.push_back(fmt::format("the {} is not determined by these readings (95% interval spans more "
+                                           "than a factor of 100)",
+                                           plain_name(e.name)));
+      if (e.identifiable) ++identifiable;
+    }
     out.parameters.push_back(e);
   }
-  for (int a = 0; a < problem.material_parameters(); ++a)
-    for (int b = a + 1; b < problem.material_parameters(); ++b)
-      if (std::abs(out.correlation(a, b)) > 0.95)
-        out.warnings.push_back(fmt::format(
-            "{} and {} are hard to separate from these readings (correlation {:.2f}): readings until the sample "
-            "stops, a longer test, or a second fill volume or rig would separate them",
-            plain_name(problem.names()[a]), plain_name(problem.names()[b]), out.correlation(a, b)));
-
+  {
+    std::string pairs;
+    for (int a = 0; a < problem.material_parameters(); ++a)
+      for (int b = a + 1; b < problem.material_parameters(); ++b)
+        if (std::abs(out.correlation(a, b)) > 0.95)
+          pairs += fmt::format("{}{} and {} ({:.2f})", pairs.empty() ? "" : ", ", plain_name(problem.names()[a]),
+                               plain_name(problem.names()[b]), out.correlation(a, b));
+    if (!pairs.empty())
+      out.warnings.push_back(fmt::format(
+          "hard to separate from these readings (correlation): {}; readings until the sample stops, a longer test, "
+          "a second fill volume or rig, or the product's prior flow index would separate them",
+          pairs));
+  }
   for (std::string& note : problem.notes(best.x)) out.warnings.push_back(std::move(note));
+  {
+    std::vector<SeriesResiduals> residuals;
+    Eigen::Index k = 0;
+    for (std::size_t s = 0; s < series.size(); ++s) {
+      SeriesResiduals sr;
+      sr.label = series[s].label;
+      sr.times = problem.fitted_times()[s];
+      sr.readings = problem.fitted_values()[s];
+      sr.sigma = problem.sigma_stated() ? problem.weight_sigma(s) : 0.0;
+      for (std::size_t i = 0; i < sr.times.size(); ++i, ++k) sr.residuals.push_back(best.r[k] * problem.weight_sigma(s));
+      residuals.push_back(std::move(sr));
+    }
+    for (QualityFinding& q : judge_fit_quality(residuals, p)) {
+      out.quality.push_back(q.kind);
+      out.warnings.push_back(std::move(q.message));
+    }
+  }
   out.evaluations = problem.evaluations() + (coarse ? coarse->evaluations() : 0);
-  if (!best.converged) {
+  // Stopped on the iteration limit in a flat valley, but no profile refit found a lower cost (by 1% of the
+  // cut-off scale) anywhere along six traces through it: the point is an optimum for every purpose of the
+  // intervals, which come from the likelihood itself.
+  const bool optimum = best.converged || (profiled && !profiles.better);
+  if (!optimum) {
     out.status = FitStatus::NotConverged;
     out.reason = best.message;
   } else if (identifiable == 0) {
@@ -401,8 +493,8 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
 
 ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& options) {
   ModelChoice choice;
-  // Nested laws start from their simpler relatives: Newtonian -> power law, Bingham -> Herschel-Bulkley.
-  // Profile intervals cost refits: candidates get quadratic intervals, the chosen law is refined below.
+  // Every law is fitted with quadratic intervals, for the comparison by AICc; nested laws start from their
+  // simpler relatives (Newtonian -> power law, Bingham -> Herschel-Bulkley).
   FitOptions quick = options;
   quick.profile_intervals = false;
   const FitResult newtonian = fit_law(series, Law::Newtonian, quick);
@@ -410,81 +502,96 @@ ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& opt
   const FitResult bingham = fit_law(series, Law::Bingham, quick, {newtonian});
   const FitResult hb = fit_law(series, Law::HerschelBulkley, quick, {power, bingham});
   choice.candidates = {newtonian, power, bingham, hb};
+  auto index_of = [&](Law law) {
+    for (std::size_t i = 0; i < choice.candidates.size(); ++i)
+      if (choice.candidates[i].law == law) return int(i);
+    return -1;
+  };
   double best = std::numeric_limits<double>::infinity();
   for (const FitResult& r : choice.candidates)
     if (r.converged()) best = std::min(best, r.aicc);
-  // Simplest law whose AICc is within 2 of the best (all_laws() is ordered simplest first; power law and Bingham
-  // have the same size, so the lower AICc of the two wins among them).
+  // Best description: the simplest law whose AICc is within 2 of the best (all_laws() is ordered simplest first;
+  // power law and Bingham have the same size, so the lower AICc of the two wins among them).
   for (std::size_t i = 0; i < choice.candidates.size(); ++i) {
     const FitResult& r = choice.candidates[i];
     if (!r.converged() || r.aicc > best + 2.0) continue;
-    if (choice.chosen < 0) {
-      choice.chosen = int(i);
+    if (choice.best_description < 0) {
+      choice.best_description = int(i);
       continue;
     }
-    const FitResult& c = choice.candidates[std::size_t(choice.chosen)];
-    if (r.parameters.size() == c.parameters.size() && r.aicc < c.aicc) choice.chosen = int(i);
+    const FitResult& c = choice.candidates[std::size_t(choice.best_description)];
+    if (r.parameters.size() == c.parameters.size() && r.aicc < c.aicc) choice.best_description = int(i);
+  }
+  // Akaike weights (Burnham & Anderson 2002, section 2.9): the relative support of each law.
+  double total = 0.0;
+  for (const FitResult& r : choice.candidates) total += r.converged() ? std::exp(-0.5 * (r.aicc - best)) : 0.0;
+  for (const FitResult& r : choice.candidates)
+    choice.weights.push_back(r.converged() && total > 0 ? std::exp(-0.5 * (r.aicc - best)) / total : 0.0);
+
+  // The reported parameters: those of the general law, Herschel-Bulkley, with profile-likelihood intervals, so
+  // that every batch of a product has the same parameter set (Bingham and the power law are its special cases)
+  // and the intervals carry the uncertainty of the law: the simpler laws are points of its parameter space, and
+  // the profile of the yield stress re-optimises the flow index instead of fixing it at 1. (A simpler law's
+  // conditional interval missed the true yield stress of shear-thinning pastes a third of the time.) A liquid
+  // best described as Newtonian reports its viscosity instead: it has no yield stress to judge.
+  const int newtonian_index = index_of(Law::Newtonian);
+  const bool liquid = choice.best_description == newtonian_index;
+  const int reported = liquid ? newtonian_index : index_of(Law::HerschelBulkley);
+  FitResult general = fit_law(series, choice.candidates[std::size_t(reported)].law, options,
+                              liquid ? std::vector<FitResult>{newtonian} : std::vector<FitResult>{hb, bingham, power});
+  int evaluations = 0;
+  for (const FitResult& r : choice.candidates) evaluations += r.evaluations;
+  general.evaluations += evaluations;
+  const bool usable = general.status == FitStatus::Converged;
+  if (usable) {
+    choice.candidates[std::size_t(reported)] = std::move(general);
+    choice.chosen = reported;
+  } else if (choice.best_description >= 0) {
+    // The general law could not be fitted: report the best description, refitted with profile intervals, and say
+    // that its intervals assume that law.
+    const int fallback = choice.best_description;
+    FitResult refit = fit_law(series, choice.candidates[std::size_t(fallback)].law, options,
+                              {choice.candidates[std::size_t(fallback)]});
+    if (refit.converged()) choice.candidates[std::size_t(fallback)] = std::move(refit);
+    choice.chosen = fallback;
+    FitResult& r = choice.candidates[std::size_t(fallback)];
+    r.warnings.push_back(fmt::format("the {} fit failed ({}): these intervals assume the {} law and do not "
+                                     "include the uncertainty of the law",
+                                     law_name(choice.candidates[std::size_t(reported)].law),
+                                     general.reason.empty() ? fit_status_name(general.status) : general.reason,
+                                     law_name(r.law)));
   }
   if (choice.chosen < 0) {
     choice.explanation = "no law could be fitted to these readings";
     return choice;
   }
-  // Nested laws: a law with n = 1 (Newtonian, Bingham) is rejected when its shear-thinning relative (power law,
-  // Herschel-Bulkley) converged with a flow-index interval that excludes 1. AICc alone may still prefer the
-  // simpler law on few readings, but its yield stress or viscosity would then carry a bias that its interval
-  // does not show (measured on the demo scenario: Bingham yield stresses 5-14% high for shear-thinning sauces).
-  std::string nesting_note;
-  auto excludes_one = [](const FitResult& r) {
-    if (!r.converged()) return false;
-    for (const auto& p : r.parameters)
-      if (p.name == "flow_index") return p.identifiable && (p.upper < 1.0 || p.lower > 1.0);
-    return false;
-  };
-  for (auto [simple, relative] : {std::pair{0, 1}, std::pair{2, 3}}) {
-    if (choice.chosen == simple && excludes_one(choice.candidates[std::size_t(relative)])) {
-      nesting_note = fmt::format(" (the {} fit's flow-index interval excludes 1, so the {} law would bias the other "
-                                 "parameters)",
-                                 law_name(choice.candidates[std::size_t(relative)].law),
-                                 law_name(choice.candidates[std::size_t(simple)].law));
-      choice.chosen = relative;
-    }
-  }
-  FitResult& chosen = choice.candidates[std::size_t(choice.chosen)];
-  if (options.profile_intervals && (chosen.law == Law::Bingham || chosen.law == Law::HerschelBulkley)) {
-    // Restart from the optimum (a few solves to confirm it) and compute the profile intervals.
-    FitResult refined = fit_law(series, chosen.law, options, {chosen});
-    if (refined.converged()) {
-      refined.evaluations += chosen.evaluations;
-      chosen = std::move(refined);
-    }
-  }
-  // The converse case: the shear-thinning relative could not settle n at all. The simpler law's parameters then
-  // rest on the assumption n = 1, which the readings can neither confirm nor refute: say so.
-  // "Settled" means the relative's flow-index interval lies within [0.8, 1.25]: the data then confirm n = 1.
-  auto n_determined = [](const FitResult& r) {
-    if (!r.converged()) return false;
-    for (const auto& p : r.parameters)
-      if (p.name == "flow_index") return p.identifiable && p.lower >= 0.8 && p.upper <= 1.25;
-    return false;
-  };
-  if (nesting_note.empty() && chosen.law == Law::Bingham && !n_determined(choice.candidates[3]))
-    chosen.warnings.push_back(
-        "these readings cannot tell whether the material shear-thins (a Herschel-Bulkley fit leaves the flow index "
-        "open): if it does, this Bingham yield stress is biased high (5-15% on the project's synthetic "
-        "sauces) beyond its interval; readings until the sample stops, or a second rig or fill volume, would settle it");
-  if (nesting_note.empty() && chosen.law == Law::Newtonian && !n_determined(choice.candidates[1]))
-    chosen.warnings.push_back(
-        "these readings cannot tell whether the viscosity depends on shear rate (a power-law fit leaves the flow "
-        "index open): the viscosity assumes it does not");
-  const FitResult& c = chosen;
-  if (!nesting_note.empty())
-    choice.explanation = fmt::format("{} chosen{}", law_name(c.law), nesting_note);
-  else if (c.aicc > best + 1e-9)
-    choice.explanation = fmt::format("{} chosen: within {:.1f} of the best AICc with fewer parameters (the evidence "
-                                     "for a more complex law is weak)",
-                                     law_name(c.law), c.aicc - best);
+  if (choice.best_description < 0) choice.best_description = choice.chosen;
+  const FitResult& described = choice.candidates[std::size_t(choice.best_description)];
+  const FitResult& c = choice.candidates[std::size_t(choice.chosen)];
+  const double weight = choice.weights[std::size_t(choice.best_description)];
+  std::string why;
+  if (described.aicc > best + 0.05)
+    why = fmt::format("within {:.1f} of the best AICc with fewer parameters", described.aicc - best);
   else
-    choice.explanation = fmt::format("{} chosen: lowest AICc", law_name(c.law));
+    why = "lowest AICc";
+  if (choice.chosen == choice.best_description)
+    choice.explanation = fmt::format("{}: {} (Akaike weight {:.2f})", law_name(c.law), why, weight);
+  else
+    choice.explanation = fmt::format("best described as {} ({}, Akaike weight {:.2f}); parameters and intervals of "
+                                     "the general {} law, so they include the uncertainty of the law",
+                                     law_name(described.law), why, weight, law_name(c.law));
+  if (liquid && choice.chosen == newtonian_index) {
+    // A liquid: its viscosity assumes no shear-rate dependence, which the power-law fit may leave open.
+    const FitResult& pl = choice.candidates[std::size_t(index_of(Law::PowerLaw))];
+    bool settled = false;
+    if (pl.converged())
+      for (const auto& p : pl.parameters)
+        if (p.name == "flow_index") settled = p.identifiable && p.lower >= 0.8 && p.upper <= 1.25;
+    if (!settled)
+      choice.candidates[std::size_t(choice.chosen)].warnings.push_back(
+          "these readings cannot tell whether the viscosity depends on shear rate (a power-law fit leaves the "
+          "flow index open): the viscosity assumes it does not");
+  }
   return choice;
 }
 

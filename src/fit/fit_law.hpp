@@ -30,12 +30,16 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
 
 struct ModelChoice {
   std::vector<FitResult> candidates;  ///< every law tried, in all_laws() order
-  int chosen = -1;                    ///< index into candidates, -1 if none converged
-  std::string explanation;            ///< plain words: why this law
+  int chosen = -1;                    ///< the reported result (index into candidates), -1 if none converged
+  int best_description = -1;          ///< the law AICc prefers (index into candidates)
+  std::vector<double> weights;        ///< Akaike weights of the candidates (0 for a failed fit)
+  std::string explanation;            ///< plain words: which law describes the readings best and what is reported
 };
 
-/// Fits every law the data can support and picks by AICc, preferring the simpler law when the evidence is weak
-/// (AICc within 2 of the best; Burnham & Anderson 2002).
+/// Fits every law and names the best description by AICc, preferring the simpler law when the evidence is weak
+/// (AICc within 2 of the best; Burnham & Anderson 2002). The reported result is the general law's
+/// (Herschel-Bulkley) with profile-likelihood intervals, so its intervals include the uncertainty of the law;
+/// a liquid best described as Newtonian reports its viscosity.
 ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& options = {});
 
 /// Corrected Akaike information criterion for least squares with k estimated parameters (variance included):

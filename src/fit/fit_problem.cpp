@@ -32,11 +32,16 @@ FitProblem::FitProblem(const std::vector<FitSeries>& series, Law law, const FitO
   add(has_n ? "consistency" : "viscosity", std::log(k_min), std::log(k_max));
   if (has_n) add("flow_index", std::log(n_min), std::log(n_max));
   material_count_ = int(names_.size());
+  if (has_n && options.flow_index_prior) prior_index_ = material_count_ - 1;
 
   for (const FitSeries& s : series_) {
     std::vector<double> t, v;
     for (std::size_t i = 0; i < s.times.size(); ++i)
-      if (s.times[i] >= options.ignore_before) {
+      if (s.times[i] <= 0.0 && options.fit_time_origin) {
+        // A row at 0 s is what technicians write at the gate opening or ring lift ("0,0"): it marks the start of
+        // the clock, not a reading of the flow, and the moment of release is fitted as the release time anyway.
+        ++release_rows_;
+      } else if (s.times[i] >= options.ignore_before) {
         t.push_back(s.times[i]);
         v.push_back(s.values[i]);
       }
@@ -49,7 +54,14 @@ FitProblem::FitProblem(const std::vector<FitSeries>& series, Law law, const FitO
       origin_index_.push_back(int(names_.size()));
       const double first = t.front();
       const double span = t.back() - first;
-      add("time_origin", first - std::max(5.0, 0.5 * span), first - 1e-3 * std::max(span, 1.0));
+      // The release is at most a couple of seconds after the clock was started (a stopwatch or a video started at
+      // the lift; the inertial start is a fraction of a second, design notes section 3): common practice, no
+      // source. A later virtual release would let a fast, strongly shear-thinning flow that starts late mimic a
+      // sample coming to rest, a false valley of the fit.
+      const double low = first - std::max(5.0, 0.5 * span);
+      double high = first - 1e-3 * std::max(span, 1.0);
+      if (std::min(high, 2.0) > low + 1.0) high = std::min(high, 2.0);
+      add("time_origin", low, high);
     } else {
       origin_index_.push_back(-1);
     }
@@ -65,7 +77,8 @@ Material FitProblem::material(const Eigen::VectorXd& theta) const {
   int i = 0;
   if (law_ == Law::Bingham || law_ == Law::HerschelBulkley) m.yield_stress = std::exp(theta[i++]);
   m.consistency = std::exp(theta[i++]);
-  if (law_ == Law::PowerLaw || law_ == Law::HerschelBulkley) m.flow_index = std::exp(theta[i++]);
+  // exp(log(2)) may round above 2, which the law's own range check refuses.
+  if (law_ == Law::PowerLaw || law_ == Law::HerschelBulkley) m.flow_index = std::min(std::exp(theta[i++]), n_max);
   return m;
 }
 
@@ -115,11 +128,21 @@ bool FitProblem::residuals(const Eigen::VectorXd& theta, Eigen::VectorXd& r, std
     if (!predict(theta, s, times_[s], pred, failure)) return false;
     for (std::size_t i = 0; i < pred.size(); ++i) r[k++] = (pred[i] - values_[s][i]) / sigma_[s];
   }
+  if (prior_index_ >= 0) {
+    // The prior as one more observation of n: its square adds (n - typical)^2 / spread^2 to chi^2 in units of the
+    // residual variance (the scale is that variance's root when the variance is estimated from the residuals).
+    const FlowIndexPrior& prior = *options_.flow_index_prior;
+    r.conservativeResize(points_ + 1);
+    r[points_] = options_.prior_scale * (std::exp(theta[prior_index_]) - prior.typical) / prior.spread;
+  }
   return r.allFinite();
 }
 
 std::vector<std::string> FitProblem::notes(const Eigen::VectorXd& theta) const {
   std::vector<std::string> out;
+  if (release_rows_ > 0)
+    out.push_back(release_rows_ == 1 ? "the row at 0 s marks the release and is not fitted (the release time is)"
+                                     : "the rows at 0 s mark the releases and are not fitted (the release times are)");
   for (std::size_t s = 0; s < series_.size(); ++s) {
     if (times_[s].empty()) continue;
     const int idx = origin_index_[s];
@@ -136,6 +159,7 @@ void FitProblem::surrogate_residuals(const Eigen::VectorXd& theta, Eigen::Vector
   r.resize(points_);
   Eigen::Index k = 0;
   const Material m = material(theta);
+  // The surrogate stage ignores a prior: it only finds the basin; the full model's polish applies it.
   for (std::size_t s = 0; s < series_.size(); ++s) {
     if (times_[s].empty()) continue;
     const int idx = origin_index_[s];

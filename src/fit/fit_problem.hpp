@@ -21,6 +21,9 @@ class FitProblem {
   int material_parameters() const { return material_count_; }
   int size() const { return int(lower_.size()); }
   int points() const { return points_; }
+  /// Entries of the residual vector: the readings, plus one for a flow-index prior when it applies.
+  int residual_count() const { return points_ + (prior_index_ >= 0 ? 1 : 0); }
+  bool has_prior() const { return prior_index_ >= 0; }
   const Eigen::VectorXd& lower() const { return lower_; }
   const Eigen::VectorXd& upper() const { return upper_; }
   const std::vector<std::string>& names() const { return names_; }
@@ -30,7 +33,8 @@ class FitProblem {
   /// theta for a material and zero time origins (clamped into the bounds).
   Eigen::VectorXd parameters(const Material& m, const std::vector<double>& time_origins) const;
 
-  /// Weighted residuals (model - reading) / sigma of all fitted points. Returns false if a forward solve failed
+  /// Weighted residuals (model - reading) / sigma of all fitted points, then (with a flow-index prior)
+  /// prior_scale (n - typical) / spread. Returns false if a forward solve failed
   /// (message in *failure). Counts full-model solves in evaluations().
   bool residuals(const Eigen::VectorXd& theta, Eigen::VectorXd& r, std::string* failure = nullptr) const;
   /// The same with the low-order surrogate (global stage). Non-finite entries mark failure.
@@ -58,6 +62,8 @@ class FitProblem {
   Law law_;
   FitOptions options_;
   int material_count_ = 0;
+  int prior_index_ = -1;
+  int release_rows_ = 0;  // rows at 0 s left out (the release marker)  // parameter index of the flow index when a prior applies
   int points_ = 0;
   bool sigma_stated_ = true;
   Eigen::VectorXd lower_, upper_;

@@ -41,7 +41,7 @@ const Names kTimeOrigins{"fit", "zero"};
 const Names kSpecKeys{"viscosity", "yield_stress", "consistency", "flow_index"};
 const Names kCatalogueKeys{"viscosity",       "yield_stress",          "consistency",
                            "flow_index",      "reference_temperature", "activation_energy",
-                           "yield_stress_activation_energy"};
+                           "yield_stress_activation_energy", "flow_index_prior"};
 
 std::string_view type_name(const toml::node& node) {
   switch (node.type()) {
@@ -525,6 +525,23 @@ std::map<std::string, ProductSpec> DescriptionReader::read_catalogue() const {
     if (const toml::node* e = table.get("yield_stress_activation_energy"))
       spec.yield_stress_activation_energy =
           quantity(*e, product + ".yield_stress_activation_energy", Dimension::MolarEnergy, Range::NonNegative);
+    if (const toml::node* prior = table.get("flow_index_prior")) {
+      // [typical, spread]: a normal prior on the flow index, from the formulation's earlier batches.
+      const std::string field = product + ".flow_index_prior";
+      const toml::array* pair = prior->as_array();
+      if (!pair || pair->size() != 2)
+        fail(line_of(*prior), field, "expected [typical, spread], e.g. flow_index_prior = [0.4, 0.05]");
+      const double typical = quantity(*pair->get(0), field, Dimension::Dimensionless, Range::Positive);
+      const double spread = quantity(*pair->get(1), field, Dimension::Dimensionless, Range::Positive);
+      if (typical < 0.1 || typical > 2.0)
+        fail(line_of(*prior), field, fmt::format("typical flow index {:g}: expected a value in [0.1, 2]", typical));
+      if (spread < 0.005 || spread > 1.0)
+        fail(line_of(*prior), field,
+             fmt::format("spread {:g}: expected a standard deviation in [0.005, 1] (a smaller one would fix the "
+                         "flow index outright)",
+                         spread));
+      spec.flow_index_prior = std::pair{typical, spread};
+    }
     if ((spec.activation_energy > 0 || spec.yield_stress_activation_energy > 0) && !spec.reference_temperature)
       fail(line_of(*key), product,
            "activation energies need a reference_temperature (expected e.g. reference_temperature = \"20 degC\")");

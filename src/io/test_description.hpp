@@ -38,6 +38,7 @@
 #include <map>
 #include <optional>
 #include <string>
+#include <utility>
 #include <vector>
 
 #include "models/rheology.hpp"
@@ -82,6 +83,8 @@ struct ProductSpec {
   std::optional<double> reference_temperature;  ///< [K]; limits apply at this temperature
   double activation_energy = 0;                 ///< [J/mol] for viscosity / consistency; 0 = no shift
   double yield_stress_activation_energy = 0;    ///< [J/mol] for the yield stress; 0 = no shift
+  /// flow_index_prior = [typical, spread]: the formulation's flow index and its batch-to-batch standard deviation
+  std::optional<std::pair<double, double>> flow_index_prior;
 };
 
 /// A product spec catalogue (e.g. specs.toml): one table per product code, each holding limits written as in a

@@ -36,6 +36,17 @@ Verdict judge(const FitResult& result, const std::vector<io::SpecLimit>& limits)
     if (!c.pass) v.status = Verdict::Status::Fail;
     v.checks.push_back(c);
   }
+  // A fit that does not describe its readings (src/fit/fit_quality.hpp) never passes: its numbers may be right,
+  // but a person has to look first.
+  if (result.converged() && !result.quality.empty()) {
+    SpecCheck c;
+    c.parameter = "fit_quality";
+    c.available = false;
+    c.pass = false;
+    for (FitQuality q : result.quality) c.findings.push_back(std::string(fit_quality_name(q)));
+    v.checks.push_back(c);
+    v.status = Verdict::Status::Fail;
+  }
   return v;
 }
 

@@ -18,6 +18,7 @@ struct SpecCheck {
   bool available = true;  ///< the fitted law has this parameter and the fit converged
   bool pass = false;
   bool marginal = false;
+  std::vector<std::string> findings;  ///< parameter "fit_quality": the fit-quality findings that failed it
 };
 
 struct Verdict {
@@ -28,7 +29,9 @@ struct Verdict {
 std::string_view verdict_status_name(Verdict::Status s);
 
 /// None when there are no limits; Fail when any limit is violated or cannot be checked (a limit on a parameter
-/// the result does not have, or a failed fit, counts as failed: a line must not release on a missing number).
+/// the result does not have, or a failed fit, counts as failed: a line must not release on a missing number), and
+/// when the fit's quality is in doubt (an outlier, scatter above the resolution, a systematic misfit: the check
+/// "fit_quality" fails).
 Verdict judge(const FitResult& result, const std::vector<io::SpecLimit>& limits);
 
 }  // namespace spreadfit

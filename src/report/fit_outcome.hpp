@@ -16,6 +16,8 @@ struct FitOutcome {
   std::vector<io::TestDescription> tests;  ///< one or more tests of the same sample id (joint fit)
   std::vector<FitResult> candidates;       ///< every law tried (one when a law was named)
   int chosen = -1;                         ///< index into candidates; -1 when none converged
+  int best_description = -1;               ///< the law AICc prefers (index into candidates); -1 when one was named
+  std::vector<double> weights;             ///< Akaike weights of the candidates (empty when one law was named)
   std::string choice_explanation;
   Verdict verdict;                         ///< judged at the reference temperature when one applies
   std::optional<double> reference_temperature;        ///< [K], when the product sets one and the test gives its own

@@ -1,4 +1,5 @@
 #include "src/report/fit_plot.hpp"
+#include "src/report/interval_text.hpp"
 
 #include <fmt/format.h>
 
@@ -86,9 +87,7 @@ std::string parameter_text(const ParameterEstimate& p) {
   std::string name = p.name;
   std::replace(name.begin(), name.end(), '_', ' ');
   const std::string unit = p.unit == "-" ? "" : " " + p.unit;
-  std::string interval =
-      p.upper_only ? fmt::format("95%: below {:.4g}", p.upper) : fmt::format("95%: {:.4g} to {:.4g}", p.lower, p.upper);
-  if (!p.identifiable) interval += ", undetermined";
+  const std::string interval = "95%: " + interval_text(p);
   return fmt::format("{} {:.4g}{} ({})", name, p.value, unit, interval);
 }
 

@@ -60,7 +60,10 @@ nlohmann::json result_json(const FitOutcome& o) {
       if (p.name == "time_origin" && origins > 1) continue;  // listed per series under fit.time_origins
       json e = {{"value", p.value}, {"unit", p.unit}, {"ci95", {p.lower, p.upper}}};
       if (p.upper_only) e["upper_bound_only"] = true;
+      if (p.lower_open && !p.upper_only) e["lower_open"] = true;
+      if (p.upper_open) e["upper_open"] = true;
       if (!p.identifiable) e["identifiable"] = false;
+      e["interval"] = p.profiled ? "profile likelihood" : "quadratic";
       j["parameters"][p.name] = e;
     }
   }
@@ -107,16 +110,34 @@ nlohmann::json result_json(const FitOutcome& o) {
   }
   int evaluations = 0;
   json candidates = json::array();
-  for (const auto& c : o.candidates) {
+  for (std::size_t i = 0; i < o.candidates.size(); ++i) {
+    const FitResult& c = o.candidates[i];
     evaluations += c.evaluations;
     json e = {{"model", std::string(law_name(c.law))}, {"status", std::string(fit_status_name(c.status))}};
     e["aicc"] = c.converged() && std::isfinite(c.aicc) ? json(c.aicc) : json(nullptr);
+    if (i < o.weights.size()) e["akaike_weight"] = o.weights[i];
     if (!c.reason.empty()) e["reason"] = c.reason;
     candidates.push_back(e);
   }
   fit["evaluations"] = evaluations;
   fit["candidates"] = candidates;
   if (!o.choice_explanation.empty()) fit["choice"] = o.choice_explanation;
+  if (o.best_description >= 0)
+    fit["best_description"] = std::string(law_name(o.candidates[std::size_t(o.best_description)].law));
+  if (r) {
+    json quality = json::array();
+    for (FitQuality q : r->quality) quality.push_back(std::string(fit_quality_name(q)));
+    fit["quality"] = quality;
+    if (r->prior)
+      fit["prior"] = {{"parameter", "flow_index"}, {"typical", r->prior->typical}, {"spread", r->prior->spread},
+                      {"source", r->prior->source}};
+    if (!r->prior_note.empty()) fit["prior_note"] = r->prior_note;
+    if (r->without_prior) {
+      const ParameterEstimate& n = *r->without_prior;
+      fit["flow_index_without_prior"] = {{"value", n.value}, {"ci95", {n.lower, n.upper}},
+                                         {"determined", n.identifiable && !n.lower_open && !n.upper_open}};
+    }
+  }
   json warnings = json::array();
   if (r)
     for (const auto& w : r->warnings) warnings.push_back(w);
@@ -132,6 +153,7 @@ nlohmann::json result_json(const FitOutcome& o) {
     if (c.available) e["value"] = c.value;
     else e["value"] = nullptr;
     if (c.marginal) e["marginal"] = true;
+    if (!c.findings.empty()) e["findings"] = c.findings;
     checks.push_back(e);
   }
   j["verdict"] = {{"status", std::string(verdict_status_name(o.verdict.status))}, {"checks", checks}};

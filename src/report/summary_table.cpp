@@ -3,6 +3,8 @@
 #include <cmath>
 #include <fmt/format.h>
 
+#include "src/report/interval_text.hpp"
+
 namespace spreadfit {
 
 std::string summary_table(const FitOutcome& o) {
@@ -32,9 +34,7 @@ std::string summary_table(const FitOutcome& o) {
     s += "\n";
     s += fmt::format("  {:<14} {:>11}   {:<27} {}\n", "parameter", "value", "95% interval", "unit");
     for (const auto& p : r->parameters) {
-      std::string interval = p.upper_only ? fmt::format("below {:.4g}", p.upper)
-                                          : fmt::format("{:.4g} to {:.4g}", p.lower, p.upper);
-      if (!p.identifiable) interval += " (undetermined)";
+      const std::string interval = interval_text(p);
       s += fmt::format("  {:<14} {:>11.4g}   {:<27} {}\n", p.name, p.value, interval, p.unit);
     }
     if (std::isfinite(r->rmse))
@@ -56,13 +56,18 @@ std::string summary_table(const FitOutcome& o) {
                      *o.reference_temperature - 273.15);
     for (const auto& p : o.reference_parameters)
       s += fmt::format("  {:<14} {:>11.4g}   {:<27} {}\n", p.name, p.value,
-                       p.upper_only ? fmt::format("below {:.4g}", p.upper)
-                                    : fmt::format("{:.4g} to {:.4g}", p.lower, p.upper),
-                       p.unit);
+                       interval_text(p), p.unit);
   }
   if (o.verdict.status != Verdict::Status::None) {
     s += fmt::format("  verdict: {}\n", o.verdict.status == Verdict::Status::Pass ? "PASS" : "FAIL");
     for (const auto& c : o.verdict.checks) {
+      if (c.parameter == "fit_quality") {
+        std::string findings;
+        for (const auto& f : c.findings) findings += (findings.empty() ? "" : ", ") + f;
+        s += fmt::format("    {:<14} {}: FAIL (see the warnings: the fit does not describe the readings)\n",
+                         c.parameter, findings);
+        continue;
+      }
       const std::string value = c.available ? fmt::format("{:.4g}", c.value) : std::string("not available");
       s += fmt::format("    {:<14} {:>13} in [{:.4g}, {:.4g}]: {}{}\n", c.parameter, value, c.low, c.high,
                        c.pass ? "pass" : "FAIL", c.marginal ? " (marginal: the 95% interval crosses a limit)" : "");

@@ -1,0 +1,183 @@
+#include "src/fit/profile_likelihood.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <utility>
+#include <vector>
+
+namespace spreadfit {
+
+ProfileLikelihood::ProfileLikelihood(ResidualFunction f, Eigen::VectorXd lower, Eigen::VectorXd upper,
+                                     Eigen::VectorXd fd_step, Eigen::VectorXd best_x, double best_cost, double s2,
+                                     double q, Eigen::MatrixXd covariance, ProfileOptions options)
+    : f_(std::move(f)),
+      lower_(std::move(lower)),
+      upper_(std::move(upper)),
+      step_(std::move(fd_step)),
+      best_(std::move(best_x)),
+      best_cost_(best_cost),
+      s2_(s2),
+      q_(q),
+      cov_(std::move(covariance)),
+      options_(options),
+      better_cost_(best_cost) {}
+
+std::optional<Eigen::VectorXd> ProfileLikelihood::better_point() const {
+  const std::lock_guard<std::mutex> hold(better_lock_);
+  return better_;
+}
+
+ProfileLikelihood::Refit ProfileLikelihood::refit(int j, double value, const Eigen::VectorXd& warm) const {
+  const Eigen::Index p = best_.size();
+  Eigen::VectorXd lo(p - 1), hi(p - 1), h(p - 1);
+  for (Eigen::Index i = 0, k = 0; i < p; ++i) {
+    if (i == j) continue;
+    lo[k] = lower_[i];
+    hi[k] = upper_[i];
+    h[k] = step_[i];
+    ++k;
+  }
+  auto full = [&](const Eigen::VectorXd& rest) {
+    Eigen::VectorXd theta(p);
+    for (Eigen::Index i = 0, k = 0; i < p; ++i) theta[i] = i == j ? value : rest[k++];
+    return theta;
+  };
+  const ResidualFunction g = [&](const Eigen::VectorXd& rest, Eigen::VectorXd& r) { return f_(full(rest), r); };
+  LmOptions o;
+  o.max_iterations = options_.refit_iterations;
+  o.initial_damping = 1e-6;
+  o.fd_step = h;
+  const LmResult sub = p > 1 ? levenberg_marquardt(g, warm.cwiseMax(lo).cwiseMin(hi), lo, hi, o) : [&] {
+    LmResult only;
+    only.x = Eigen::VectorXd(0);
+    only.model_failed = !f_(full(only.x), only.r);
+    only.cost = 0.5 * only.r.squaredNorm();
+    return only;
+  }();
+  Refit out;
+  // A refit the model failed in is no conditional optimum: no information, and no warm start for the next one.
+  if (sub.model_failed || sub.r.size() == 0 || !std::isfinite(sub.cost)) return out;
+  out.ok = true;
+  out.rest = sub.x;
+  out.tau = std::sqrt(2.0 * std::max(sub.cost - best_cost_, 0.0) / s2_);
+  // Clearly below the optimum (by more than 1% of one unit of the cut-off scale): the optimum was not one.
+  if (sub.cost < best_cost_ - 0.01 * s2_) {
+    const std::lock_guard<std::mutex> hold(better_lock_);
+    if (sub.cost < better_cost_) {
+      better_cost_ = sub.cost;
+      better_ = full(sub.x);
+    }
+  }
+  return out;
+}
+
+ProfileSide ProfileLikelihood::side(int j, int dir) const {
+  const Eigen::Index p = best_.size();
+  const double x = best_[j];
+  const double room = dir > 0 ? upper_[j] - x : x - lower_[j];
+  ProfileSide out;
+  out.limit = dir > 0 ? upper_[j] : lower_[j];
+  out.end = ProfileEnd::Bound;
+  if (room <= 1e-9) return out;
+
+  // The quadratic approximation gives the first step and the direction in which the other parameters move
+  // (their regression on parameter j: cov(rest, j) / var(j)); where it is undetermined, a fixed first step.
+  Eigen::VectorXd rest0(p - 1), slope = Eigen::VectorXd::Zero(p - 1), lo(p - 1), hi(p - 1);
+  const double var = cov_.size() ? cov_(j, j) : std::numeric_limits<double>::infinity();
+  for (Eigen::Index i = 0, k = 0; i < p; ++i) {
+    if (i == j) continue;
+    rest0[k] = best_[i];
+    lo[k] = lower_[i];
+    hi[k] = upper_[i];
+    if (std::isfinite(var) && var > 0 && std::isfinite(cov_(i, j))) slope[k] = cov_(i, j) / var;
+    ++k;
+  }
+  const double wald = std::isfinite(var) && var > 0 ? q_ * std::sqrt(var) : options_.max_first_step;
+  const double first = std::min({options_.first_step * wald, options_.max_first_step, room});
+
+  struct Point {
+    double t, tau;
+    Eigen::VectorXd rest;
+  };
+  Point prev{0.0, 0.0, rest0};
+  std::optional<Point> before;  // the point before prev, for extrapolating the trace
+  double t = std::max(first, 1e-6 * std::max(1.0, std::abs(x)));
+  int failures = 0;
+  const double goal = q_, tol = options_.tolerance;
+  auto warm_at = [&](double at) -> Eigen::VectorXd {
+    Eigen::VectorXd w = before ? Eigen::VectorXd(prev.rest + (prev.rest - before->rest) * (at - prev.t) /
+                                                                 (prev.t - before->t))
+                               : Eigen::VectorXd(rest0 + slope * (dir * at));
+    return w.cwiseMax(lo).cwiseMin(hi);
+  };
+  while (out.refits < options_.max_refits) {
+    const Refit r = refit(j, x + dir * t, warm_at(t));
+    ++out.refits;
+    if (!r.ok) {
+      // Step back towards the last good point; three failures in a row end the side (reported open).
+      if (++failures >= 3) {
+        out.end = ProfileEnd::Failed;
+        return out;
+      }
+      t = prev.t + 0.5 * (t - prev.t);
+      continue;
+    }
+    failures = 0;
+    if (r.tau >= goal * (1.0 - tol)) {
+      if (r.tau <= goal * (1.0 + tol)) {
+        out.limit = x + dir * t;
+        out.end = ProfileEnd::Crossed;
+        return out;
+      }
+      // Bracketed between prev (below) and this point (above): regula falsi on tau with the Illinois
+      // modification (Dowell & Jarratt 1971), which keeps a steep side (the profile of a yield stress rises like a
+      // wall where the sample could no longer reach its final spread) from stalling the search; refits are
+      // warm-started by interpolating the trace. Ends when tau is within the tolerance or the bracket is
+      // narrower than step_tolerance.
+      Point a = prev, b{t, r.tau, r.rest};
+      double fa = a.tau - goal, fb = b.tau - goal;
+      int last = 0;  // which end was replaced last: -1 a, +1 b
+      double ts = a.t - fa * (b.t - a.t) / (fb - fa);
+      const double width_tol = options_.step_tolerance * std::max(1.0, std::abs(x));
+      while (out.refits < options_.max_refits && b.t - a.t > width_tol) {
+        const double w = (ts - a.t) / (b.t - a.t);
+        const Eigen::VectorXd warm = ((1.0 - w) * a.rest + w * b.rest).cwiseMax(lo).cwiseMin(hi);
+        const Refit m = refit(j, x + dir * ts, warm);
+        ++out.refits;
+        if (!m.ok) break;
+        if (std::abs(m.tau / goal - 1.0) <= tol) break;
+        if (m.tau < goal) {
+          a = Point{ts, m.tau, m.rest};
+          fa = m.tau - goal;
+          if (last == -1) fb *= 0.5;
+          last = -1;
+        } else {
+          b = Point{ts, m.tau, m.rest};
+          fb = m.tau - goal;
+          if (last == +1) fa *= 0.5;
+          last = +1;
+        }
+        ts = a.t - fa * (b.t - a.t) / (fb - fa);
+      }
+      out.limit = x + dir * ts;
+      out.end = ProfileEnd::Crossed;
+      return out;
+    }
+    if (t >= room * (1.0 - 1e-12)) return out;  // the box's edge within the cut-off: open
+    // Next step: the secant of tau aimed a little past the cut-off, so the crossing is usually bracketed in one;
+    // the step at most doubles (continuation: the warm start stays good) and at least grows by half.
+    const double dt = t - prev.t;
+    const double rate = (r.tau - prev.tau) / dt;
+    double next = rate > 0 ? t + 1.15 * (goal - r.tau) / rate : t + 2.0 * dt;
+    next = std::clamp(next, t + 0.5 * dt, t + 2.0 * dt);
+    before = prev;
+    prev = Point{t, r.tau, r.rest};
+    t = std::min(next, room);
+  }
+  // Out of refits below the cut-off: the limit lies beyond the last point reached, so the side is reported open
+  // (errs wide, never narrow).
+  out.end = ProfileEnd::Failed;
+  return out;
+}
+
+}  // namespace spreadfit
