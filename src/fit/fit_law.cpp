@@ -20,6 +20,7 @@
 #include "src/fit/levenberg_marquardt.hpp"
 #include "src/fit/profile_likelihood.hpp"
 #include "src/fit/fit_quality.hpp"
+#include "src/fit/likelihood_draws.hpp"
 #include "src/parallel_for.hpp"
 
 namespace spreadfit {
@@ -442,6 +443,31 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
       if (e.identifiable) ++identifiable;
     }
     out.parameters.push_back(e);
+  }
+  if (profiled && options.likelihood_draws > 0) {
+    // Draws from the likelihood for bands, on the coarse problem like the profiles, moved to the fine optimum.
+    const FitProblem& sampled = coarse_ok ? *coarse : problem;
+    const LmResult& around = coarse_ok ? coarse_best : best;
+    Eigen::VectorXd lo(p), hi(p);
+    for (int i = 0; i < p; ++i) {
+      const ParameterEstimate& e = out.parameters[std::size_t(i)];
+      const bool log_scale = i < problem.material_parameters();
+      lo[i] = log_scale ? (e.lower > 0 ? std::log(e.lower) : problem.lower()[i]) : e.lower;
+      hi[i] = log_scale ? std::log(e.upper) : e.upper;
+      lo[i] += around.x[i] - best.x[i];
+      hi[i] += around.x[i] - best.x[i];
+    }
+    std::vector<Eigen::VectorXd> centres;
+    for (const Profiles* set : {&profiles}) 
+      for (const ProfileSide& side : set->sides) centres.insert(centres.end(), side.trace.begin(), side.trace.end());
+    for (const Profiles& other : other_basins)
+      for (const ProfileSide& side : other.sides) centres.insert(centres.end(), side.trace.begin(), side.trace.end());
+    const LikelihoodDraws d =
+        likelihood_draws(sampled, around.x, around.cost, s2, wald_covariance(around.jacobian, s2), lo, hi, centres,
+                         2 * options.likelihood_draws, options.likelihood_draws);
+    for (const Eigen::VectorXd& t : d.draws)
+      out.draws.push_back((t + best.x - around.x).cwiseMax(problem.lower()).cwiseMin(problem.upper()));
+    out.draws_effective_size = d.effective_size;
   }
   {
     std::string pairs;

@@ -39,6 +39,8 @@ struct FitOptions {
   int global_evaluations = 2000;   ///< NLopt DIRECT-L evaluations of the starting-point stage
   bool profile_intervals = true;   ///< profile-likelihood intervals for every material parameter (else quadratic)
   std::optional<FlowIndexPrior> flow_index_prior;  ///< product knowledge on the flow index (none by default)
+  int likelihood_draws = 200;      ///< parameter vectors drawn from the likelihood for bands (with profile
+                                   ///< intervals; src/fit/likelihood_draws.hpp); 0 for none
   double prior_scale = 1.0;        ///< the prior residual's scale: sqrt of the residual variance in weighting
                                    ///< units (1 with a stated resolution; set by fit_with_prior otherwise)
   ForwardOptions forward;          ///< numerical settings of every forward solve
@@ -80,6 +82,9 @@ struct FitResult {
                                              ///< release times [s]), in the order of `names`
   Eigen::MatrixXd covariance;                ///< of `estimate` (quadratic approximation; infinite where undetermined)
   std::vector<std::string> names;            ///< fitted parameter names in the correlation's order
+  std::vector<Eigen::VectorXd> draws;        ///< parameter vectors drawn from the likelihood (layout of
+                                             ///< `estimate`), for bands; empty without profile intervals
+  double draws_effective_size = 0;           ///< importance-sampling effective size behind `draws`
   double rmse = 0;                           ///< root mean square of the unweighted residuals [m]
   double sigma = 0;                          ///< reading standard uncertainty used for the intervals [m]
   double aicc = 0;

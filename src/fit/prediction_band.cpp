@@ -63,6 +63,13 @@ FitResult material_only(const FitResult& fit) {
     for (Eigen::Index b = 0; b < k; ++b)
       out.covariance(a, b) = fit.covariance(keep[std::size_t(a)], keep[std::size_t(b)]);
   }
+  out.draws.clear();
+  for (const Eigen::VectorXd& d : fit.draws) {
+    if (d.size() != fit.estimate.size()) continue;
+    Eigen::VectorXd kept(k);
+    for (Eigen::Index a = 0; a < k; ++a) kept[a] = d[keep[std::size_t(a)]];
+    out.draws.push_back(kept);
+  }
   out.time_origins = {0.0};
   return out;
 }
@@ -84,18 +91,26 @@ PredictionBand prediction_band(const FitResult& fit, const TestSetup& setup, con
   }
   band.lower = band.upper = band.reading;
   const Eigen::Index p = fit.estimate.size();
-  if (samples <= 0 || p == 0 || !fit.covariance.allFinite()) return band;
-  const Eigen::LLT<Eigen::MatrixXd> llt(fit.covariance + 1e-12 * Eigen::MatrixXd::Identity(p, p));
-  if (llt.info() != Eigen::Success) return band;
-  const Eigen::MatrixXd L = llt.matrixL();
-  // Draws first, from one generator in a fixed order (reproducible), then the solves on every core.
-  std::mt19937 rng(seed);
-  std::normal_distribution<double> normal(0.0, 1.0);
+  if (samples <= 0 || p == 0) return band;
   std::vector<Eigen::VectorXd> parameters;
-  for (int k = 0; k < samples; ++k) {
-    Eigen::VectorXd z(p);
-    for (Eigen::Index i = 0; i < p; ++i) z[i] = normal(rng);
-    parameters.push_back(fit.estimate + L * z);
+  if (!fit.draws.empty()) {
+    // The fit's own draws from its likelihood (src/fit/likelihood_draws.hpp), up to `samples` of them.
+    for (const Eigen::VectorXd& d : fit.draws)
+      if (d.size() == p && int(parameters.size()) < samples) parameters.push_back(d);
+  } else {
+    // A result without likelihood draws (quadratic intervals only): the log-space normal approximation.
+    if (!fit.covariance.allFinite()) return band;
+    const Eigen::LLT<Eigen::MatrixXd> llt(fit.covariance + 1e-12 * Eigen::MatrixXd::Identity(p, p));
+    if (llt.info() != Eigen::Success) return band;
+    const Eigen::MatrixXd L = llt.matrixL();
+    // Draws first, from one generator in a fixed order (reproducible), then the solves on every core.
+    std::mt19937 rng(seed);
+    std::normal_distribution<double> normal(0.0, 1.0);
+    for (int k = 0; k < samples; ++k) {
+      Eigen::VectorXd z(p);
+      for (Eigen::Index i = 0; i < p; ++i) z[i] = normal(rng);
+      parameters.push_back(fit.estimate + L * z);
+    }
   }
   std::vector<std::vector<double>> solved(parameters.size());
   std::vector<Outcome> outcome(parameters.size());

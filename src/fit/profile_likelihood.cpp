@@ -110,9 +110,16 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
                                : Eigen::VectorXd(rest0 + slope * (dir * at));
     return w.cwiseMax(lo).cwiseMin(hi);
   };
+  auto keep_trace = [&](double at, const Refit& r) {
+    if (!r.ok || r.tau > 1.5 * goal) return;
+    Eigen::VectorXd theta(p);
+    for (Eigen::Index i = 0, k = 0; i < p; ++i) theta[i] = i == j ? x + dir * at : r.rest[k++];
+    out.trace.push_back(std::move(theta));
+  };
   while (out.refits < options_.max_refits) {
     const Refit r = refit(j, x + dir * t, warm_at(t));
     ++out.refits;
+    keep_trace(t, r);
     if (!r.ok) {
       // Step back towards the last good point; three failures in a row end the side (reported open).
       if (++failures >= 3) {
@@ -144,6 +151,7 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
         const Eigen::VectorXd warm = ((1.0 - w) * a.rest + w * b.rest).cwiseMax(lo).cwiseMin(hi);
         const Refit m = refit(j, x + dir * ts, warm);
         ++out.refits;
+        keep_trace(ts, m);
         if (!m.ok) break;
         if (std::abs(m.tau / goal - 1.0) <= tol) break;
         if (m.tau < goal) {

@@ -20,6 +20,7 @@
 #include <Eigen/Core>
 #include <mutex>
 #include <optional>
+#include <vector>
 
 #include "src/fit/levenberg_marquardt.hpp"
 
@@ -35,6 +36,9 @@ struct ProfileSide {
   double limit = 0;  ///< the parameter's value at the limit (the box limit when open)
   ProfileEnd end = ProfileEnd::Failed;
   int refits = 0;    ///< conditional fits spent on this side
+  /// The full parameter vectors of the refits along the walk with tau within 1.5 x the cut-off: points on the
+  /// likelihood's ridge (src/fit/likelihood_draws.hpp centres its proposals on them).
+  std::vector<Eigen::VectorXd> trace;
 };
 
 struct ProfileOptions {

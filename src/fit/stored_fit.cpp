@@ -52,6 +52,16 @@ FitResult load_fitted_material(const std::filesystem::path& path) {
         const auto& v = cov.at(std::size_t(a)).at(std::size_t(b));
         r.covariance(a, b) = v.is_null() ? std::numeric_limits<double>::infinity() : v.get<double>();
       }
+    // The likelihood draws, when the result has them (an older result has only the covariance).
+    if (block->contains("draws")) {
+      for (const auto& d : (*block)["draws"]) {
+        const auto v = d.get<std::vector<double>>();
+        if (Eigen::Index(v.size()) != p) throw io::InputError(file, 0, "fit.log_space.draws", "draw size mismatch");
+        for (double x : v)
+          if (!std::isfinite(x)) throw io::InputError(file, 0, "fit.log_space.draws", "a draw is not finite");
+        r.draws.push_back(Eigen::Map<const Eigen::VectorXd>(v.data(), p));
+      }
+    }
   } catch (const nlohmann::json::exception& e) {
     throw io::InputError(file, 0, "fit.log_space", std::string("malformed: ") + e.what());
   }

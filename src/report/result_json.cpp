@@ -104,6 +104,13 @@ nlohmann::json result_json(const FitOutcome& o) {
         fit["log_space"] = {{"parameters", r->names},
                             {"estimate", std::vector<double>(r->estimate.data(), r->estimate.data() + r->estimate.size())},
                             {"covariance", cov}};
+        // Parameter vectors drawn from the likelihood (src/fit/likelihood_draws.hpp): predict's band uses them.
+        if (!r->draws.empty()) {
+          json draws = json::array();
+          for (const Eigen::VectorXd& d : r->draws) draws.push_back(std::vector<double>(d.data(), d.data() + d.size()));
+          fit["log_space"]["draws"] = draws;
+          fit["log_space"]["draws_effective_size"] = r->draws_effective_size;
+        }
       }
     }
     fit["points"] = shown->points;
