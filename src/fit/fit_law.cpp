@@ -3,6 +3,7 @@
 #include <Eigen/Eigenvalues>
 #include <Eigen/LU>
 #include <algorithm>
+#include <boost/math/distributions/chi_squared.hpp>
 #include <boost/math/distributions/students_t.hpp>
 #include <cmath>
 #include <cstdlib>
@@ -20,6 +21,7 @@
 #include "src/fit/levenberg_marquardt.hpp"
 #include "src/fit/profile_likelihood.hpp"
 #include "src/fit/fit_quality.hpp"
+#include "src/fit/final_only.hpp"
 #include "src/fit/likelihood_draws.hpp"
 #include "src/parallel_for.hpp"
 
@@ -172,6 +174,46 @@ Profiles profile_material(const FitProblem& problem, const LmResult& best, doubl
   return out;
 }
 
+// A sample at rest from the first reading on (a stiff paste that stopped within seconds): the curve carries no
+// rate information, and the refits of a profile cannot move its nearly static layer, but the arrested reading
+// itself gives the yield stress by the rig's plastic-limit relation (src/fit/final_only.hpp; Roussel & Coussot
+// 2005 on the plate). Applies to one channel or plate series whose readings scatter about their mean no more
+// than the reading uncertainty allows; replaces the undetermined yield-stress estimate of `out`. Returns whether
+// it did.
+bool arrested_yield_stress(const std::vector<FitSeries>& series, const FitProblem& problem, FitResult& out) {
+  if (series.size() != 1) return false;
+  const FitSeries& s = series.front();
+  if (!std::holds_alternative<ChannelRig>(s.setup.rig) && !std::holds_alternative<PlateRig>(s.setup.rig)) return false;
+  const std::vector<double>& v = problem.fitted_values()[0];
+  if (v.size() < 3) return false;
+  double mean = 0;
+  for (double x : v) mean += x;
+  mean /= double(v.size());
+  const double sigma = s.sigma ? *s.sigma : out.rmse;
+  if (!(sigma > 0)) return false;
+  // At rest: the readings scatter about their mean no more than the reading uncertainty allows (chi-square at the
+  // 1% level on n - 1 degrees of freedom).
+  double chi2 = 0;
+  for (double x : v) chi2 += (x - mean) * (x - mean) / (sigma * sigma);
+  if (chi2 > boost::math::quantile(boost::math::chi_squared(double(v.size() - 1)), 0.99)) return false;
+  const auto [lo, hi] = std::minmax_element(v.begin(), v.end());
+  // The mean of n readings at rest has standard uncertainty sigma / sqrt(n).
+  const FitResult arrested = fit_final_reading(s.setup, mean, sigma / std::sqrt(double(v.size())));
+  if (!arrested.converged() || arrested.parameters.empty()) return false;
+  for (ParameterEstimate& e : out.parameters)
+    if (e.name == "yield_stress") {
+      e = arrested.parameters.front();
+      out.warnings.push_back(fmt::format(
+          "the sample was at rest from the first reading on (readings within {:.2g} mm, as scattered as the "
+          "reading uncertainty allows): the yield stress comes "
+          "from the arrested reading by the plastic-limit relation, as for a final-only test; read from the "
+          "release to determine the other parameters",
+          (*hi - *lo) * 1e3));
+      return true;
+    }
+  return false;
+}
+
 }  // namespace
 
 FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOptions& options,
@@ -201,15 +243,28 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
     failure = why;
     return false;
   };
-  if (!hints.empty()) {
+  {
+    // The polish starts from whichever candidate fits the full model best: the global stage's point, the related
+    // fits' materials, and, should the full model fail at all of those (a stiff, nearly arrested flow at an
+    // extreme corner of the box), points moved halfway, then all the way, to the centre of the box.
     Eigen::VectorXd r;
-    double best_cost = f(start, r) ? r.squaredNorm() : std::numeric_limits<double>::infinity();
-    for (const FitResult& h : hints) {
-      if (h.status != FitStatus::Converged && h.status != FitStatus::NotIdentifiable) continue;
-      const Eigen::VectorXd theta = problem.parameters(h.material, h.time_origins);
-      if (f(theta, r) && r.squaredNorm() < best_cost) {
+    double best_cost = std::numeric_limits<double>::infinity();
+    std::vector<Eigen::VectorXd> candidates{start};
+    for (const FitResult& h : hints)
+      if (h.status == FitStatus::Converged || h.status == FitStatus::NotIdentifiable)
+        candidates.push_back(problem.parameters(h.material, h.time_origins));
+    const Eigen::VectorXd centre = 0.5 * (problem.lower() + problem.upper());
+    const std::size_t first_fallback = candidates.size();
+    for (double w : {0.5, 1.0}) {
+      Eigen::VectorXd moved = (1.0 - w) * start + w * centre;
+      for (int i = problem.material_parameters(); i < p; ++i) moved[i] = start[i];  // release times stay
+      candidates.push_back(moved);
+    }
+    for (std::size_t c = 0; c < candidates.size(); ++c) {
+      if (c >= first_fallback && std::isfinite(best_cost)) break;
+      if (f(candidates[c], r) && r.squaredNorm() < best_cost) {
         best_cost = r.squaredNorm();
-        start = theta;
+        start = candidates[c];
       }
     }
   }
@@ -226,7 +281,10 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
     coarse.emplace(series, law, coarse_options);
     auto fc = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return coarse->residuals(x, r); };
     coarse_best = levenberg_marquardt(fc, start, problem.lower(), problem.upper(), lm);
-    if (coarse_best.r.size() == problem.residual_count()) start = coarse_best.x;
+    // The coarse optimum starts the fine polish, unless the fine model fails there (a stiff corner that the
+    // coarser grid still solves): then the fine polish starts where the coarse one did.
+    Eigen::VectorXd probe;
+    if (coarse_best.r.size() == problem.residual_count() && problem.residuals(coarse_best.x, probe)) start = coarse_best.x;
     lm.max_iterations = std::max(8, options.max_iterations / 3);
     lm.initial_damping = 1e-6;
   }
@@ -458,8 +516,7 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
       hi[i] += around.x[i] - best.x[i];
     }
     std::vector<Eigen::VectorXd> centres;
-    for (const Profiles* set : {&profiles}) 
-      for (const ProfileSide& side : set->sides) centres.insert(centres.end(), side.trace.begin(), side.trace.end());
+    for (const ProfileSide& side : profiles.sides) centres.insert(centres.end(), side.trace.begin(), side.trace.end());
     for (const Profiles& other : other_basins)
       for (const ProfileSide& side : other.sides) centres.insert(centres.end(), side.trace.begin(), side.trace.end());
     const LikelihoodDraws d =
@@ -467,6 +524,16 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
                          2 * options.likelihood_draws, options.likelihood_draws);
     for (const Eigen::VectorXd& t : d.draws)
       out.draws.push_back((t + best.x - around.x).cwiseMax(problem.lower()).cwiseMin(problem.upper()));
+    // The walks' points within the cut-off are inside the likelihood region by construction; a band that misses
+    // one of them understates the uncertainty (the resampled draws are few where the ridge is long and thin).
+    auto add_ridge = [&](const Profiles& set) {
+      for (const ProfileSide& side : set.sides)
+        for (std::size_t k = 0; k < side.trace.size(); ++k)
+          if (side.trace_tau[k] <= q)
+            out.ridge.push_back((side.trace[k] + best.x - around.x).cwiseMax(problem.lower()).cwiseMin(problem.upper()));
+    };
+    add_ridge(profiles);
+    for (const Profiles& other : other_basins) add_ridge(other);
     out.draws_effective_size = d.effective_size;
   }
   {
@@ -495,9 +562,9 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
       for (std::size_t i = 0; i < sr.times.size(); ++i, ++k) sr.residuals.push_back(best.r[k] * problem.weight_sigma(s));
       residuals.push_back(std::move(sr));
     }
-    for (QualityFinding& q : judge_fit_quality(residuals, p)) {
-      out.quality.push_back(q.kind);
-      out.warnings.push_back(std::move(q.message));
+    for (QualityFinding& finding : judge_fit_quality(residuals, p)) {
+      out.quality.push_back(finding.kind);
+      out.warnings.push_back(std::move(finding.message));
     }
   }
   out.evaluations = problem.evaluations() + (coarse ? coarse->evaluations() : 0);
@@ -508,7 +575,7 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
   if (!optimum) {
     out.status = FitStatus::NotConverged;
     out.reason = best.message;
-  } else if (identifiable == 0) {
+  } else if (identifiable == 0 && !arrested_yield_stress(series, problem, out)) {
     out.status = FitStatus::NotIdentifiable;
     out.reason = "no material parameter is determined by these readings";
   } else {

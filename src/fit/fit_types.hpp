@@ -85,6 +85,8 @@ struct FitResult {
   std::vector<Eigen::VectorXd> draws;        ///< parameter vectors drawn from the likelihood (layout of
                                              ///< `estimate`), for bands; empty without profile intervals
   double draws_effective_size = 0;           ///< importance-sampling effective size behind `draws`
+  std::vector<Eigen::VectorXd> ridge;        ///< profile-walk points inside the 95% likelihood region (layout of
+                                             ///< `estimate`): a band must reach every one of them
   double rmse = 0;                           ///< root mean square of the unweighted residuals [m]
   double sigma = 0;                          ///< reading standard uncertainty used for the intervals [m]
   double aicc = 0;

@@ -20,7 +20,20 @@ bool finite_difference_jacobian(const ResidualFunction& f, const Eigen::VectorXd
     if (x[j] + h > upper[j]) h = -h;
     Eigen::VectorXd xp = x, rp;
     xp[j] = x[j] + h;
-    if (!f(xp, rp) || rp.size() != r.size()) return;
+    if (!f(xp, rp) || rp.size() != r.size()) {
+      // The model may fail on one side only (a stiff, nearly arrested flow at the edge of what it can solve):
+      // the difference on the other side, then a smaller step, before giving up.
+      bool solved = false;
+      for (double g : {-h, 0.25 * h, -0.25 * h}) {
+        xp[j] = x[j] + g;
+        if (f(xp, rp) && rp.size() == r.size()) {
+          h = g;
+          solved = true;
+          break;
+        }
+      }
+      if (!solved) return;
+    }
     J.col(j) = (rp - r) / h;
     ok[column] = 1;
   });

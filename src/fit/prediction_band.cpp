@@ -63,13 +63,17 @@ FitResult material_only(const FitResult& fit) {
     for (Eigen::Index b = 0; b < k; ++b)
       out.covariance(a, b) = fit.covariance(keep[std::size_t(a)], keep[std::size_t(b)]);
   }
-  out.draws.clear();
-  for (const Eigen::VectorXd& d : fit.draws) {
-    if (d.size() != fit.estimate.size()) continue;
-    Eigen::VectorXd kept(k);
-    for (Eigen::Index a = 0; a < k; ++a) kept[a] = d[keep[std::size_t(a)]];
-    out.draws.push_back(kept);
-  }
+  auto restrict = [&](const std::vector<Eigen::VectorXd>& from, std::vector<Eigen::VectorXd>& to) {
+    to.clear();
+    for (const Eigen::VectorXd& d : from) {
+      if (d.size() != fit.estimate.size()) continue;
+      Eigen::VectorXd kept(k);
+      for (Eigen::Index a = 0; a < k; ++a) kept[a] = d[keep[std::size_t(a)]];
+      to.push_back(kept);
+    }
+  };
+  restrict(fit.draws, out.draws);
+  restrict(fit.ridge, out.ridge);
   out.time_origins = {0.0};
   return out;
 }
@@ -130,14 +134,31 @@ PredictionBand prediction_band(const FitResult& fit, const TestSetup& setup, con
       ++band.failed;
   }
   band.samples = int(draws.size());
-  if (draws.size() < 10) return band;
-  std::vector<double> column(draws.size());
-  for (std::size_t i = 0; i < times.size(); ++i) {
-    for (std::size_t k = 0; k < draws.size(); ++k) column[k] = draws[k][i];
-    std::sort(column.begin(), column.end());
-    band.lower[i] = column[std::size_t(0.025 * double(column.size() - 1))];
-    band.upper[i] = column[std::size_t(std::ceil(0.975 * double(column.size() - 1)))];
+  if (draws.size() >= 10) {
+    std::vector<double> column(draws.size());
+    for (std::size_t i = 0; i < times.size(); ++i) {
+      for (std::size_t k = 0; k < draws.size(); ++k) column[k] = draws[k][i];
+      std::sort(column.begin(), column.end());
+      band.lower[i] = column[std::size_t(0.025 * double(column.size() - 1))];
+      band.upper[i] = column[std::size_t(std::ceil(0.975 * double(column.size() - 1)))];
+    }
   }
+  // The band reaches every point of the likelihood region the profile walks found (FitResult::ridge).
+  std::vector<std::vector<double>> ridge(fit.ridge.size());
+  std::vector<Outcome> ridge_outcome(fit.ridge.size(), Outcome::Failed);
+  parallel_for(fit.ridge.size(), [&](std::size_t k) {
+    if (fit.ridge[k].size() != p) return;
+    Material mk;
+    double tk = 0;
+    unpack(fit, fit.ridge[k], series_index, mk, tk);
+    ridge_outcome[k] = run(setup, mk, tk, times, ridge[k]);
+  });
+  for (std::size_t k = 0; k < ridge.size(); ++k)
+    if (ridge_outcome[k] == Outcome::Solved)
+      for (std::size_t i = 0; i < times.size(); ++i) {
+        band.lower[i] = std::min(band.lower[i], ridge[k][i]);
+        band.upper[i] = std::max(band.upper[i], ridge[k][i]);
+      }
   return band;
 }
 

@@ -1,7 +1,10 @@
-// Predicted readings of a fitted material with a 95% band that carries the fit's uncertainty: parameter vectors
-// are drawn from the fitted log-space normal approximation (mean `estimate`, covariance `covariance`), each is run
-// through the forward model, and the band is the 2.5% and 97.5% quantiles at every time. Sampling rather than
-// linear propagation because readings are strongly nonlinear in the parameters near arrest.
+// Predicted readings of a fitted material with a 95% band that carries the fit's uncertainty: the fit's parameter
+// vectors drawn from its likelihood (FitResult::draws, src/fit/likelihood_draws.hpp; for an older result without
+// them, draws from the log-space normal approximation), each run through the forward model; the band is the 2.5%
+// and 97.5% quantiles at every time, widened to reach the prediction of every profile-walk point inside the 95%
+// likelihood region (FitResult::ridge). Sampling rather than linear propagation because readings are strongly
+// nonlinear in the parameters near arrest. Measured (tests/fit/test_prediction_band.cpp): from a plate test of a
+// shear-thinning paste, the channel band at 30 s held the truth in 29 of 30 pastes at a median 14% of the reading.
 #pragma once
 
 #include <vector>

@@ -115,10 +115,17 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
     Eigen::VectorXd theta(p);
     for (Eigen::Index i = 0, k = 0; i < p; ++i) theta[i] = i == j ? x + dir * at : r.rest[k++];
     out.trace.push_back(std::move(theta));
+    out.trace_tau.push_back(r.tau);
   };
   while (out.refits < options_.max_refits) {
-    const Refit r = refit(j, x + dir * t, warm_at(t));
+    Refit r = refit(j, x + dir * t, warm_at(t));
     ++out.refits;
+    if (!r.ok && before) {
+      // The extrapolated warm start may land where the model cannot be solved (a stiff, nearly arrested corner):
+      // start again from the last point of the trace before counting a failure.
+      r = refit(j, x + dir * t, prev.rest);
+      ++out.refits;
+    }
     keep_trace(t, r);
     if (!r.ok) {
       // Step back towards the last good point; three failures in a row end the side (reported open).

@@ -39,6 +39,7 @@ struct ProfileSide {
   /// The full parameter vectors of the refits along the walk with tau within 1.5 x the cut-off: points on the
   /// likelihood's ridge (src/fit/likelihood_draws.hpp centres its proposals on them).
   std::vector<Eigen::VectorXd> trace;
+  std::vector<double> trace_tau;  ///< the profile t at each trace point
 };
 
 struct ProfileOptions {

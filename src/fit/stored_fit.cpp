@@ -53,13 +53,16 @@ FitResult load_fitted_material(const std::filesystem::path& path) {
         r.covariance(a, b) = v.is_null() ? std::numeric_limits<double>::infinity() : v.get<double>();
       }
     // The likelihood draws, when the result has them (an older result has only the covariance).
-    if (block->contains("draws")) {
-      for (const auto& d : (*block)["draws"]) {
+    for (const auto& [key, into] : {std::pair<const char*, std::vector<Eigen::VectorXd>*>{"draws", &r.draws},
+                                    {"ridge", &r.ridge}}) {
+      if (!block->contains(key)) continue;
+      const std::string field = std::string("fit.log_space.") + key;
+      for (const auto& d : (*block)[key]) {
         const auto v = d.get<std::vector<double>>();
-        if (Eigen::Index(v.size()) != p) throw io::InputError(file, 0, "fit.log_space.draws", "draw size mismatch");
+        if (Eigen::Index(v.size()) != p) throw io::InputError(file, 0, field, "vector size mismatch");
         for (double x : v)
-          if (!std::isfinite(x)) throw io::InputError(file, 0, "fit.log_space.draws", "a draw is not finite");
-        r.draws.push_back(Eigen::Map<const Eigen::VectorXd>(v.data(), p));
+          if (!std::isfinite(x)) throw io::InputError(file, 0, field, "a number is not finite");
+        into->push_back(Eigen::Map<const Eigen::VectorXd>(v.data(), p));
       }
     }
   } catch (const nlohmann::json::exception& e) {

@@ -111,6 +111,11 @@ nlohmann::json result_json(const FitOutcome& o) {
           fit["log_space"]["draws"] = draws;
           fit["log_space"]["draws_effective_size"] = r->draws_effective_size;
         }
+        if (!r->ridge.empty()) {
+          json ridge = json::array();
+          for (const Eigen::VectorXd& d : r->ridge) ridge.push_back(std::vector<double>(d.data(), d.data() + d.size()));
+          fit["log_space"]["ridge"] = ridge;
+        }
       }
     }
     fit["points"] = shown->points;
