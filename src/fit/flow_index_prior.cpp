@@ -104,11 +104,11 @@ FitResult fit_with_prior(const std::vector<FitSeries>& series, const FitResult& 
     const ParameterEstimate* b = find(r, name);
     if (!a || !b || a->upper_only || b->upper_only || !(a->lower > 0) || !(b->lower > 0)) continue;
     const double ratio = std::log(b->upper / b->lower) / std::log(a->upper / a->lower);
-    r.prior_note = fmt::format("the product's flow-index prior ({:.3g} +/- {:.2g}, {}) narrowed the {} interval "
-                               "from {:.4g}-{:.4g} to {:.4g}-{:.4g} {} ({:.0f}% of its width on a log scale)",
-                               prior.typical, prior.spread, prior.source, name == std::string("yield_stress")
-                                   ? "yield stress" : "consistency",
-                               a->lower, a->upper, b->lower, b->upper, b->unit, 100.0 * ratio);
+    r.prior_note = fmt::format("the product's flow-index prior ({:.3g} +/- {:.2g}, {}) {} the {} interval from "
+                               "{:.4g}-{:.4g} to {:.4g}-{:.4g} {} ({:.0f}% of its width on a log scale)",
+                               prior.typical, prior.spread, prior.source, ratio < 1.0 ? "narrowed" : "moved",
+                               name == std::string("yield_stress") ? "yield stress" : "consistency", a->lower,
+                               a->upper, b->lower, b->upper, b->unit, 100.0 * ratio);
     break;
   }
   if (r.prior_note.empty())
