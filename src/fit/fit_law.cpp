@@ -632,9 +632,8 @@ ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& opt
   const int reported = liquid ? newtonian_index : index_of(Law::HerschelBulkley);
   FitResult general = fit_law(series, choice.candidates[std::size_t(reported)].law, options,
                               liquid ? std::vector<FitResult>{newtonian} : std::vector<FitResult>{hb, bingham, power});
-  int evaluations = 0;
-  for (const FitResult& r : choice.candidates) evaluations += r.evaluations;
-  general.evaluations += evaluations;
+  // The general fit's solves include its own only; a caller adds the candidates' (fit.evaluations in the JSON).
+  general.evaluations += choice.candidates[std::size_t(reported)].evaluations;
   const bool usable = general.status == FitStatus::Converged;
   if (usable) {
     choice.candidates[std::size_t(reported)] = std::move(general);

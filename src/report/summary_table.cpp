@@ -38,8 +38,11 @@ std::string summary_table(const FitOutcome& o) {
       s += fmt::format("  {:<14} {:>11.4g}   {:<27} {}\n", p.name, p.value, interval, p.unit);
     }
     if (std::isfinite(r->rmse))
-      s += fmt::format("  fit: rmse {:.3g} mm over {} points, {} forward solves", r->rmse * 1e3, r->points,
-                       r->evaluations);
+    {
+      int solves = 0;  // every candidate's (the reported fit's include its own quick fit)
+      for (const auto& c : o.candidates) solves += c.evaluations;
+      s += fmt::format("  fit: rmse {:.3g} mm over {} points, {} forward solves", r->rmse * 1e3, r->points, solves);
+    }
     else
       s += "  fit: closed form from the single arrested reading";
     if (std::isfinite(r->aicc) && o.candidates.size() > 1) {
