@@ -200,9 +200,19 @@ bool arrested_yield_stress(const std::vector<FitSeries>& series, const FitProble
   // The mean of n readings at rest has standard uncertainty sigma / sqrt(n).
   const FitResult arrested = fit_final_reading(s.setup, mean, sigma / std::sqrt(double(v.size())));
   if (!arrested.converged() || arrested.parameters.empty()) return false;
+  // The plastic-limit relation holds the thin-film model's arrested extent to within 1% where the whole sample
+  // yields (tests/models/test_thin_film.cpp); the yield stress goes as the extent to the power -5 on a plate and
+  // -3 on a channel, so that 1% (taken as a 95% bound) is added to the reading's own uncertainty in log space.
+  const double exponent = std::holds_alternative<PlateRig>(s.setup.rig) ? 5.0 : 3.0;
+  const double model_sd = exponent * 0.01 / 1.959964;
+  ParameterEstimate tau = arrested.parameters.front();
+  const double reading_sd = std::log(tau.upper / tau.lower) / (2.0 * 1.959964);
+  const double half = 1.959964 * std::sqrt(reading_sd * reading_sd + model_sd * model_sd);
+  tau.lower = tau.value * std::exp(-half);
+  tau.upper = tau.value * std::exp(half);
   for (ParameterEstimate& e : out.parameters)
     if (e.name == "yield_stress") {
-      e = arrested.parameters.front();
+      e = tau;
       out.warnings.push_back(fmt::format(
           "the sample was at rest from the first reading on (readings within {:.2g} mm, as scattered as the "
           "reading uncertainty allows): the yield stress comes "

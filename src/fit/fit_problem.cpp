@@ -54,13 +54,18 @@ FitProblem::FitProblem(const std::vector<FitSeries>& series, Law law, const FitO
       origin_index_.push_back(int(names_.size()));
       const double first = t.front();
       const double span = t.back() - first;
-      // The release is at most a couple of seconds after the clock was started (a stopwatch or a video started at
-      // the lift; the inertial start is a fraction of a second, design notes section 3): common practice, no
-      // source. A later virtual release would let a fast, strongly shear-thinning flow that starts late mimic a
-      // sample coming to rest, a false valley of the fit.
-      const double low = first - std::max(5.0, 0.5 * span);
+      // Reading times are counted from the release (the interface's contract), so the virtual release lies within
+      // a few seconds of 0: at most 5 s before (a clock started late, an inertial start) and 2 s after (a
+      // stopwatch started early; the inertial start is a fraction of a second, design notes section 3): common
+      // practice, no source. A release far from 0 opens false valleys: a late one lets a fast, strongly
+      // shear-thinning flow mimic a sample coming to rest, an early one lets a flow without yield stress mimic
+      // slow spreading. Readings whose clock starts elsewhere are the exception the wide range below keeps.
+      double low = first - std::max(5.0, 0.5 * span);
       double high = first - 1e-3 * std::max(span, 1.0);
-      if (std::min(high, 2.0) > low + 1.0) high = std::min(high, 2.0);
+      if (std::min(high, 2.0) > std::max(low, -5.0) + 1.0) {
+        low = std::max(low, -5.0);
+        high = std::min(high, 2.0);
+      }
       add("time_origin", low, high);
     } else {
       origin_index_.push_back(-1);
