@@ -1,0 +1,70 @@
+// Capture of rendered plate videos against the curve they were rendered from.
+#include <doctest/doctest.h>
+
+#include <algorithm>
+#include <cmath>
+#include <vector>
+
+#include "src/capture/capture.hpp"
+#include "tests/capture/capture_test_support.hpp"
+#include "tests/capture/synthetic_video.hpp"
+#include "tests/io/io_test_support.hpp"
+
+namespace {
+
+using namespace spreadfit;
+using namespace spreadfit::capture;
+using spreadfit::io::test::TempDir;
+
+io::CaptureSettings board_settings(const std::filesystem::path& video, const test::SceneOptions& o) {
+  io::CaptureSettings s;
+  s.video = video;
+  s.video_as_written = video.filename().string();
+  s.scale = io::CaptureSettings::Scale::Board;
+  s.board_columns = o.board_columns;
+  s.board_rows = o.board_rows;
+  s.square = o.square_mm / 1000;
+  s.every = 0.5;
+  return s;
+}
+
+struct Errors {
+  double median = 0, worst = 0;
+};
+
+Errors compare(const CaptureResult& r, const std::function<double(double)>& truth, double release_error) {
+  std::vector<double> errors;
+  for (const CapturedReading& reading : r.readings) {
+    // The truth at the frame's own time since the true release.
+    const double expected = truth(reading.time + release_error);
+    errors.push_back(std::abs(reading.value - expected));
+    MESSAGE("t = " << reading.time << " s: " << reading.value << " mm, truth " << expected << " mm");
+  }
+  std::vector<double> sorted = errors;
+  std::sort(sorted.begin(), sorted.end());
+  return {sorted[sorted.size() / 2], sorted.back()};
+}
+
+}  // namespace
+
+TEST_CASE("capture: a plate video at a 12 degree tilt gives the rendered diameters and release") {
+  const TestSetup setup = test::plate_test_setup();
+  const Material material{30.0, 5.0, 0.5};  // a sauce-like Herschel-Bulkley paste (common practice, no source)
+  const test::TruthCurve truth(setup, material, 10.0);
+  TempDir dir;
+  test::SceneOptions o;
+  o.spread = truth.function();
+  o.ring_radius_mm = 25;
+  const auto video = dir.path() / "plate.mp4";
+  test::render_video(video, o);
+  const CaptureResult r = capture_readings(board_settings(video, o), setup.rig);
+  for (const auto& w : r.warnings) MESSAGE("warning: " << w);
+  const double frame = 1 / o.fps;
+  INFO("release found at " << r.release_time << " s, rendered at " << o.release << " s");
+  // Requirement: the release within two frames.
+  CHECK(std::abs(r.release_time - o.release) <= 2 * frame);
+  const Errors e = compare(r, truth, r.release_time - o.release);
+  INFO("median error " << e.median << " mm, worst " << e.worst << " mm over " << r.readings.size() << " readings");
+  CHECK(e.median <= 0.3);
+  CHECK(e.worst <= 1.0);
+}
