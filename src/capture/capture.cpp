@@ -198,6 +198,67 @@ PlaneMap map_from_circle(const std::vector<cv::Point>& outline, double radius_mm
   return map;
 }
 
+/// Mean of `values` over the pixels of `mask` in bins of `bin` mm of `along`, from `from` to `to` [mm].
+std::vector<double> profile(const cv::Mat& values, const cv::Mat& along, const cv::Mat& mask, double from, double to,
+                            double bin) {
+  const auto bins = static_cast<std::size_t>(std::max(1.0, std::ceil((to - from) / bin)));
+  std::vector<double> sum(bins, 0.0), count(bins, 0.0);
+  for (int y = 0; y < values.rows; ++y) {
+    const float* v = values.ptr<float>(y);
+    const float* a = along.ptr<float>(y);
+    const uchar* m = mask.ptr<uchar>(y);
+    for (int x = 0; x < values.cols; ++x) {
+      if (!m[x] || a[x] < from || a[x] >= to) continue;
+      const auto i = static_cast<std::size_t>((a[x] - from) / bin);
+      if (i < bins) sum[i] += v[x], count[i] += 1;
+    }
+  }
+  std::vector<double> out(bins, 0.0);
+  double last = 0;
+  for (std::size_t i = 0; i < bins; ++i) out[i] = last = count[i] > 0 ? sum[i] / count[i] : last;
+  return out;
+}
+
+/// [mm] the front past the gate line: along the middle of the channel, the mean sample fraction (within the
+/// sample's outline, a few pixels grown) per bin along the axis, and the last place it falls through 1/2,
+/// interpolated between bins (the blurred edge crosses 1/2 at the true edge).
+double front_from_profile(const cv::Mat& fraction, const cv::Mat& mask, const cv::Mat& along, const cv::Mat& band,
+                          double bin) {
+  cv::Mat near;
+  cv::dilate(mask, near, cv::getStructuringElement(cv::MORPH_ELLIPSE, cv::Size(7, 7)));
+  cv::Mat clamped;
+  cv::min(cv::max(fraction, 0.0), 1.0, clamped);
+  clamped.setTo(0, near == 0);
+  double far = 0;
+  cv::minMaxLoc(along, nullptr, &far, nullptr, nullptr, near & band);
+  if (far <= 0) return 0;
+  const std::vector<double> p = profile(clamped, along, band, 0.0, far + 2 * bin, bin);
+  for (std::size_t i = p.size(); i-- > 0;)
+    if (p[i] >= 0.5) {
+      const double next = i + 1 < p.size() ? p[i + 1] : 0.0;
+      const double w = p[i] > next ? (p[i] - 0.5) / (p[i] - next) : 0.0;
+      return (static_cast<double>(i) + 0.5 + w) * bin;
+    }
+  return 0;
+}
+
+/// The width of a long region of points across `normal`, from its middle part along `axis` (20% to 80%: away
+/// from the gate, whose footprint may reach over the walls, and from the front): the range between the 1% and
+/// 99% quantiles across, divided by 0.98 as for points spread evenly over the width. `middle` gets the centre.
+double middle_width(const std::vector<cv::Vec2d>& points, cv::Vec2d axis, cv::Vec2d normal, double* middle = nullptr) {
+  std::vector<double> along;
+  for (const cv::Vec2d& p : points) along.push_back(axis.dot(p));
+  const double low = quantile(along, 0.2), high = quantile(along, 0.8);
+  std::vector<double> across;
+  for (const cv::Vec2d& p : points) {
+    const double a = axis.dot(p);
+    if (a >= low && a <= high) across.push_back(normal.dot(p));
+  }
+  const double lo = quantile(across, 0.01), hi = quantile(across, 0.99);
+  if (middle) *middle = 0.5 * (lo + hi);
+  return (hi - lo) / 0.98;
+}
+
 /// [px] how far beyond the sample's outline at the release the plate was hidden (by the ring's wall, or the
 /// outline's blur): the first distance where the still frames' median colour, around the whole outline, is the
 /// plate's colour seen well outside (half a radius out), to within 6 noise deviations, plus 2 px for the blur.
@@ -304,11 +365,9 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
   // --- where the sample is: what the last reading frame changed -----------------------------------------------
   const cv::Mat& late = video.readings.back().image;
   const double change_threshold = std::max(5.0 * noise * std::sqrt(3.0), 10.0);
-  const cv::Mat changed_late = [&] {
-    const cv::Rect all(cv::Point(0, 0), frame_size);
-    const cv::Mat d = difference(late, background, exposure_gain(late, background, cv::Mat()), all);
-    return largest_component(clean_mask(magnitude(d) > change_threshold, 2));
-  }();
+  const cv::Mat late_change = magnitude(difference(late, background, exposure_gain(late, background, cv::Mat()),
+                                                    cv::Rect(cv::Point(0, 0), frame_size)));
+  const cv::Mat changed_late = largest_component(clean_mask(late_change > change_threshold, 2));
   if (cv::countNonZero(changed_late) < 30)
     throw NotFoundInVideo(fmt::format("sample not found: the frame at {} after the release looks like the frames "
                                       "before it (expected the sample to spread, and to differ from the plate "
@@ -329,6 +388,8 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
   cv::Mat sample_interior;         // frame mask: pixels of the late frame surely sample, for the colour
   cv::Point seed;                  // ROI pixel inside the sample
   double channel_width_mm = 0;
+  cv::Mat along_map, centre_band;  // channel, ROI: [mm] past the gate line; the middle half of the width
+  double profile_bin = 0.1;        // channel: [mm] bin of the profiles along the axis
 
   if (plate) {
     // Inside the spread the sample covered the plate before and after: unchanged. That hole is the sample's
@@ -372,11 +433,22 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
       image_points.at<double>(static_cast<int>(i), 1) = points[i].y;
     }
     cv::PCA image_pca(image_points, cv::Mat(), cv::PCA::DATA_AS_ROW);
+    // Widths from the change's half level (the blurred edge's middle), not from the noise threshold.
+    const std::vector<cv::Point> half_points = [&] {
+      cv::Mat inner;
+      cv::erode(changed_late, inner, disc_kernel(3));
+      std::vector<double> levels;
+      for (const cv::Point& p : mask_points(inner, 5000)) levels.push_back(late_change.at<float>(p));
+      cv::Mat near;
+      cv::dilate(changed_late, near, disc_kernel(2));
+      return mask_points((late_change > 0.5 * quantile(levels, 0.5)) & near);
+    }();
     if (s.scale == Scale::Channel) {
-      const cv::Vec2d n(image_pca.eigenvectors.at<double>(1, 0), image_pca.eigenvectors.at<double>(1, 1));
-      std::vector<double> across;
-      for (const cv::Point& p : points) across.push_back(n.dot(cv::Vec2d(p.x, p.y)));
-      const double width_px = quantile(across, 0.99) - quantile(across, 0.01);
+      const cv::Vec2d a(image_pca.eigenvectors.at<double>(0, 0), image_pca.eigenvectors.at<double>(0, 1));
+      const cv::Vec2d n(-a[1], a[0]);
+      std::vector<cv::Vec2d> flat;
+      for (const cv::Point& p : half_points) flat.emplace_back(p.x, p.y);
+      const double width_px = middle_width(flat, a, n);
       const double ppmm = width_px / (channel->width * 1000.0);
       map.image_to_plane = cv::Matx33d(1 / ppmm, 0, 0, 0, 1 / ppmm, 0, 0, 0, 1);
       result.scale_source = fmt::format("channel, {:g} mm wide", channel->width * 1000.0);
@@ -397,6 +469,7 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
                             "a shorter interval, every, or more times)");
     const Kept& earlier = video.readings[video.readings.size() >= 3 ? video.readings.size() / 2 : 0];
     const cv::Rect all(cv::Point(0, 0), frame_size);
+    const cv::Vec3d late_gain_all = exposure_gain(late, background, late_dilated);
     cv::Mat changed_earlier =
         magnitude(difference(earlier.image, background, exposure_gain(earlier.image, background, cv::Mat()), all)) >
         change_threshold;
@@ -404,7 +477,7 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
     auto ends = [&](const cv::Mat& mask) {
       std::vector<double> along;
       for (const cv::Point2d& p : map.to_plane(mask_points(mask))) along.push_back(axis.dot(cv::Vec2d(p) - centre));
-      return std::pair{quantile(along, 0.01), quantile(along, 0.99)};
+      return std::pair{quantile(along, 0.001), quantile(along, 0.999)};
     };
     const auto [late_low, late_high] = ends(changed_late);
     const auto [earlier_low, earlier_high] =
@@ -414,28 +487,57 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
       axis = -axis;
       gate = -late_high;
     }
-    std::vector<double> across;
-    for (const cv::Point2d& p : plane) across.push_back(normal.dot(cv::Vec2d(p) - centre));
-    const double side_low = quantile(across, 0.02), side_high = quantile(across, 0.98);
-    channel_width_mm = side_high - side_low;
+    std::vector<cv::Vec2d> flat;
+    for (const cv::Point2d& p : map.to_plane(half_points)) flat.emplace_back(cv::Vec2d(p) - centre);
+    double mid_across = 0;
+    channel_width_mm = middle_width(flat, axis, normal, &mid_across);
+    const double side_low = mid_across - 0.5 * channel_width_mm, side_high = mid_across + 0.5 * channel_width_mm;
     const double width_rig = channel->width * 1000.0;
     if (s.scale == Scale::Board && std::abs(channel_width_mm - width_rig) > o.size_tolerance * width_rig)
       warnings.push_back(fmt::format("the sample fills {:.1f} mm of the channel's width, but [rig] width is {:.1f} "
                                      "mm: check the channel's size and the board's square",
                                      channel_width_mm, width_rig));
-    // Per ROI pixel: distance along the axis past the gate line, and whether it lies in the channel.
-    counted = cv::Mat::zeros(roi.size(), CV_8U);
-    gate_band = cv::Mat::zeros(roi.size(), CV_8U);
-    const double band = std::min(0.2 * channel_width_mm, 10.0);
+    // Per ROI pixel: where it lies along the channel and across it [mm].
+    along_map = cv::Mat(roi.size(), CV_32F);
+    cv::Mat side_map(roi.size(), CV_32F);
     for (int y = 0; y < roi.height; ++y)
       for (int x = 0; x < roi.width; ++x) {
         const cv::Vec2d p = cv::Vec2d(map.to_plane(cv::Point2d(roi.x + x, roi.y + y))) - centre;
-        const double along = axis.dot(p) - gate, side = normal.dot(p);
-        const bool inside = side >= side_low - 1.0 && side <= side_high + 1.0;
-        if (inside && along > 0) counted.at<uchar>(y, x) = 255;
-        if (inside && along > 0 && along <= band) gate_band.at<uchar>(y, x) = 255;
+        along_map.at<float>(y, x) = static_cast<float>(axis.dot(p));
+        side_map.at<float>(y, x) = static_cast<float>(normal.dot(p));
       }
     const double mid_side = 0.5 * (side_low + side_high);
+    // Readings are taken along the middle half of the width (a side wall's shadow or drag stays out).
+    centre_band = (side_map >= mid_side - 0.25 * channel_width_mm) & (side_map <= mid_side + 0.25 * channel_width_mm);
+    profile_bin = 0.25 / map.pixels_per_mm(map.to_image(cv::Point2d(centre))) * 2;  // half a pixel [mm]
+    // The gate line: the first step up of the change between the still start and the last reading along the
+    // middle of the channel (the gate's footprint, or the sample block's face), placed where that step reaches
+    // half its height (1.5 mm on), to a fraction of a pixel.
+    {
+      const cv::Mat change = magnitude(difference(late, background, late_gain_all, roi));
+      const double from = gate - 4.0, to = gate + 8.0;
+      const std::vector<double> rise = profile(change, along_map, centre_band, from, to, profile_bin);
+      double plateau = 0;
+      for (double v : rise) plateau = std::max(plateau, v);
+      const double first_level = std::max(change_threshold, 0.25 * plateau);
+      std::size_t i0 = 0;
+      while (i0 < rise.size() && rise[i0] < first_level) ++i0;
+      if (i0 < rise.size()) {
+        const std::size_t reach = std::min(rise.size(), i0 + static_cast<std::size_t>(1.5 / profile_bin) + 1);
+        const double step = *std::max_element(rise.begin() + static_cast<std::ptrdiff_t>(i0),
+                                               rise.begin() + static_cast<std::ptrdiff_t>(reach));
+        std::size_t i = i0;
+        while (i > 0 && rise[i - 1] >= 0.5 * step) --i;
+        while (i < reach && rise[i] < 0.5 * step) ++i;
+        const double before = i > 0 ? rise[i - 1] : 0.0;
+        const double w = rise[i] > before ? (0.5 * step - before) / (rise[i] - before) : 0.0;
+        gate = from + (static_cast<double>(i) - 0.5 + w) * profile_bin;
+      }
+    }
+    along_map -= gate;
+    counted = (side_map >= side_low - 1.0) & (side_map <= side_high + 1.0) & (along_map > 0);
+    const double band = std::min(0.2 * channel_width_mm, 10.0);
+    gate_band = counted & (along_map <= band);
     auto image_of = [&](double along, double side) {
       return map.to_image(cv::Point2d(centre + axis * (along + gate) + normal * side));
     };
@@ -514,7 +616,7 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
       r.ellipticity = ellipticity(map.to_plane(r.outline));
       if (r.ellipticity > worst_round) worst_round = r.ellipticity, worst_round_time = r.time;
     } else {
-      r.value = channel_width_mm > 0 ? area / channel_width_mm : 0;
+      r.value = front_from_profile(f, mask, along_map, centre_band, profile_bin);
     }
     if (r.at_edge) {
       if (!edge_time) edge_time = r.time;
