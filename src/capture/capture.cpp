@@ -182,10 +182,15 @@ cv::Mat disc_kernel(int radius) {
 
 /// The scale from an outline known to be a circle of `radius_mm` on the plane, camera roughly square above:
 /// the affine map that takes the outline's least-squares ellipse to that circle (a small tilt is corrected to
-/// first order).
-PlaneMap map_from_circle(const std::vector<cv::Point>& outline, double radius_mm) {
+/// first order). The ellipse's shape comes from the outline; its size from the region's pixel count, since an
+/// outline traced through the edge pixels' centres lies half a pixel inside the region's edge.
+PlaneMap map_from_circle(const cv::Mat& region, double radius_mm) {
+  const std::vector<cv::Point> outline = outer_contour(region);
   std::vector<cv::Point2f> points(outline.begin(), outline.end());
-  const cv::RotatedRect e = cv::fitEllipse(points);
+  cv::RotatedRect e = cv::fitEllipse(points);
+  const double size = std::sqrt(cv::countNonZero(region) / (std::numbers::pi * 0.25 * e.size.width * e.size.height));
+  e.size.width = static_cast<float>(e.size.width * size);
+  e.size.height = static_cast<float>(e.size.height * size);
   const double angle = e.angle * std::numbers::pi / 180.0;
   const double ca = std::cos(angle), sa = std::sin(angle);
   const double sx = radius_mm / (0.5 * e.size.width), sy = radius_mm / (0.5 * e.size.height);
@@ -400,14 +405,25 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
       throw NotFoundInVideo(
           "sample not found before the release: the whole spread differs from the frames before it (expected "
           "the sample inside the ring to look the same before and after; did the camera or the lighting move?)");
-    const std::vector<cv::Point> initial = outer_contour(holes);
+    // The outline at the release placed where the change reaches half its level just outside (the ring's
+    // inner edge, or the sample's own, through the blur), for the scale and the audit images.
+    const cv::Mat half_hole = [&] {
+      cv::Mat grown_hole, band;
+      cv::dilate(holes, grown_hole, disc_kernel(4));
+      band = grown_hole & ~holes;
+      std::vector<double> levels;
+      for (const cv::Point& p : mask_points(band, 5000)) levels.push_back(late_change.at<float>(p));
+      cv::Mat below = (late_change < 0.5 * quantile(levels, 0.9)) & grown_hole;
+      return fill_holes(components_touching(below, holes));
+    }();
+    const std::vector<cv::Point> initial = outer_contour(half_hole);
     result.reference.initial_outline = initial;
     if (s.scale == Scale::Ring) {
-      map = map_from_circle(initial, plate->ring_radius * 1000.0);
+      map = map_from_circle(half_hole, plate->ring_radius * 1000.0);
       result.scale_source = fmt::format("ring, {:g} mm inner radius", plate->ring_radius * 1000.0);
     } else {
       const cv::Mat area_map = map.pixel_area_map(cv::Rect(cv::Point(0, 0), frame_size));
-      const double d0 = equivalent_diameter(cv::mean(area_map, holes)[0] * cv::countNonZero(holes));
+      const double d0 = equivalent_diameter(cv::mean(area_map, half_hole)[0] * cv::countNonZero(half_hole));
       const double ring_mm = 2000.0 * plate->ring_radius;
       if (std::abs(d0 - ring_mm) > o.size_tolerance * ring_mm)
         warnings.push_back(fmt::format("the sample's outline before the release is {:.1f} mm across, but [rig] "

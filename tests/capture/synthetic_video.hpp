@@ -143,9 +143,20 @@ inline std::vector<double> render_video(const std::filesystem::path& file, const
           p = p * float(1 - cover) + s * float(cover);
         }
       if (o.ring) {  // before the release around the sample; after, lifted away towards -y at 300 mm/s
+        // Drawn exactly like the disc: each pixel takes the fraction of it the annulus covers.
         const cv::Point2d rc = c + cv::Point2d(0, since > 0 ? -300 * since : 0);
-        cv::circle(plane, tex(rc), int((o.ring_radius_mm + o.ring_wall_mm / 2) * ppmm),
-                   cv::Scalar(o.ring_bgr[0], o.ring_bgr[1], o.ring_bgr[2]), int(o.ring_wall_mm * ppmm), cv::LINE_AA);
+        const double inner = o.ring_radius_mm, outer = o.ring_radius_mm + o.ring_wall_mm;
+        const cv::Vec3f ring(float(o.ring_bgr[0]), float(o.ring_bgr[1]), float(o.ring_bgr[2]));
+        const cv::Point2d rlo = tex(rc - cv::Point2d(outer + 1, outer + 1)), rhi = tex(rc + cv::Point2d(outer + 1, outer + 1));
+        for (int y = std::max(0, int(rlo.y)); y < std::min(tex_size.height, int(rhi.y) + 1); ++y)
+          for (int x = std::max(0, int(rlo.x)); x < std::min(tex_size.width, int(rhi.x) + 1); ++x) {
+            const double d = std::hypot((x + 0.5) / ppmm + extent.x - rc.x, (y + 0.5) / ppmm + extent.y - rc.y);
+            const double cover = std::clamp((d - inner) * ppmm + 0.5, 0.0, 1.0) *
+                                 std::clamp((outer - d) * ppmm + 0.5, 0.0, 1.0);
+            if (cover <= 0) continue;
+            cv::Vec3f& p = plane.at<cv::Vec3f>(y, x);
+            p = p * float(1 - cover) + ring * float(cover);
+          }
       }
     } else {
       // Block behind the gate, then a straight front `value` past it, across the channel's width.
