@@ -123,6 +123,10 @@ Decoded decode(const io::CaptureSettings& s, const CaptureOptions& o) {
   out.from_container = video.timestamps_from_container();
   if (out.times.empty()) throw std::runtime_error("cannot be read as a video (no frame decodes)");
 
+  if (!release && detector.moving_from_start())
+    throw NotFoundInVideo(
+        "release not detectable: the video does not start still (expected a second or so of the plate before "
+        "the ring or gate moves; or give the time, such as release = \"2.4 s\", in [capture])");
   if (!release)
     throw NotFoundInVideo(
         "no release found: nothing moves in the video after its still start (expected the ring or gate to be "

@@ -24,9 +24,9 @@ struct CaptureOptions {
   int max_readings = 2000;       ///< bound on the readings (and the frames kept for them)
   long max_frames = 2000000;     ///< bound on the frames decoded (about 18 h at 30 frames/s)
   double round_tolerance = 0.05; ///< ellipticity 1 - b/a above which the outline is "not round" (5%)
-  double low_contrast = 10;      ///< sample-plate colour difference below this many noise deviations: a warning
-  double no_contrast = 4;        ///< ... below this many: the sample is not found
-  double glare_fraction = 0.01;  ///< saturated pixels around the sample above this fraction: a warning
+  double low_contrast = 12;      ///< sample-plate colour difference below this many noise deviations: a warning
+  double no_contrast = 6;        ///< ... below this many: the sample is not found
+  double glare_fraction = 0.005; ///< saturated pixels around the sample above this fraction (0.5%): a warning
   double size_tolerance = 0.10;  ///< board scale: the ring's or channel's size seen vs [rig] differs by more: warn
 };
 

@@ -80,6 +80,11 @@ bool ReleaseDetector::add(const cv::Mat& frame, double time) {
   return true;
 }
 
+bool ReleaseDetector::moving_from_start() const {
+  const auto first = static_cast<std::size_t>(options_.lag);
+  return fraction_.size() > first && fraction_[first] > options_.trigger;
+}
+
 double ReleaseDetector::release_time() const {
   if (!found()) return 0;
   const auto i = static_cast<std::size_t>(*release_index_);

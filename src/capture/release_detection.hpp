@@ -41,6 +41,8 @@ class ReleaseDetector {
   int release_index() const { return release_index_.value_or(-1); }
   /// [s] the release: midway between the last still frame and the first moving one.
   double release_time() const;
+  /// Whether the first frames compared already differ (the video starts after the release, or moving).
+  bool moving_from_start() const;
   const std::vector<double>& changed_fraction() const { return fraction_; }
   const std::vector<double>& times() const { return times_; }
 

@@ -45,18 +45,6 @@ int run_capture_command(const CaptureCommandOptions& options, std::ostream& out,
   io::CaptureSettings settings = *test.capture;
   const std::string toml = options.test.string();
 
-  std::error_code ec;
-  if (options.video) {
-    settings.video = *options.video;
-    settings.video_as_written = options.video->string();
-    if (!std::filesystem::is_regular_file(settings.video, ec))
-      throw io::InputError("command line", 0, "--video", "video '" + settings.video_as_written + "' not found");
-  } else if (!std::filesystem::is_regular_file(settings.video, ec)) {
-    throw io::InputError(toml, settings.video_line, "capture.video",
-                         "video '" + settings.video_as_written + "' not found (looked for '" + settings.video.string() +
-                             "')");
-  }
-
   std::filesystem::path csv;
   if (options.out) {
     csv = *options.out;
@@ -67,6 +55,18 @@ int run_capture_command(const CaptureCommandOptions& options, std::ostream& out,
                          test.readings_files.empty()
                              ? "no readings file to write (expected [readings] file = \"...\", or --out FILE.csv)"
                              : "several readings files listed (capture writes one: expected --out FILE.csv)");
+  }
+
+  std::error_code ec;
+  if (options.video) {
+    settings.video = *options.video;
+    settings.video_as_written = options.video->string();
+    if (!std::filesystem::is_regular_file(settings.video, ec))
+      throw io::InputError("command line", 0, "--video", "video '" + settings.video_as_written + "' not found");
+  } else if (!std::filesystem::is_regular_file(settings.video, ec)) {
+    throw io::InputError(toml, settings.video_line, "capture.video",
+                         "video '" + settings.video_as_written + "' not found (looked for '" + settings.video.string() +
+                             "')");
   }
 
   capture::CaptureResult result;

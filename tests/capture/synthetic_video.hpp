@@ -137,7 +137,7 @@ inline std::vector<double> render_video(const std::filesystem::path& file, const
           cv::Vec3f& p = plane.at<cv::Vec3f>(y, x);
           cv::Vec3f s = sample;
           if (o.glare > 0) {
-            const double g = o.glare * std::exp(-(std::pow(mx + 0.3 * r, 2) + std::pow(my + 0.3 * r, 2)) / 30.0);
+            const double g = o.glare * std::exp(-(std::pow(mx + 0.3 * r, 2) + std::pow(my + 0.3 * r, 2)) / 150.0);
             s += cv::Vec3f(float(g), float(g), float(g));
           }
           p = p * float(1 - cover) + s * float(cover);
