@@ -135,7 +135,7 @@ TEST_CASE("capture cli: video -> capture -> fit recovers the material the video 
                                     std::pair{"viscosity", truth_material.consistency}}) {
     const auto& v = from_video["parameters"][name];
     const auto& t = from_truth["parameters"][name];
-    INFO(name << ": video " << v.dump() << ", true readings " << t.dump());
+    MESSAGE(std::string(name) << ": video " << v.dump() << ", true readings " << t.dump());
     // The material the video was rendered from lies within the 95% interval of the fit to the captured readings,
     // and the two fits agree within each other's intervals.
     CHECK(v["ci95"][0].get<double>() <= value);
