@@ -28,8 +28,6 @@ double ReleaseDetector::change(const cv::Mat& s, const cv::Mat& reference) const
   std::vector<cv::Mat> channels, references;
   cv::split(s, channels);
   cv::split(reference, references);
-  const float threshold =
-      static_cast<float>(std::max(options_.noise_floor, options_.noise_factor * std::sqrt(2.0) * noise_));
   cv::Mat changed = cv::Mat::zeros(s.size(), CV_8U);
   for (std::size_t k = 0; k < channels.size(); ++k) {
     // Take off the frame's median gain: an exposure change scales every pixel and is no motion.
@@ -40,7 +38,15 @@ double ReleaseDetector::change(const cv::Mat& s, const cv::Mat& reference) const
         if (r >= 20) ratios.push_back(channels[k].at<float>(y, x) / r);
       }
     const double gain = ratios.size() > 20 ? median_of(ratios) : 1.0;
-    cv::Mat moved = cv::abs(channels[k] - gain * references[k]) > threshold;
+    const cv::Mat residual = channels[k] - gain * references[k];
+    // The noise of this pair of frames, from the residual's own spread (1.4826 MAD): sensor noise and codec
+    // artefacts vary from frame to frame (a key frame differs more), and motion touches few pixels.
+    std::vector<double> spread;
+    for (int y = 0; y < s.rows; y += 3)
+      for (int x = 0; x < s.cols; x += 3) spread.push_back(std::abs(residual.at<float>(y, x)));
+    const double noise = 1.4826 * median_of(spread);
+    const double threshold = std::max(options_.noise_floor, options_.noise_factor * noise);
+    cv::Mat moved = cv::abs(residual) > threshold;
     changed |= moved;
   }
   return static_cast<double>(cv::countNonZero(changed)) / static_cast<double>(changed.total());
@@ -51,14 +57,6 @@ bool ReleaseDetector::add(const cv::Mat& frame, double time) {
   cv::Mat s = small(frame);
   times_.push_back(time);
   const int n = static_cast<int>(times_.size());
-  if (n == 2) {
-    // Noise of one small pixel: the median absolute difference of two still frames as a standard deviation
-    // (1.4826 MAD for a normal distribution), over sqrt(2) for the difference of two frames.
-    cv::Mat d = cv::Mat(cv::abs(s - recent_.back())).reshape(1);
-    std::vector<double> v;
-    for (int i = 0; i < static_cast<int>(d.total()); i += 7) v.push_back(d.at<float>(i));
-    noise_ = 1.4826 * median_of(v) / std::sqrt(2.0);
-  }
   // Compared with the frame `lag` before: slow drifts (exposure, a codec's creeping artefacts) stay small, a
   // release shows at once.
   fraction_.push_back(n > options_.lag ? change(s, recent_.front()) : 0.0);
@@ -81,8 +79,12 @@ bool ReleaseDetector::add(const cv::Mat& frame, double time) {
 }
 
 bool ReleaseDetector::moving_from_start() const {
+  // The first frames compared all changed well beyond the trigger: nothing was still to begin with.
   const auto first = static_cast<std::size_t>(options_.lag);
-  return fraction_.size() > first && fraction_[first] > options_.trigger;
+  if (fraction_.size() < first + static_cast<std::size_t>(options_.persistence)) return false;
+  for (std::size_t i = first; i < first + static_cast<std::size_t>(options_.persistence); ++i)
+    if (fraction_[i] <= 5 * options_.trigger) return false;
+  return true;
 }
 
 double ReleaseDetector::release_time() const {

@@ -4,8 +4,9 @@
 // Each frame is reduced to a small image (about 320 px wide, area-averaged, which also averages the sensor noise)
 // and compared with the small image `lag` frames before it (slow drifts of exposure or of a codec's artefacts
 // stay below the threshold; a release shows at once). A pixel has changed when one of its channels differs by
-// more than `noise_factor` times the noise of a difference, after taking off the frame's median gain per channel
-// (a change of exposure scales every pixel alike and is no motion). The change signal is the fraction of
+// more than `noise_factor` times the noise of that pair of frames (1.4826 times the median absolute difference:
+// robust, since motion touches few pixels), after taking off the frame's median gain per channel (a change of
+// exposure scales every pixel alike and is no motion). The change signal is the fraction of
 // changed pixels. The release is the first frame of the first run of `persistence` frames above the trigger
 // level, walked back to the last frame still at the level of the still start. Common practice, no source: frame
 // differencing against a background is the textbook motion detector (e.g. Szeliski 2022, Computer Vision,
@@ -52,7 +53,6 @@ class ReleaseDetector {
 
   ReleaseOptions options_;
   std::deque<cv::Mat> recent_;  ///< the last `lag` small frames
-  double noise_ = 0;
   std::vector<double> fraction_, times_;
   std::optional<int> release_index_;
 };

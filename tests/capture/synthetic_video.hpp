@@ -41,6 +41,7 @@ struct SceneOptions {
   double square_mm = 8;
   cv::Point2d board_origin_mm{-118, -70};  ///< board's top-left outer corner on the plane (sample at 0, 0)
   bool ring = true;            ///< plate: a dark ring around the sample before the release, lifted away after
+  bool gate = true;            ///< channel: a dark gate in front of the sample before the release, lifted away
   double ring_radius_mm = 30;  ///< plate: the sample's radius at the release
   double ring_wall_mm = 3;
   double stretch = 1.0;        ///< plate: the outline's x axis times this (an uneven spread), area kept
@@ -173,7 +174,8 @@ inline std::vector<double> render_video(const std::filesystem::path& file, const
         }
       // The gate: a dark bar across the channel at the reservoir's end, lifted away (towards -y) at release.
       const double lift = since > 0 ? 300 * since : 0;
-      cv::rectangle(plane, tex({x_gate, -w / 2 - 12 - lift}), tex({x_gate + 3, w / 2 + 12 - lift}),
+      if (o.gate)
+        cv::rectangle(plane, tex({x_gate, -w / 2 - 12 - lift}), tex({x_gate + 3, w / 2 + 12 - lift}),
                     cv::Scalar(o.ring_bgr[0], o.ring_bgr[1], o.ring_bgr[2]), cv::FILLED);
     }
     cv::Mat big, frame;

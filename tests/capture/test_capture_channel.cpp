@@ -49,6 +49,17 @@ TEST_CASE("capture: a channel video gives the rendered front past the gate, with
     o.tilt_deg = 0;
     o.board = false;
   }
+  SUBCASE("board, no gate seen (the block starts to flow), MPEG-4 at 15 frames/s, more noise") {
+    s.scale = io::CaptureSettings::Scale::Board;
+    s.board_columns = o.board_columns;
+    s.board_rows = o.board_rows;
+    s.square = o.square_mm / 1000;
+    o.gate = false;
+    o.fourcc = "mp4v";
+    o.fps = 15;
+    o.noise = 5;
+    o.release = 1.35;
+  }
   s.video = dir.path() / "channel.mp4";
   s.video_as_written = "channel.mp4";
   test::render_video(s.video, o);

@@ -55,6 +55,19 @@ TEST_CASE("capture: a plate video at a 12 degree tilt gives the rendered diamete
   test::SceneOptions o;
   o.spread = truth.function();
   o.ring_radius_mm = 25;
+  SUBCASE("red sauce on a light plate, ring lifted away, H.264 at 30 frames/s") {}
+  SUBCASE("cream on a dark plate, no ring seen, 15 degrees, more noise and blur, MPEG-4 at 15 frames/s") {
+    o.ring = false;
+    o.plate_bgr = {60, 55, 50};
+    o.sample_bgr = {205, 225, 235};
+    o.tilt_deg = 15;
+    o.roll_deg = 3;
+    o.noise = 5;
+    o.blur = 1.3;
+    o.fourcc = "mp4v";
+    o.fps = 15;
+    o.release = 1.35;
+  }
   const auto video = dir.path() / "plate.mp4";
   test::render_video(video, o);
   const CaptureResult r = capture_readings(board_settings(video, o), setup.rig);
