@@ -56,7 +56,12 @@ Decoded decode(const io::CaptureSettings& s, const CaptureOptions& o) {
   out.width = video.width();
   out.height = video.height();
   out.nominal_rate = video.nominal_rate();
-  ReleaseDetector detector;
+  // A quarter of a second between the frames compared (3 to 8 frames): slow drifts stay small, and a video
+  // needs about half a second of stillness before the release at any frame rate.
+  ReleaseOptions release_options;
+  const double rate = video.nominal_rate() > 0 ? video.nominal_rate() : 30.0;
+  release_options.lag = std::clamp(static_cast<int>(std::lround(0.25 * rate)), 3, 8);
+  ReleaseDetector detector(release_options);
   std::optional<double> release = s.release;
   int release_index = -1;
   std::size_t next = 0;  // next reading time
@@ -134,7 +139,7 @@ Decoded decode(const io::CaptureSettings& s, const CaptureOptions& o) {
   out.release = *release;
   if (out.detected) {
     std::erase_if(out.stills, [&](const Kept& k) { return k.index >= release_index - 1; });
-    if (release_index <= ReleaseOptions{}.lag + 1 || out.stills.empty())
+    if (release_index <= release_options.lag + 1 || out.stills.empty())
       throw NotFoundInVideo(
           "release not detectable: the video does not start still (expected a second or so of the plate before "
           "the ring or gate moves; or give the time, such as release = \"2.4 s\", in [capture])");

@@ -72,7 +72,7 @@ bool ReleaseDetector::add(const cv::Mat& frame, double time) {
     if (fraction_[static_cast<std::size_t>(i)] <= trigger) return false;
   // Walk back to the first frame above the still level (plus a little, for the noise of the fraction itself).
   int first = n - options_.persistence;
-  const double quiet = std::max(2.0 * level, 0.25 * options_.trigger);
+  const double quiet = std::max(2.0 * level, 0.2 * options_.trigger);
   while (first > first_compared && fraction_[static_cast<std::size_t>(first - 1)] > quiet) --first;
   release_index_ = first;
   return true;

@@ -24,7 +24,8 @@ struct ReleaseOptions {
   int lag = 8;                  ///< frames between the two compared; the video must start still for longer
   double noise_factor = 5.0;    ///< a pixel has changed beyond this many noise standard deviations
   double noise_floor = 4.0;     ///< [grey levels] least change counted (codecs keep some artefacts moving)
-  double trigger = 0.003;       ///< changed fraction that marks motion (0.3% of the frame), at least
+  double trigger = 0.01;        ///< changed fraction that marks motion (1% of the frame; a codec key frame can
+                                ///< change 0.5%), at least
   double trigger_over_still = 4;  ///< ... and this many times the still start's median fraction
   int persistence = 3;          ///< frames in a row above the trigger (a single flicker is no release)
   int width = 320;              ///< [px] width of the small images compared
