@@ -123,7 +123,7 @@ Decoded decode(const io::CaptureSettings& s, const CaptureOptions& o) {
       continue;
     }
     if (wanted(t)) take(Kept{t, video.index(), video.retrieve()});
-    if (!target(next) && s.times.size() > 0) continue;  // all given times done; the rest is only counted
+    if (!target(next)) break;  // every time given is read: the rest of the video is not needed
   }
   out.from_container = video.timestamps_from_container();
   if (out.times.empty()) throw std::runtime_error("cannot be read as a video (no frame decodes)");

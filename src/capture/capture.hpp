@@ -56,7 +56,8 @@ struct CaptureResult {
   bool release_detected = false;        ///< false: as the test description gave it
   double pixels_per_mm = 0;             ///< at the sample's centre
   std::string scale_source;             ///< "board 9x6, 10 mm squares" etc.
-  int width = 0, height = 0, frames = 0;
+  int width = 0, height = 0;
+  int frames = 0;                       ///< frames read (all, unless every reading time came before the end)
   double frame_rate = 0;                ///< [1/s] from the timestamps (median interval)
   double nominal_rate = 0;              ///< [1/s] as the container announces it
   bool timestamps_from_container = true;

@@ -21,7 +21,7 @@ namespace {
 std::string csv_text(const io::TestDescription& test, const io::CaptureSettings& settings,
                      const capture::CaptureResult& r) {
   std::string text = fmt::format(
-      "# capture of {} from '{}': {}x{}, {} frames, {:.2f} frames/s ({})\n", test.sample_id, settings.video_as_written,
+      "# capture of {} from '{}': {}x{}, {} frames read, {:.2f} frames/s ({})\n", test.sample_id, settings.video_as_written,
       r.width, r.height, r.frames, r.frame_rate,
       r.timestamps_from_container ? fmt::format("container timestamps; {:.2f} announced", r.nominal_rate)
                                   : std::string("nominal rate: no timestamps in the video"));

@@ -6,7 +6,7 @@
 // captures the readings from the video (src/capture/capture.hpp) and writes the readings CSV that [readings]
 // file names, or --out:
 //
-//   # capture of TS12-0412 from 'TS12-0412.mp4': 1280x720, 1800 frames, 30.00 frames/s (container timestamps)
+//   # capture of TS12-0412 from 'TS12-0412.mp4': 1280x720, 1800 frames read, 30.00 frames/s (container timestamps; 30.00 announced)
 //   # release: 2.367 s into the video (detected: the first frame that moves)
 //   # scale: 4.21 px/mm at the sample (board 9x6, 10 mm squares, tilt corrected)
 //   # warning: ...                                   <- each warning, also printed on stderr
