@@ -16,10 +16,16 @@ FrameTiming analyse_timing(const std::vector<double>& times) {
   std::vector<double> sorted = intervals;
   std::nth_element(sorted.begin(), sorted.begin() + static_cast<std::ptrdiff_t>(sorted.size() / 2), sorted.end());
   timing.median_interval = sorted[sorted.size() / 2];
-  for (double gap : intervals) {
+  // Each gap against the median of the 15 intervals around it: a phone's rate may change during a video.
+  for (std::size_t i = 0; i < intervals.size(); ++i) {
+    const double gap = intervals[i];
     timing.longest_gap = std::max(timing.longest_gap, gap);
-    if (timing.median_interval > 0 && gap > 1.5 * timing.median_interval)
-      timing.dropped += static_cast<int>(std::lround(gap / timing.median_interval)) - 1;
+    const std::size_t from = i >= 7 ? i - 7 : 0, to = std::min(intervals.size(), i + 8);
+    std::vector<double> around(intervals.begin() + static_cast<std::ptrdiff_t>(from),
+                               intervals.begin() + static_cast<std::ptrdiff_t>(to));
+    std::nth_element(around.begin(), around.begin() + static_cast<std::ptrdiff_t>(around.size() / 2), around.end());
+    const double usual = around[around.size() / 2];
+    if (usual > 0 && gap > 1.5 * usual) timing.dropped += static_cast<int>(std::lround(gap / usual)) - 1;
   }
   return timing;
 }

@@ -19,12 +19,13 @@ namespace spreadfit::capture {
 /// Timing of the frames read so far, and what it says about dropped frames.
 struct FrameTiming {
   double median_interval = 0;  ///< [s] median time between frames
-  int dropped = 0;             ///< frames missing where the gap is more than 1.5 median intervals
+  int dropped = 0;             ///< frames missing where a gap is more than 1.5 usual intervals
   double longest_gap = 0;      ///< [s] longest interval between two frames
 };
 
-/// Frame timing from timestamps [s] (increasing). A gap of g intervals counts round(g) - 1 missing frames
-/// when g > 1.5 (common practice, no source: half a frame of jitter is normal for phone video).
+/// Frame timing from timestamps [s] (increasing). A gap of g usual intervals (the median of the 15 around it, so
+/// a change of rate is no gap) counts round(g) - 1 missing frames when g > 1.5 (common practice, no source: half
+/// a frame of jitter is normal for phone video).
 FrameTiming analyse_timing(const std::vector<double>& times);
 
 class VideoReader {

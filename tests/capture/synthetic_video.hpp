@@ -53,6 +53,8 @@ struct SceneOptions {
   double glare = 0;            ///< peak extra brightness of a glare spot on the sample (grey levels)
   std::string fourcc = "avc1"; ///< avc1 (H.264) | mp4v | MJPG
   int seed = 7;
+  std::vector<double> frame_times;  ///< [s] each frame's content time when not empty (a variable rate; the file
+                                    ///< itself is written at `fps`: retime it, vfr_remux.hpp, to match)
   bool supersample = true;     ///< render at twice the size and area-average down (false: faster, for the bench)
   /// Diameter (plate) or front past the gate (channel) [mm] at a time since the release [s], t >= 0.
   std::function<double(double)> spread;
@@ -115,11 +117,13 @@ inline std::vector<double> render_video(const std::filesystem::path& file, const
     }
   cv::RNG rng(static_cast<uint64_t>(o.seed));
   std::vector<double> times;
-  const int frames = static_cast<int>(std::lround(o.duration * o.fps));
+  const int frames = o.frame_times.empty() ? static_cast<int>(std::lround(o.duration * o.fps))
+                                          : static_cast<int>(o.frame_times.size());
   const double w = o.channel_width_mm;
   const double x_gate = o.sample_centre_mm.x - 80 + o.reservoir_mm;
   for (int i = 0; i < frames; ++i) {
-    const double t = i / o.fps, since = t - o.release;
+    const double t = o.frame_times.empty() ? i / o.fps : o.frame_times[static_cast<std::size_t>(i)];
+    const double since = t - o.release;
     times.push_back(t);
     cv::Mat plane = base.clone();
     const double value = o.spread(std::max(since, 0.0));

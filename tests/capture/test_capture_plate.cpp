@@ -8,6 +8,7 @@
 #include "src/capture/capture.hpp"
 #include "tests/capture/capture_test_support.hpp"
 #include "tests/capture/synthetic_video.hpp"
+#include "tests/capture/vfr_remux.hpp"
 #include "tests/io/io_test_support.hpp"
 
 namespace {
@@ -103,6 +104,49 @@ TEST_CASE("capture: without a board, the ring's known radius gives the scale (ca
   INFO("median error " << e.median << " mm, worst " << e.worst << " mm over " << r.readings.size() << " readings");
   // The ring's outline carries the scale: a tenth of a pixel on its 60 px radius is 0.15% of every diameter, so
   // this scale is less sure than a board's; the requirement (0.3 mm median, 1 mm worst) still holds.
+  CHECK(e.median <= 0.3);
+  CHECK(e.worst <= 1.0);
+}
+
+TEST_CASE("capture: a variable-rate video is read on its container's timestamps, and dropped frames are reported") {
+  // A phone slowing from 30 to 24 frames/s halfway, with 2 ms of jitter and 4 frames dropped after 3 s: read at
+  // the nominal rate, the last frames would be about 0.7 s off.
+  const TestSetup setup = test::plate_test_setup();
+  const test::TruthCurve truth(setup, Material{30.0, 5.0, 0.5}, 10.0);
+  std::vector<double> times;
+  double t = 0;
+  for (int i = 0; t < 7.0; ++i) {
+    times.push_back(t + 0.002 * ((i * 5) % 3 - 1));
+    t += t < 3.5 ? 1 / 30.0 : 1 / 24.0;
+    if (i == 95) t += 4 / 30.0;
+  }
+  TempDir dir;
+  test::SceneOptions o;
+  o.spread = truth.function();
+  o.ring_radius_mm = 25;
+  o.fourcc = "MJPG";
+  o.frame_times = times;
+  test::render_video(dir.path() / "constant.avi", o);
+  const auto video = dir.path() / "variable.mkv";
+  test::retime_video(dir.path() / "constant.avi", video, times);
+  const CaptureResult r = capture_readings(board_settings(video, o), setup.rig);
+  CHECK(r.timestamps_from_container);
+  CHECK(std::abs(r.release_time - o.release) <= 2 / 30.0);
+  bool dropped = false;
+  for (const auto& w : r.warnings) {
+    MESSAGE("warning: " << w);
+    dropped = dropped || w.rfind("frames dropped: about 4 missing", 0) == 0;
+  }
+  CHECK(dropped);
+  for (const CapturedReading& reading : r.readings) {
+    // Each reading's time is one of the frames' own.
+    const double video_time = reading.time + r.release_time + times.front();  // the reader counts from frame 0
+    double nearest = 1e9;
+    for (double f : times) nearest = std::min(nearest, std::abs(f - video_time));
+    CHECK(nearest <= 0.0015);  // the container keeps milliseconds
+  }
+  const Errors e = compare(r, truth, r.release_time - o.release);
+  INFO("median error " << e.median << " mm, worst " << e.worst << " mm");
   CHECK(e.median <= 0.3);
   CHECK(e.worst <= 1.0);
 }
