@@ -402,7 +402,7 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
   cv::Mat sample_interior;         // frame mask: pixels of the late frame surely sample, for the colour
   cv::Point seed;                  // ROI pixel inside the sample
   double channel_width_mm = 0;
-  cv::Mat along_map, centre_band;  // channel, ROI: [mm] past the gate line; the middle half of the width
+  cv::Mat along_map, centre_band;  // channel, ROI: [mm] past the gate line; the middle 30% of the width
   double profile_bin = 0.1;        // channel: [mm] bin of the profiles along the axis
 
   if (plate) {
@@ -532,8 +532,9 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
         side_map.at<float>(y, x) = static_cast<float>(normal.dot(p));
       }
     const double mid_side = 0.5 * (side_low + side_high);
-    // Readings are taken along the middle half of the width (a side wall's shadow or drag stays out).
-    centre_band = (side_map >= mid_side - 0.25 * channel_width_mm) & (side_map <= mid_side + 0.25 * channel_width_mm);
+    // Readings are taken along the middle 30% of the width: near the tip of a front that side-wall drag curves,
+    // and clear of the walls' shadows.
+    centre_band = (side_map >= mid_side - 0.15 * channel_width_mm) & (side_map <= mid_side + 0.15 * channel_width_mm);
     profile_bin = 0.25 / map.pixels_per_mm(map.to_image(cv::Point2d(centre))) * 2;  // half a pixel [mm]
     // The gate line: the first step up of the change between the still start and the last reading along the
     // middle of the channel (the gate's footprint, or the sample block's face), placed where that step reaches

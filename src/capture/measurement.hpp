@@ -4,9 +4,9 @@
 //   every pixel counts with its own area there (PlaneMap::pixel_area), whole inside the outline and by its sample
 //   fraction on the outline's edge (segmentation.hpp). The roundness check fits an ellipse to the outline on the
 //   plane (cv::fitEllipse, least squares; Fitzgibbon & Fisher 1995) and reports 1 - b/a.
-// channel: the front past the gate, as the area of sample past the gate line divided by the width the sample
-//   fills: the width-mean front, which is what a width-averaged (one-dimensional) film model predicts, and the
-//   same as the tip for a straight front.
+// channel: the front past the gate is read in capture.cpp (front_from_profile): along the middle 30% of the
+//   channel's width, the mean sample fraction per bin along the axis, and the last place it falls through 1/2
+//   (the blurred edge's middle), measured from the gate line (the first step of the change at the release).
 #pragma once
 
 #include <opencv2/core.hpp>
