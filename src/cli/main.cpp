@@ -13,6 +13,7 @@
 #include <string>
 #include <vector>
 
+#include "src/cli/capture_command.hpp"
 #include "src/cli/exit_codes.hpp"
 #include "src/cli/history_command.hpp"
 #include "src/cli/predict_command.hpp"
@@ -203,6 +204,19 @@ int run(int argc, char** argv) {
   plan->add_option("--until", plan_options.until, "Duration for candidates without readings (default 120 s)")
       ->type_name("T");
 
+  // --- capture -----------------------------------------------------------------------------------------------
+  CLI::App* capture = app.add_subcommand(
+      "capture", "Turn a video of the test, taken from above, into the readings CSV that [readings] file names.");
+  std::string capture_test;
+  capture->add_option("TEST.toml", capture_test, "Test description (TOML) with a [capture] table")
+      ->required()
+      ->type_name("");
+  PathOption capture_video, capture_out, capture_check;
+  capture_video.add_to(*capture, "--video", "FILE", "The video (instead of [capture] video)");
+  capture_out.add_to(*capture, "--out", "FILE.csv", "Write the readings to FILE.csv (instead of [readings] file)");
+  capture_check.add_to(*capture, "--check", "DIR",
+                       "Write audit images (frames with the outline found, a contact sheet, the curve) into DIR");
+
   try {
     app.parse(argc, argv);
   } catch (const CLI::Success& e) {  // --help, --help-all, --version
@@ -214,12 +228,21 @@ int run(int argc, char** argv) {
                              : predict->parsed()  ? predict
                              : translate->parsed() ? translate
                              : plan->parsed()      ? plan
+                             : capture->parsed()   ? capture
                                                   : nullptr;
     std::cerr << "spreadfit: " << e.what() << '\n'
               << "Run 'spreadfit " << (chosen ? chosen->get_name() + " " : std::string()) << "--help' for usage.\n";
     return to_int(ExitCode::BadInput);
   }
 
+  if (capture->parsed()) {
+    spreadfit::cli::CaptureCommandOptions capture_options;
+    capture_options.test = capture_test;
+    capture_options.video = capture_video.get();
+    capture_options.out = capture_out.get();
+    capture_options.check = capture_check.get();
+    return spreadfit::cli::run_capture_command(capture_options, std::cout, std::cerr);
+  }
   if (plan->parsed()) {
     plan_options.candidates.assign(plan_candidates.begin(), plan_candidates.end());
     return spreadfit::cli::run_plan_command(plan_options, std::cout, std::cerr);

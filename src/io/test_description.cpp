@@ -3,6 +3,8 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <cctype>
+#include <cstdio>
 #include <cmath>
 #include <numbers>
 #include <set>
@@ -27,7 +29,7 @@ constexpr double kTemperatureMax = kCelsiusZero + 150.0;
 
 using Names = std::vector<std::string_view>;
 
-const Names kTables{"sample", "rig", "readings", "fit", "spec"};
+const Names kTables{"sample", "rig", "readings", "fit", "spec", "capture"};
 const Names kSampleKeys{"id", "product", "density", "temperature"};
 const Names kRigKinds{"channel", "plate", "squeeze", "slump"};
 const Names kChannelKeys{"kind", "width", "reservoir_length", "volume", "fill_height", "side_wall_drag"};
@@ -39,6 +41,8 @@ const Names kFitKeys{"model", "time_origin", "ignore_before"};
 const Names kModelNames{"newtonian", "power-law", "bingham", "herschel-bulkley", "auto"};
 const Names kTimeOrigins{"fit", "zero"};
 const Names kSpecKeys{"viscosity", "yield_stress", "consistency", "flow_index"};
+const Names kCaptureKeys{"video", "scale", "board", "square", "release", "every", "times"};
+const Names kScaleNames{"board", "ring", "channel"};
 const Names kCatalogueKeys{"viscosity",       "yield_stress",          "consistency",
                            "flow_index",      "reference_temperature", "activation_energy",
                            "yield_stress_activation_energy", "flow_index_prior"};
@@ -90,7 +94,8 @@ std::string expected_quantity(Dimension d) {
 /// The reader of one test description: the file name and the error helpers in one place.
 class DescriptionReader {
  public:
-  explicit DescriptionReader(std::filesystem::path file) : file_(std::move(file)), name_(file_.string()) {}
+  explicit DescriptionReader(std::filesystem::path file, LoadOptions options = {})
+      : file_(std::move(file)), name_(file_.string()), options_(options) {}
 
   TestDescription read();
 
@@ -116,6 +121,7 @@ class DescriptionReader {
   Rig read_rig(const toml::table& root) const;
   void read_readings(const toml::table& root, TestDescription& out) const;
   void read_fit(const toml::table& root, TestDescription& out) const;
+  void read_capture(const toml::table& root, TestDescription& out) const;
   void check_possible(const TestDescription& out) const;
   void read_spec(const toml::table& root, TestDescription& out) const;
   void read_spec_table(const toml::table& spec, const std::string& section, std::vector<SpecLimit>& limits,
@@ -136,6 +142,7 @@ class DescriptionReader {
 
   std::filesystem::path file_;
   std::string name_;
+  LoadOptions options_;
 };
 
 const toml::table* DescriptionReader::table(const toml::table& root, std::string_view name) const {
@@ -415,6 +422,8 @@ void DescriptionReader::read_readings(const toml::table& root, TestDescription& 
     const std::filesystem::path resolved = (folder / written).lexically_normal();
     if (!seen.insert(resolved).second)
       fail(line_of(*node), field, "'" + written + "' is listed twice (expected each replicate once)");
+    out.readings_files.push_back(resolved);
+    if (!options_.read_readings_files) continue;
     std::error_code ec;
     if (!std::filesystem::is_regular_file(resolved, ec))
       fail(line_of(*node), field,
@@ -436,7 +445,7 @@ void DescriptionReader::read_readings(const toml::table& root, TestDescription& 
                " (expected every replicate to give the same reading)");
     out.series.push_back(std::move(series));
   }
-  out.setup.reading = out.series.front().kind;
+  if (!out.series.empty()) out.setup.reading = out.series.front().kind;
 }
 
 void DescriptionReader::read_fit(const toml::table& root, TestDescription& out) const {
@@ -494,6 +503,90 @@ void DescriptionReader::check_possible(const TestDescription& out) const {
     fail(0, "readings.final",
          fmt::format("final reading {:.4g} m is larger than the rig allows for this sample ({:.4g} m: {})",
                      *out.final_reading, largest, why));
+}
+
+// [capture]: the video and how to scale it (test_description.hpp). Only `spreadfit capture` asks for it.
+void DescriptionReader::read_capture(const toml::table& root, TestDescription& out) const {
+  const toml::table* capture = table(root, "capture");
+  if (!capture)
+    fail(0, "capture", "missing table [capture] (expected at least video = \"...\" and the scale, see the README)");
+  check_keys(*capture, "capture", kCaptureKeys);
+  const bool plate = std::holds_alternative<PlateRig>(out.setup.rig);
+  const bool channel = std::holds_alternative<ChannelRig>(out.setup.rig);
+  if (!plate && !channel)
+    fail(line_of(*capture), "capture",
+         "a " + std::string(rig_kind_name(out.setup.rig)) +
+             " rig has no video capture (expected a plate or a channel rig)");
+
+  CaptureSettings c;
+  const toml::node& video = required(*capture, "capture", "video", "the video's file name, such as \"TS12-0412.mp4\"");
+  c.video_as_written = text(video, "capture.video");
+  c.video_line = line_of(video);
+  c.video = (file_.parent_path() / c.video_as_written).lexically_normal();
+
+  const toml::node* scale = capture->get("scale");
+  const std::string scale_name = scale ? name_in(*scale, "capture.scale", kScaleNames, "scale") : "board";
+  c.scale = scale_name == "board" ? CaptureSettings::Scale::Board
+            : scale_name == "ring" ? CaptureSettings::Scale::Ring
+                                   : CaptureSettings::Scale::Channel;
+  if (c.scale == CaptureSettings::Scale::Ring && !plate)
+    fail(line_of(*scale), "capture.scale", "scale = 'ring' needs a plate rig (expected board or channel)");
+  if (c.scale == CaptureSettings::Scale::Channel && !channel)
+    fail(line_of(*scale), "capture.scale", "scale = 'channel' needs a channel rig (expected board or ring)");
+
+  const toml::node* board = capture->get("board");
+  const toml::node* square = capture->get("square");
+  if (c.scale == CaptureSettings::Scale::Board) {
+    const toml::node& b = required(*capture, "capture", "board",
+                                   "the board's inner corners, columns x rows, such as \"9x6\"");
+    const std::string written = text(b, "capture.board");
+    int columns = 0, rows = 0;
+    char x = 0, rest = 0;
+    const int got = std::sscanf(written.c_str(), " %d %c %d %c", &columns, &x, &rows, &rest);
+    if (got != 3 || (x != 'x' && x != 'X') || columns < 3 || rows < 3 || columns > 60 || rows > 60)
+      fail(line_of(b), "capture.board",
+           "'" + written + "' is not a board size (expected inner corners as columns x rows, each 3 to 60, such "
+                           "as \"9x6\")");
+    c.board_columns = columns;
+    c.board_rows = rows;
+    c.square = quantity(required(*capture, "capture", "square", expected_quantity(Dimension::Length) +
+                                                                   ": the side of one board square"),
+                        "capture.square", Dimension::Length, Range::Positive);
+  } else {
+    const toml::node* extra = board ? board : square;
+    if (extra)
+      fail(line_of(*extra), board ? "capture.board" : "capture.square",
+           "applies to scale = 'board' only (this test's scale is '" + scale_name + "')");
+  }
+
+  if (const toml::node* release = capture->get("release")) {
+    const auto* s = release->as_string();
+    const bool word = s && !s->get().empty() && std::isalpha(static_cast<unsigned char>(s->get().front()));
+    if (word && s->get() != "auto")
+      fail(line_of(*release), "capture.release",
+           "unknown release '" + s->get() + "'" + did_you_mean(s->get(), Names{"auto"}) +
+               " (expected auto or a time of the video, such as \"2.4 s\")");
+    if (!word) c.release = quantity(*release, "capture.release", Dimension::Time, Range::NonNegative);
+  }
+
+  const toml::node* every = capture->get("every");
+  const toml::node* times = capture->get("times");
+  if (every && times) fail(line_of(*times), "capture.times", "give every or times, not both");
+  if (every) c.every = quantity(*every, "capture.every", Dimension::Time, Range::Positive);
+  if (times) {
+    const toml::array* array = times->as_array();
+    if (!array || array->empty())
+      fail(line_of(*times), "capture.times",
+           "expected a non-empty array of times since the release, such as [\"1 s\", \"2 s\", \"5 s\"]");
+    for (const toml::node& t : *array) {
+      const double value = quantity(t, "capture.times", Dimension::Time, Range::NonNegative);
+      if (!c.times.empty() && value <= c.times.back())
+        fail(line_of(t), "capture.times",
+             fmt::format("'{}' is not after the time before it (expected times strictly increasing)", as_written(t)));
+      c.times.push_back(value);
+    }
+  }
+  out.capture = std::move(c);
 }
 
 void DescriptionReader::read_spec(const toml::table& root, TestDescription& out) const {
@@ -602,7 +695,8 @@ TestDescription DescriptionReader::read() {
     for (const auto& [section, keys] : {std::pair{"sample", &kSampleKeys}, std::pair{"rig", &kChannelKeys},
                                         std::pair{"rig", &kPlateKeys}, std::pair{"rig", &kSqueezeKeys},
                                         std::pair{"rig", &kSlumpKeys}, std::pair{"readings", &kReadingsKeys},
-                                        std::pair{"fit", &kFitKeys}, std::pair{"spec", &kSpecKeys}})
+                                        std::pair{"fit", &kFitKeys}, std::pair{"spec", &kSpecKeys},
+                                        std::pair{"capture", &kCaptureKeys}})
       if (std::find(keys->begin(), keys->end(), k) != keys->end())
         fail(line_of(key), std::string(k),
              "key '" + std::string(k) + "' is outside any table (expected it under [" + section + "])");
@@ -618,6 +712,7 @@ TestDescription DescriptionReader::read() {
   check_possible(out);
   read_fit(root, out);
   read_spec(root, out);
+  if (options_.read_capture) read_capture(root, out);
   return out;
 }
 
@@ -649,6 +744,8 @@ bool rig_has_reading(const Rig& rig, Reading reading) {
   return reading == Reading::Slump;
 }
 
-TestDescription load_test_description(const std::filesystem::path& file) { return DescriptionReader(file).read(); }
+TestDescription load_test_description(const std::filesystem::path& file, const LoadOptions& options) {
+  return DescriptionReader(file, options).read();
+}
 
 }  // namespace spreadfit::io

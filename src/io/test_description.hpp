@@ -21,6 +21,11 @@
 //              times are not fitted)
 //   [spec]     optional: viscosity | yield_stress | consistency | flow_index = [low, high], both quantities,
 //              inclusive, low <= high
+//   [capture]  optional; read only when LoadOptions::read_capture is set (`spreadfit capture`), otherwise
+//              accepted and left alone: video (path relative to this file), scale = board | ring | channel
+//              (default board), board = "9x6" (inner corners, columns x rows) and square = "10 mm" (with
+//              scale = board), release = "auto" or a time of the video ("2.4 s"; default auto), every = "1 s"
+//              (default 1 s) or times = ["1 s", ...] (since the release; not both)
 //
 // A quantity is a TOML number in SI units or a string "value unit" (units.hpp). Derived values:
 //   channel fill_height h: volume = h * width * reservoir_length
@@ -60,6 +65,31 @@ struct FitSettings {
   double ignore_before = 0;      ///< [s]; readings at times < ignore_before are not fitted
 };
 
+/// The [capture] table: how `spreadfit capture` reads the test's video.
+struct CaptureSettings {
+  enum class Scale { Board, Ring, Channel };
+  std::filesystem::path video;       ///< resolved against the TOML file's folder
+  std::string video_as_written;      ///< as the TOML wrote it, for messages and the CSV's comments
+  int video_line = 0;                ///< TOML line of `video`, for messages
+  Scale scale = Scale::Board;        ///< board: a printed chessboard on the plate plane; ring: the ring's inner
+                                     ///< radius (plate only); channel: the channel's width (channel only)
+  int board_columns = 0;             ///< inner corners along the board's long side (scale = board)
+  int board_rows = 0;                ///< inner corners along the other side
+  double square = 0;                 ///< [m] side of one board square (scale = board)
+  std::optional<double> release;     ///< [s] time of the video at the release; nullopt = detect it
+  double every = 1.0;                ///< [s] reading interval (when `times` is empty), > 0
+  std::vector<double> times;         ///< [s] since the release, strictly increasing; empty = every `every`
+};
+
+/// What load_test_description reads besides the rig and the sample.
+struct LoadOptions {
+  /// false: the readings files [readings] names are listed in TestDescription::readings_files and not opened
+  /// (for `capture`, which writes them).
+  bool read_readings_files = true;
+  /// true: the [capture] table is read and checked into TestDescription::capture (an error when it is missing).
+  bool read_capture = false;
+};
+
 struct TestDescription {
   std::filesystem::path path;  ///< the TOML file as given
   std::string sample_id, product;  ///< product empty when not given
@@ -67,6 +97,8 @@ struct TestDescription {
   std::optional<double> temperature;      ///< [K]
   TestSetup setup;                        ///< rig + density + reading kind
   std::vector<ReadingSeries> series;      ///< one per readings file; empty for final-only or no readings
+  std::vector<std::filesystem::path> readings_files;  ///< the files [readings] names, resolved, in file order
+  std::optional<CaptureSettings> capture;  ///< only with LoadOptions::read_capture
   std::optional<double> final_reading;    ///< [m], final-only test
   std::optional<double> resolution;       ///< [m], reading standard uncertainty
   FitSettings fit;
@@ -74,7 +106,7 @@ struct TestDescription {
 };
 
 /// Reads, converts and checks a test description and the readings files it names. Throws InputError.
-TestDescription load_test_description(const std::filesystem::path& file);
+TestDescription load_test_description(const std::filesystem::path& file, const LoadOptions& options = {});
 
 /// One product of a spec catalogue: limits that apply at the reference temperature, and the Arrhenius activation
 /// energies that take a test's parameters there (models/temperature.hpp).

@@ -15,6 +15,7 @@
 #include "src/fit/fit_law.hpp"
 #include "src/fit/prediction_band.hpp"
 #include "src/qc/spec_translation.hpp"
+#include "tests/bench/bench_capture.hpp"
 
 using namespace spreadfit;
 
@@ -69,6 +70,10 @@ struct Law_ {
 
 int main(int argc, char** argv) {
   const bool quick = argc > 1 && std::string(argv[1]) == "--quick";
+  if (argc > 1 && std::string(argv[1]) == "--capture") {  // the capture section alone
+    spreadfit::bench::bench_capture(std::filesystem::path(argv[0]).parent_path(), false);
+    return 0;
+  }
   const int repeats = quick ? 5 : 21;
   std::vector<double> times;
   for (int i = 1; i <= 30; ++i) times.push_back(4.0 * i);  // a 120 s test, 30 readings
@@ -194,5 +199,6 @@ int main(int argc, char** argv) {
     std::printf("  yield-stress limits from channel limits, 25 combos:  %8.1f ms (%d forward solves)\n", ms,
                 limits.solves);
   }
+  spreadfit::bench::bench_capture(std::filesystem::path(argv[0]).parent_path(), quick);
   return 0;
 }

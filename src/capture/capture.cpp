@@ -1,0 +1,668 @@
+#include "src/capture/capture.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <deque>
+#include <numbers>
+#include <opencv2/imgproc.hpp>
+#include <optional>
+#include <stdexcept>
+
+#include "src/capture/board_homography.hpp"
+#include "src/capture/capture_error.hpp"
+#include "src/capture/measurement.hpp"
+#include "src/capture/release_detection.hpp"
+#include "src/capture/segmentation.hpp"
+
+namespace spreadfit::capture {
+
+namespace {
+
+using Scale = io::CaptureSettings::Scale;
+
+struct Kept {
+  double time = 0;  ///< [s] in the video
+  int index = 0;
+  cv::Mat image;
+};
+
+/// Everything one decoding pass gives.
+struct Decoded {
+  std::vector<double> times;
+  std::vector<Kept> stills;    ///< still frames before the release
+  std::vector<Kept> readings;  ///< the frame nearest each reading time
+  double release = 0;
+  bool detected = false;
+  int width = 0, height = 0;
+  double nominal_rate = 0;
+  bool from_container = true;
+  std::size_t targets_missed = 0;  ///< times given that lie after the video's end
+};
+
+double quantile(std::vector<double> v, double q) {
+  if (v.empty()) return 0;
+  const auto k = static_cast<std::size_t>(std::clamp(q, 0.0, 1.0) * static_cast<double>(v.size() - 1));
+  std::nth_element(v.begin(), v.begin() + static_cast<std::ptrdiff_t>(k), v.end());
+  return v[k];
+}
+
+std::string seconds(double t) { return fmt::format("{:.2f} s", t); }
+
+Decoded decode(const io::CaptureSettings& s, const CaptureOptions& o) {
+  VideoReader video(s.video);
+  Decoded out;
+  out.width = video.width();
+  out.height = video.height();
+  out.nominal_rate = video.nominal_rate();
+  // A quarter of a second between the frames compared (3 to 8 frames): slow drifts stay small, and a video
+  // needs about half a second of stillness before the release at any frame rate.
+  ReleaseOptions release_options;
+  const double rate = video.nominal_rate() > 0 ? video.nominal_rate() : 30.0;
+  release_options.lag = std::clamp(static_cast<int>(std::lround(0.25 * rate)), 3, 8);
+  ReleaseDetector detector(release_options);
+  std::optional<double> release = s.release;
+  int release_index = -1;
+  std::size_t next = 0;  // next reading time
+  auto target = [&](std::size_t k) -> std::optional<double> {
+    if (!s.times.empty()) return k < s.times.size() ? std::optional<double>(s.times[k]) : std::nullopt;
+    return static_cast<double>(k + 1) * s.every;
+  };
+  double interval = video.nominal_rate() > 0 ? 1.0 / video.nominal_rate() : 1.0 / 30.0;
+  std::size_t step = 1;  // every step-th frame before the release is a still candidate
+  std::deque<Kept> recent;  // auto release: the frames the detector saw after the release
+  // Takes a frame for the readings when it is the first at (or within half a frame before) the next time.
+  auto wanted = [&](double t) {
+    const auto next_time = target(next);
+    return release && next_time && t >= *release + *next_time - 0.5 * interval;
+  };
+  auto take = [&](Kept k) {
+    if (static_cast<int>(out.readings.size()) >= o.max_readings)
+      throw std::invalid_argument(fmt::format("capture: more than {} readings asked for (expected a longer "
+                                              "interval, every, or fewer times)",
+                                              o.max_readings));
+    while (wanted(k.time)) ++next;  // one frame serves all the times it is nearest to
+    out.readings.push_back(std::move(k));
+  };
+  auto keep_still = [&](Kept k) {
+    if (k.index % static_cast<int>(step) != 0) return;
+    out.stills.push_back(std::move(k));
+    if (out.stills.size() > 16) {  // keep 8 spread over the still start, and take half as many from now on
+      std::vector<Kept> thinned;
+      for (std::size_t i = 0; i < out.stills.size(); i += 2) thinned.push_back(std::move(out.stills[i]));
+      out.stills = std::move(thinned);
+      step *= 2;
+    }
+  };
+
+  while (video.grab()) {
+    if (video.index() >= o.max_frames)
+      throw std::invalid_argument(fmt::format("capture: the video has more than {} frames", o.max_frames));
+    const double t = video.time();
+    if (!out.times.empty() && video.index() > 0)
+      interval = (t - out.times.front()) / static_cast<double>(video.index());
+    out.times.push_back(t);
+    if (!release) {  // detecting: every frame is looked at until something moves
+      Kept k{t, video.index(), video.retrieve()};
+      recent.push_back(Kept{t, k.index, k.image});
+      if (recent.size() > 8) recent.pop_front();
+      const bool done = detector.add(k.image, t);
+      keep_still(std::move(k));
+      if (done) {
+        release = detector.release_time();
+        release_index = detector.release_index();
+        out.detected = true;
+        for (Kept& r : recent)
+          if (r.index >= release_index && wanted(r.time)) take(std::move(r));
+      }
+      continue;
+    }
+    if (t < *release - 1.5 * interval) {
+      if (video.index() % static_cast<int>(step) == 0) keep_still(Kept{t, video.index(), video.retrieve()});
+      continue;
+    }
+    if (wanted(t)) take(Kept{t, video.index(), video.retrieve()});
+    if (!target(next)) break;  // every time given is read: the rest of the video is not needed
+  }
+  out.from_container = video.timestamps_from_container();
+  if (out.times.empty()) throw std::runtime_error("cannot be read as a video (no frame decodes)");
+
+  if (!release && detector.moving_from_start())
+    throw NotFoundInVideo(
+        "release not detectable: the video does not start still (expected a second or so of the plate before "
+        "the ring or gate moves; or give the time, such as release = \"2.4 s\", in [capture])");
+  if (!release)
+    throw NotFoundInVideo(
+        "no release found: nothing moves in the video after its still start (expected the ring or gate to be "
+        "lifted in view; or give the time, such as release = \"2.4 s\", in [capture])");
+  out.release = *release;
+  if (out.detected) {
+    std::erase_if(out.stills, [&](const Kept& k) { return k.index >= release_index - 1; });
+    if (release_index <= release_options.lag + 1 || out.stills.empty())
+      throw NotFoundInVideo(
+          "release not detectable: the video does not start still (expected a second or so of the plate before "
+          "the ring or gate moves; or give the time, such as release = \"2.4 s\", in [capture])");
+  } else {
+    if (*release > out.times.back())
+      throw std::invalid_argument(fmt::format("capture.release: {} is after the video's end ({})",
+                                              seconds(*release), seconds(out.times.back())));
+    std::erase_if(out.stills, [&](const Kept& k) { return k.time >= *release - 1.5 * interval; });
+    if (out.stills.empty())
+      throw std::invalid_argument(fmt::format(
+          "capture.release: {} leaves no still frame before the release (expected at least one frame of the "
+          "plate before the ring or gate moves)",
+          seconds(*release)));
+  }
+  if (!s.times.empty()) out.targets_missed = s.times.size() - std::min(next, s.times.size());
+  if (out.readings.empty())
+    throw NotFoundInVideo(fmt::format("no reading: the video ends {} after the release, before the first reading "
+                                      "time ({})",
+                                      seconds(out.times.back() - out.release), seconds(*target(0))));
+  return out;
+}
+
+/// Every pixel of a frame-sized mask that is non-zero, subsampled to about `limit` points.
+std::vector<cv::Point> mask_points(const cv::Mat& mask, std::size_t limit = 20000) {
+  std::vector<cv::Point> points;
+  cv::findNonZero(mask, points);
+  if (points.size() <= limit) return points;
+  std::vector<cv::Point> thinned;
+  const std::size_t stride = points.size() / limit + 1;
+  for (std::size_t i = 0; i < points.size(); i += stride) thinned.push_back(points[i]);
+  return thinned;
+}
+
+cv::Rect grown(const cv::Rect& r, double fraction, int pixels, cv::Size frame) {
+  const int dx = static_cast<int>(r.width * fraction) + pixels, dy = static_cast<int>(r.height * fraction) + pixels;
+  return cv::Rect(r.x - dx, r.y - dy, r.width + 2 * dx, r.height + 2 * dy) & cv::Rect(cv::Point(0, 0), frame);
+}
+
+bool touches_frame_edge(const cv::Mat& roi_mask, const cv::Rect& roi, cv::Size frame) {
+  auto any = [](const cv::Mat& m) { return cv::countNonZero(m) > 0; };
+  return (roi.x == 0 && any(roi_mask.col(0))) || (roi.y == 0 && any(roi_mask.row(0))) ||
+         (roi.x + roi.width == frame.width && any(roi_mask.col(roi_mask.cols - 1))) ||
+         (roi.y + roi.height == frame.height && any(roi_mask.row(roi_mask.rows - 1)));
+}
+
+cv::Mat disc_kernel(int radius) {
+  return cv::getStructuringElement(cv::MORPH_ELLIPSE, cv::Size(2 * radius + 1, 2 * radius + 1));
+}
+
+/// The scale from an outline known to be a circle of `radius_mm` on the plane, camera roughly square above:
+/// the affine map that takes the outline's least-squares ellipse to that circle (a small tilt is corrected to
+/// first order). The ellipse's shape comes from the outline; its size from the region's pixel count, since an
+/// outline traced through the edge pixels' centres lies half a pixel inside the region's edge.
+PlaneMap map_from_circle(const cv::Mat& region, double radius_mm) {
+  const std::vector<cv::Point> outline = outer_contour(region);
+  std::vector<cv::Point2f> points(outline.begin(), outline.end());
+  cv::RotatedRect e = cv::fitEllipse(points);
+  const double size = std::sqrt(cv::countNonZero(region) / (std::numbers::pi * 0.25 * e.size.width * e.size.height));
+  e.size.width = static_cast<float>(e.size.width * size);
+  e.size.height = static_cast<float>(e.size.height * size);
+  const double angle = e.angle * std::numbers::pi / 180.0;
+  const double ca = std::cos(angle), sa = std::sin(angle);
+  const double sx = radius_mm / (0.5 * e.size.width), sy = radius_mm / (0.5 * e.size.height);
+  // plane = S R(-angle) (p - c)
+  const cv::Matx33d shift(1, 0, -e.center.x, 0, 1, -e.center.y, 0, 0, 1);
+  const cv::Matx33d rotate(ca, sa, 0, -sa, ca, 0, 0, 0, 1);
+  const cv::Matx33d scale(sx, 0, 0, 0, sy, 0, 0, 0, 1);
+  PlaneMap map;
+  map.image_to_plane = scale * rotate * shift;
+  return map;
+}
+
+/// Mean of `values` over the pixels of `mask` in bins of `bin` mm of `along`, from `from` to `to` [mm].
+std::vector<double> profile(const cv::Mat& values, const cv::Mat& along, const cv::Mat& mask, double from, double to,
+                            double bin) {
+  const auto bins = static_cast<std::size_t>(std::max(1.0, std::ceil((to - from) / bin)));
+  std::vector<double> sum(bins, 0.0), count(bins, 0.0);
+  for (int y = 0; y < values.rows; ++y) {
+    const float* v = values.ptr<float>(y);
+    const float* a = along.ptr<float>(y);
+    const uchar* m = mask.ptr<uchar>(y);
+    for (int x = 0; x < values.cols; ++x) {
+      if (!m[x] || a[x] < from || a[x] >= to) continue;
+      const auto i = static_cast<std::size_t>((a[x] - from) / bin);
+      if (i < bins) sum[i] += v[x], count[i] += 1;
+    }
+  }
+  std::vector<double> out(bins, 0.0);
+  double last = 0;
+  for (std::size_t i = 0; i < bins; ++i) out[i] = last = count[i] > 0 ? sum[i] / count[i] : last;
+  return out;
+}
+
+/// [mm] the front past the gate line: along the middle of the channel, the mean sample fraction (within the
+/// sample's outline, a few pixels grown) per bin along the axis, and the last place it falls through 1/2,
+/// interpolated between bins (the blurred edge crosses 1/2 at the true edge).
+double front_from_profile(const cv::Mat& fraction, const cv::Mat& mask, const cv::Mat& along, const cv::Mat& band,
+                          double bin) {
+  cv::Mat near;
+  cv::dilate(mask, near, cv::getStructuringElement(cv::MORPH_ELLIPSE, cv::Size(7, 7)));
+  cv::Mat clamped;
+  cv::min(cv::max(fraction, 0.0), 1.0, clamped);
+  clamped.setTo(0, near == 0);
+  double far = 0;
+  cv::minMaxLoc(along, nullptr, &far, nullptr, nullptr, near & band);
+  if (far <= 0) return 0;
+  const std::vector<double> p = profile(clamped, along, band, 0.0, far + 2 * bin, bin);
+  for (std::size_t i = p.size(); i-- > 0;)
+    if (p[i] >= 0.5) {
+      const double next = i + 1 < p.size() ? p[i + 1] : 0.0;
+      const double w = p[i] > next ? (p[i] - 0.5) / (p[i] - next) : 0.0;
+      return (static_cast<double>(i) + 0.5 + w) * bin;
+    }
+  return 0;
+}
+
+/// The width of a long region of points across `normal`, from its middle part along `axis` (20% to 80%: away
+/// from the gate, whose footprint may reach over the walls, and from the front): the range between the 1% and
+/// 99% quantiles across, divided by 0.98 as for points spread evenly over the width. `middle` gets the centre.
+double middle_width(const std::vector<cv::Vec2d>& points, cv::Vec2d axis, cv::Vec2d normal, double* middle = nullptr) {
+  std::vector<double> along;
+  for (const cv::Vec2d& p : points) along.push_back(axis.dot(p));
+  const double low = quantile(along, 0.2), high = quantile(along, 0.8);
+  std::vector<double> across;
+  for (const cv::Vec2d& p : points) {
+    const double a = axis.dot(p);
+    if (a >= low && a <= high) across.push_back(normal.dot(p));
+  }
+  const double lo = quantile(across, 0.01), hi = quantile(across, 0.99);
+  if (middle) *middle = 0.5 * (lo + hi);
+  return (hi - lo) / 0.98;
+}
+
+/// [px] how far beyond the sample's outline at the release the plate was hidden (by the ring's wall, or the
+/// outline's blur): the first distance where the still frames' median colour, around the whole outline, is the
+/// plate's colour seen well outside (half a radius out), to within 6 noise deviations, plus 2 px for the blur.
+int hidden_margin(const cv::Mat& background, const cv::Mat& holes, const cv::Rect& roi, double radius, double noise) {
+  cv::Mat outside = holes(roi) == 0, distance;
+  cv::distanceTransform(outside, distance, cv::DIST_L2, 3);
+  const int far = std::max(6, static_cast<int>(0.5 * radius));
+  std::vector<std::vector<double>> bands(static_cast<std::size_t>(far + 4) * 3);
+  for (int y = 0; y < roi.height; ++y) {
+    const float* d = distance.ptr<float>(y);
+    const auto* b = background.ptr<cv::Vec3b>(roi.y + y) + roi.x;
+    for (int x = 0; x < roi.width; ++x) {
+      const int band = static_cast<int>(d[x]);
+      if (band < 1 || band >= far + 4) continue;
+      for (int c = 0; c < 3; ++c) bands[static_cast<std::size_t>(band * 3 + c)].push_back(b[x][c]);
+    }
+  }
+  auto band_colour = [&](int band) {
+    cv::Vec3d colour;
+    for (int c = 0; c < 3; ++c) colour[c] = quantile(bands[static_cast<std::size_t>(band * 3 + c)], 0.5);
+    return colour;
+  };
+  const cv::Vec3d plate = band_colour(far);
+  const double tolerance = std::max(6.0 * noise, 4.0);
+  int quiet = 0;
+  for (int band = 1; band < far; ++band) {
+    quiet = cv::norm(band_colour(band) - plate) <= tolerance ? quiet + 1 : 0;
+    if (quiet == 2) return band + 2;
+  }
+  return far;
+}
+
+}  // namespace
+
+CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, const CaptureOptions& o) {
+  const auto* plate = std::get_if<PlateRig>(&rig);
+  const auto* channel = std::get_if<ChannelRig>(&rig);
+  if (!plate && !channel) throw std::invalid_argument("capture reads plate and channel tests only");
+
+  CaptureResult result;
+  result.reading = plate ? Reading::Diameter : Reading::Front;
+  Decoded video = decode(s, o);
+  result.width = video.width;
+  result.height = video.height;
+  result.frames = static_cast<int>(video.times.size());
+  result.nominal_rate = video.nominal_rate;
+  result.timestamps_from_container = video.from_container;
+  result.timing = analyse_timing(video.times);
+  result.frame_rate = result.timing.median_interval > 0 ? 1.0 / result.timing.median_interval : 0;
+  result.release_time = video.release;
+  result.release_detected = video.detected;
+  const cv::Size frame_size(video.width, video.height);
+  auto& warnings = result.warnings;
+  if (!video.from_container)
+    warnings.push_back("the video carries no usable frame timestamps: times come from its nominal frame rate");
+  if (result.timing.dropped > 0)
+    warnings.push_back(fmt::format("frames dropped: about {} missing (gaps up to {:.0f} ms between frames, {:.0f} ms "
+                                   "usual); readings keep their true times",
+                                   result.timing.dropped, 1000 * result.timing.longest_gap,
+                                   1000 * result.timing.median_interval));
+  if (video.targets_missed > 0)
+    warnings.push_back(fmt::format("{} of the reading times lie after the video's end and are left out",
+                                   video.targets_missed));
+
+  // --- the plate's look before the release --------------------------------------------------------------------
+  std::vector<cv::Mat> stills;
+  const std::size_t use = std::min<std::size_t>(video.stills.size(), 7);
+  for (std::size_t i = 0; i < use; ++i)
+    stills.push_back(video.stills[(i * (video.stills.size() - 1)) / std::max<std::size_t>(use - 1, 1)].image);
+  const cv::Mat background = median_frame(stills);
+  const double noise = noise_level(stills, background);
+
+  // --- scale (board) ------------------------------------------------------------------------------------------
+  PlaneMap map;
+  if (s.scale == Scale::Board) {
+    cv::Mat gray;
+    cv::cvtColor(background, gray, cv::COLOR_BGR2GRAY);
+    const double square_mm = s.square * 1000.0;
+    const auto board = find_board(gray, s.board_columns, s.board_rows, square_mm);
+    const std::string size = fmt::format("{}x{}", s.board_columns, s.board_rows);
+    if (!board) {
+      const std::string partial = find_partial_board(gray, s.board_columns, s.board_rows);
+      throw NotFoundInVideo(
+          partial.empty()
+              ? fmt::format("board not found: no chessboard of {} inner corners in the frames before the release "
+                            "(expected it flat beside the sample, all in view; is board = \"{}\" right?)",
+                            size, size)
+              : fmt::format("board not found whole: only {} of its {} inner corners are seen (the board is partly "
+                            "out of view or covered; or is board = \"{}\" wrong?)",
+                            partial, size, size));
+    }
+    map = board->map;
+    result.reference.board_corners = board->corners;
+    result.scale_source = fmt::format("board {}, {:g} mm squares, tilt corrected", size, square_mm);
+    if (board->near_frame_edge)
+      warnings.push_back("the board is only partly seen: its outer squares reach the frame's edge (the scale holds "
+                         "while its inner corners are found, but keep it whole in view)");
+    if (board->rms_mm > 0.1 * square_mm)
+      warnings.push_back(fmt::format("the board's corners stray {:.2f} mm from a flat board: is it lying flat, and "
+                                     "is the lens strongly distorting?",
+                                     board->rms_mm));
+  }
+
+  // --- where the sample is: what the last reading frame changed -----------------------------------------------
+  const cv::Mat& late = video.readings.back().image;
+  const double change_threshold = std::max(5.0 * noise * std::sqrt(3.0), 10.0);
+  const cv::Mat late_change = magnitude(difference(late, background, exposure_gain(late, background, cv::Mat()),
+                                                    cv::Rect(cv::Point(0, 0), frame_size)));
+  const cv::Mat changed_late = largest_component(clean_mask(late_change > change_threshold, 2));
+  if (cv::countNonZero(changed_late) < 30)
+    throw NotFoundInVideo(fmt::format("sample not found: the frame at {} after the release looks like the frames "
+                                      "before it (expected the sample to spread, and to differ from the plate "
+                                      "in colour or brightness)",
+                                      seconds(video.readings.back().time - video.release)));
+  const cv::Mat late_outline = fill_holes(changed_late);
+  const cv::Rect roi = grown(cv::boundingRect(late_outline), 0.15, 12, frame_size);
+  const cv::Mat late_dilated = [&] {
+    cv::Mat m;
+    cv::dilate(late_outline, m, disc_kernel(std::max(8, roi.width / 20)));
+    return m;
+  }();
+
+  cv::Mat reference = background;  // the plate's look, filled in where the sample, ring or gate hid it
+  cv::Mat always_sample;           // ROI mask: sample from the release on (plate: inside the ring)
+  cv::Mat gate_band;               // ROI mask, channel: just past the gate line, where the gate stood
+  cv::Mat counted;                 // ROI mask, channel: past the gate line, inside the channel
+  cv::Mat sample_interior;         // frame mask: pixels of the late frame surely sample, for the colour
+  cv::Point seed;                  // ROI pixel inside the sample
+  double channel_width_mm = 0;
+  cv::Mat along_map, centre_band;  // channel, ROI: [mm] past the gate line; the middle 30% of the width
+  double profile_bin = 0.1;        // channel: [mm] bin of the profiles along the axis
+
+  if (plate) {
+    // Inside the spread the sample covered the plate before and after: unchanged. That hole is the sample's
+    // outline at the release; the ring (if seen) changed around it.
+    cv::Mat holes = late_outline & ~changed_late;
+    holes = largest_component(clean_mask(holes, 2));
+    if (cv::countNonZero(holes) < 0.01 * cv::countNonZero(late_outline) || cv::countNonZero(holes) < 20)
+      throw NotFoundInVideo(
+          "sample not found before the release: the whole spread differs from the frames before it (expected "
+          "the sample inside the ring to look the same before and after; did the camera or the lighting move?)");
+    // The outline at the release placed where the change reaches half its level just outside (the ring's
+    // inner edge, or the sample's own, through the blur), for the scale and the audit images.
+    const cv::Mat half_hole = [&] {
+      cv::Mat grown_hole, band;
+      cv::dilate(holes, grown_hole, disc_kernel(4));
+      band = grown_hole & ~holes;
+      std::vector<double> levels;
+      for (const cv::Point& p : mask_points(band, 5000)) levels.push_back(late_change.at<float>(p));
+      cv::Mat below = (late_change < 0.5 * quantile(levels, 0.9)) & grown_hole;
+      return fill_holes(components_touching(below, holes));
+    }();
+    const std::vector<cv::Point> initial = outer_contour(half_hole);
+    result.reference.initial_outline = initial;
+    if (s.scale == Scale::Ring) {
+      map = map_from_circle(half_hole, plate->ring_radius * 1000.0);
+      result.scale_source = fmt::format("ring, {:g} mm inner radius", plate->ring_radius * 1000.0);
+    } else {
+      const cv::Mat area_map = map.pixel_area_map(cv::Rect(cv::Point(0, 0), frame_size));
+      const double d0 = equivalent_diameter(cv::mean(area_map, half_hole)[0] * cv::countNonZero(half_hole));
+      const double ring_mm = 2000.0 * plate->ring_radius;
+      if (std::abs(d0 - ring_mm) > o.size_tolerance * ring_mm)
+        warnings.push_back(fmt::format("the sample's outline before the release is {:.1f} mm across, but [rig] "
+                                       "ring_radius gives {:.1f} mm: check the ring's size and the board's square",
+                                       d0, ring_mm));
+    }
+    const double hole_radius = std::sqrt(cv::countNonZero(holes) / std::numbers::pi);
+    cv::Mat hidden;
+    cv::dilate(holes, hidden, disc_kernel(hidden_margin(background, holes, roi, hole_radius, noise)));
+    reference = fill_in_plate(background, hidden, roi);
+    always_sample = holes(roi).clone();
+    const cv::Moments m = cv::moments(holes, true);
+    seed = cv::Point(static_cast<int>(m.m10 / m.m00) - roi.x, static_cast<int>(m.m01 / m.m00) - roi.y);
+    cv::Mat eroded;
+    cv::erode(changed_late, eroded, disc_kernel(3));
+    sample_interior = eroded & ~hidden;
+  } else {
+    // Channel: the change is the sample past the gate (and the gate itself). Its long axis is the channel's.
+    std::vector<cv::Point> points = mask_points(changed_late);
+    cv::Mat image_points(static_cast<int>(points.size()), 2, CV_64F);
+    for (std::size_t i = 0; i < points.size(); ++i) {
+      image_points.at<double>(static_cast<int>(i), 0) = points[i].x;
+      image_points.at<double>(static_cast<int>(i), 1) = points[i].y;
+    }
+    cv::PCA image_pca(image_points, cv::Mat(), cv::PCA::DATA_AS_ROW);
+    // Widths from the change's half level (the blurred edge's middle), not from the noise threshold.
+    const std::vector<cv::Point> half_points = [&] {
+      cv::Mat inner;
+      cv::erode(changed_late, inner, disc_kernel(3));
+      std::vector<double> levels;
+      for (const cv::Point& p : mask_points(inner, 5000)) levels.push_back(late_change.at<float>(p));
+      cv::Mat near;
+      cv::dilate(changed_late, near, disc_kernel(2));
+      return mask_points((late_change > 0.5 * quantile(levels, 0.5)) & near);
+    }();
+    if (s.scale == Scale::Channel) {
+      const cv::Vec2d a(image_pca.eigenvectors.at<double>(0, 0), image_pca.eigenvectors.at<double>(0, 1));
+      const cv::Vec2d n(-a[1], a[0]);
+      std::vector<cv::Vec2d> flat;
+      for (const cv::Point& p : half_points) flat.emplace_back(p.x, p.y);
+      const double width_px = middle_width(flat, a, n);
+      const double ppmm = width_px / (channel->width * 1000.0);
+      map.image_to_plane = cv::Matx33d(1 / ppmm, 0, 0, 0, 1 / ppmm, 0, 0, 0, 1);
+      result.scale_source = fmt::format("channel, {:g} mm wide", channel->width * 1000.0);
+    }
+    std::vector<cv::Point2d> plane = map.to_plane(points);
+    cv::Mat plane_points(static_cast<int>(plane.size()), 2, CV_64F);
+    for (std::size_t i = 0; i < plane.size(); ++i) {
+      plane_points.at<double>(static_cast<int>(i), 0) = plane[i].x;
+      plane_points.at<double>(static_cast<int>(i), 1) = plane[i].y;
+    }
+    cv::PCA pca(plane_points, cv::Mat(), cv::PCA::DATA_AS_ROW);
+    const cv::Vec2d centre(pca.mean.at<double>(0, 0), pca.mean.at<double>(0, 1));
+    cv::Vec2d axis(pca.eigenvectors.at<double>(0, 0), pca.eigenvectors.at<double>(0, 1));
+    const cv::Vec2d normal(-axis[1], axis[0]);
+    // Which way the sample flows: the end that moved between an earlier reading and the last one.
+    if (video.readings.size() < 2)
+      throw NotFoundInVideo("a channel needs at least two readings to tell which way the sample flows (expected "
+                            "a shorter interval, every, or more times)");
+    const Kept& earlier = video.readings[video.readings.size() >= 3 ? video.readings.size() / 2 : 0];
+    const cv::Rect all(cv::Point(0, 0), frame_size);
+    const cv::Vec3d late_gain_all = exposure_gain(late, background, late_dilated);
+    cv::Mat changed_earlier =
+        magnitude(difference(earlier.image, background, exposure_gain(earlier.image, background, cv::Mat()), all)) >
+        change_threshold;
+    changed_earlier = clean_mask(changed_earlier & late_outline, 2);
+    auto ends = [&](const cv::Mat& mask) {
+      std::vector<double> along;
+      for (const cv::Point2d& p : map.to_plane(mask_points(mask))) along.push_back(axis.dot(cv::Vec2d(p) - centre));
+      return std::pair{quantile(along, 0.001), quantile(along, 0.999)};
+    };
+    const auto [late_low, late_high] = ends(changed_late);
+    const auto [earlier_low, earlier_high] =
+        cv::countNonZero(changed_earlier) > 0 ? ends(changed_earlier) : std::pair{late_low, late_low};
+    double gate = late_low;
+    if (earlier_low - late_low > late_high - earlier_high) {  // it grew towards -axis
+      axis = -axis;
+      gate = -late_high;
+    }
+    std::vector<cv::Vec2d> flat;
+    for (const cv::Point2d& p : map.to_plane(half_points)) flat.emplace_back(cv::Vec2d(p) - centre);
+    double mid_across = 0;
+    channel_width_mm = middle_width(flat, axis, normal, &mid_across);
+    const double side_low = mid_across - 0.5 * channel_width_mm, side_high = mid_across + 0.5 * channel_width_mm;
+    const double width_rig = channel->width * 1000.0;
+    if (s.scale == Scale::Board && std::abs(channel_width_mm - width_rig) > o.size_tolerance * width_rig)
+      warnings.push_back(fmt::format("the sample fills {:.1f} mm of the channel's width, but [rig] width is {:.1f} "
+                                     "mm: check the channel's size and the board's square",
+                                     channel_width_mm, width_rig));
+    // Per ROI pixel: where it lies along the channel and across it [mm].
+    along_map = cv::Mat(roi.size(), CV_32F);
+    cv::Mat side_map(roi.size(), CV_32F);
+    for (int y = 0; y < roi.height; ++y)
+      for (int x = 0; x < roi.width; ++x) {
+        const cv::Vec2d p = cv::Vec2d(map.to_plane(cv::Point2d(roi.x + x, roi.y + y))) - centre;
+        along_map.at<float>(y, x) = static_cast<float>(axis.dot(p));
+        side_map.at<float>(y, x) = static_cast<float>(normal.dot(p));
+      }
+    const double mid_side = 0.5 * (side_low + side_high);
+    // Readings are taken along the middle 30% of the width: near the tip of a front that side-wall drag curves,
+    // and clear of the walls' shadows.
+    centre_band = (side_map >= mid_side - 0.15 * channel_width_mm) & (side_map <= mid_side + 0.15 * channel_width_mm);
+    profile_bin = 0.25 / map.pixels_per_mm(map.to_image(cv::Point2d(centre))) * 2;  // half a pixel [mm]
+    // The gate line: the first step up of the change between the still start and the last reading along the
+    // middle of the channel (the gate's footprint, or the sample block's face), placed where that step reaches
+    // half its height (1.5 mm on), to a fraction of a pixel.
+    {
+      const cv::Mat change = magnitude(difference(late, background, late_gain_all, roi));
+      const double from = gate - 4.0, to = gate + 8.0;
+      const std::vector<double> rise = profile(change, along_map, centre_band, from, to, profile_bin);
+      double plateau = 0;
+      for (double v : rise) plateau = std::max(plateau, v);
+      const double first_level = std::max(change_threshold, 0.25 * plateau);
+      std::size_t i0 = 0;
+      while (i0 < rise.size() && rise[i0] < first_level) ++i0;
+      if (i0 < rise.size()) {
+        const std::size_t reach = std::min(rise.size(), i0 + static_cast<std::size_t>(1.5 / profile_bin) + 1);
+        const double step = *std::max_element(rise.begin() + static_cast<std::ptrdiff_t>(i0),
+                                               rise.begin() + static_cast<std::ptrdiff_t>(reach));
+        std::size_t i = i0;
+        while (i > 0 && rise[i - 1] >= 0.5 * step) --i;
+        while (i < reach && rise[i] < 0.5 * step) ++i;
+        const double before = i > 0 ? rise[i - 1] : 0.0;
+        const double w = rise[i] > before ? (0.5 * step - before) / (rise[i] - before) : 0.0;
+        gate = from + (static_cast<double>(i) - 0.5 + w) * profile_bin;
+      }
+    }
+    along_map -= gate;
+    counted = (side_map >= side_low - 1.0) & (side_map <= side_high + 1.0) & (along_map > 0);
+    const double band = std::min(0.2 * channel_width_mm, 10.0);
+    gate_band = counted & (along_map <= band);
+    auto image_of = [&](double along, double side) {
+      return map.to_image(cv::Point2d(centre + axis * (along + gate) + normal * side));
+    };
+    result.reference.gate_a = image_of(0, side_low);
+    result.reference.gate_b = image_of(0, side_high);
+    result.reference.axis_end = image_of(late_high - late_low, mid_side);
+    const cv::Point2d gate_mid = image_of(0.5 * band, mid_side);
+    seed = cv::Point(static_cast<int>(gate_mid.x) - roi.x, static_cast<int>(gate_mid.y) - roi.y);
+    always_sample = cv::Mat::zeros(roi.size(), CV_8U);
+    cv::Mat eroded;
+    cv::erode(changed_late, eroded, disc_kernel(3));
+    sample_interior = cv::Mat::zeros(frame_size, CV_8U);
+    cv::Mat counted_far = counted.clone();
+    counted_far.setTo(0, gate_band);
+    const cv::Mat interior = eroded(roi) & counted_far;
+    interior.copyTo(sample_interior(roi));
+  }
+  const cv::Point2d centre_image(roi.x + seed.x, roi.y + seed.y);
+  result.pixels_per_mm = map.pixels_per_mm(centre_image);
+
+  // --- the sample's colour against the plate ------------------------------------------------------------------
+  const cv::Vec3d late_gain = exposure_gain(late, background, late_dilated);
+  int interior_count = 0;
+  cv::Vec3d contrast =
+      mean_difference(difference(late, reference, late_gain, roi), sample_interior(roi), &interior_count);
+  if (interior_count < 50 && plate) {  // hardly spread yet: the sample inside the ring against the plate's fill
+    cv::Mat inner;
+    cv::erode(always_sample, inner, disc_kernel(3));
+    contrast = mean_difference(difference(background, reference, cv::Vec3d(1, 1, 1), roi), inner, &interior_count);
+  }
+  result.contrast = cv::norm(contrast) / noise;
+
+  if (interior_count < 20 || result.contrast < o.no_contrast)
+    throw NotFoundInVideo(fmt::format("sample not found: it differs from the plate by {:.1f} times the noise only "
+                                      "(expected at least {:g}; light it evenly, or use a plate of another colour)",
+                                      result.contrast, o.no_contrast));
+  if (result.contrast < o.low_contrast)
+    warnings.push_back(fmt::format("low contrast: the sample differs from the plate by {:.1f} times the noise only "
+                                   "(readings are less sure; a plate of another colour or more even light helps)",
+                                   result.contrast));
+  const double glare = std::max(saturated_fraction(background, roi), saturated_fraction(late, roi));
+  if (glare > o.glare_fraction)
+    warnings.push_back(fmt::format("glare: {:.1f}% of the pixels around the sample are saturated white (light it "
+                                   "from the side or dim it; readings near the glare may be off)",
+                                   100 * glare));
+
+  // --- each reading -------------------------------------------------------------------------------------------
+  const cv::Mat area_map = map.pixel_area_map(roi);
+  const cv::Mat kernel = disc_kernel(1);
+  double worst_round = 0, worst_round_time = 0;
+  std::optional<double> edge_time;
+  for (const Kept& k : video.readings) {
+    const cv::Mat d = difference(k.image, reference, exposure_gain(k.image, background, late_dilated), roi);
+    const cv::Mat f = sample_fraction(d, contrast);
+    cv::Mat mask = f > 0.5;
+    if (channel) mask |= (magnitude(d) > 0.5 * cv::norm(contrast)) & gate_band;
+    mask |= always_sample;
+    mask = clean_mask(mask, 1);
+    mask |= always_sample;
+    cv::Mat seed_mask = cv::Mat::zeros(roi.size(), CV_8U);
+    if (plate)
+      seed_mask = always_sample;
+    else
+      seed_mask = gate_band;
+    mask = fill_holes(components_touching(mask, seed_mask));
+    if (channel) mask &= counted;
+    CapturedReading r;
+    r.video_time = k.time;
+    r.time = k.time - video.release;
+    r.frame = k.index;
+    r.outline = outer_contour(mask, roi.tl());
+    r.at_edge = touches_frame_edge(mask, roi, frame_size);
+    const double area = outline_area(mask, f, area_map, 2, counted);
+    if (plate) {
+      r.value = equivalent_diameter(area);
+      r.ellipticity = ellipticity(map.to_plane(r.outline));
+      if (r.ellipticity > worst_round) worst_round = r.ellipticity, worst_round_time = r.time;
+    } else {
+      r.value = front_from_profile(f, mask, along_map, centre_band, profile_bin);
+    }
+    if (r.at_edge) {
+      if (!edge_time) edge_time = r.time;
+      continue;
+    }
+    result.readings.push_back(std::move(r));
+    result.frames_measured.push_back(k.image);
+  }
+  if (edge_time)
+    warnings.push_back(fmt::format("the sample reached the frame's edge at {} after the release: readings from then "
+                                   "on are left out (keep the whole spread in view)",
+                                   seconds(*edge_time)));
+  if (result.readings.empty())
+    throw NotFoundInVideo("sample not found whole: it touches the frame's edge in every reading (expected the "
+                          "whole spread in view)");
+  if (plate && worst_round > o.round_tolerance)
+    warnings.push_back(fmt::format("the outline is not round: its axes differ by {:.0f}% at {} (was the ring lifted "
+                                   "unevenly, or the plate not level?)",
+                                   100 * worst_round, seconds(worst_round_time)));
+  return result;
+}
+
+}  // namespace spreadfit::capture

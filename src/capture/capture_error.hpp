@@ -1,0 +1,17 @@
+// What a video can fail to show: the board, the sample, the release. These are not bad input (the test
+// description and the video file are fine) but things not found in the video, so the command line maps them to
+// exit code 3 (interface.md, "Exit codes") with the one-line message, and no readings file is written.
+#pragma once
+
+#include <stdexcept>
+#include <string>
+
+namespace spreadfit::capture {
+
+/// Something the capture looked for and did not find in the video; what() is one line naming the video.
+class NotFoundInVideo : public std::runtime_error {
+ public:
+  using std::runtime_error::runtime_error;
+};
+
+}  // namespace spreadfit::capture

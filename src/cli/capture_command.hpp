@@ -1,0 +1,37 @@
+// `spreadfit capture`: readings from a video of the test (interface.md).
+//
+//   spreadfit capture TEST.toml [--video FILE] [--out FILE.csv] [--check DIR]
+//
+// Reads the test description's [rig] and [capture] tables (not its readings files: this command writes them),
+// captures the readings from the video (src/capture/capture.hpp) and writes the readings CSV that [readings]
+// file names, or --out:
+//
+//   # capture of TS12-0412 from 'TS12-0412.mp4': 1280x720, 1800 frames read, 30.00 frames/s (container timestamps; 30.00 announced)
+//   # release: 2.367 s into the video (detected: the first frame that moves)
+//   # scale: 4.21 px/mm at the sample (board 9x6, 10 mm squares, tilt corrected)
+//   # warning: ...                                   <- each warning, also printed on stderr
+//   time [s],diameter [mm]                           <- front [mm] on a channel
+//   1.001,95.32                                      <- the frame's own time since the release
+//
+// --video replaces [capture] video (a path from the working folder); --check DIR writes the audit images
+// (src/capture/audit_images.hpp). A summary line goes to `out`, warnings to `err`.
+// Bad input throws io::InputError (exit 2); what the video does not show throws capture::NotFoundInVideo
+// (exit 3). Either way no readings file is written.
+#pragma once
+
+#include <filesystem>
+#include <optional>
+#include <ostream>
+
+namespace spreadfit::cli {
+
+struct CaptureCommandOptions {
+  std::filesystem::path test;                  ///< test description (TOML)
+  std::optional<std::filesystem::path> video;  ///< --video
+  std::optional<std::filesystem::path> out;    ///< --out
+  std::optional<std::filesystem::path> check;  ///< --check
+};
+
+int run_capture_command(const CaptureCommandOptions& options, std::ostream& out, std::ostream& err);
+
+}  // namespace spreadfit::cli
