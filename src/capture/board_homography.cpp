@@ -91,9 +91,9 @@ std::optional<BoardDetection> find_board(const cv::Mat& gray, int columns, int r
   }
   out.rms_mm = std::sqrt(sum / static_cast<double>(board.size()));
   // The outer squares lie one square beyond the inner corners: are they inside the frame, with a pixel to spare?
-  for (const cv::Point2d q : {cv::Point2d(-square_mm, -square_mm), cv::Point2d(columns * square_mm, -square_mm),
-                              cv::Point2d(-square_mm, rows * square_mm),
-                              cv::Point2d(columns * square_mm, rows * square_mm)}) {
+  for (const cv::Point2d q :
+       {cv::Point2d(-square_mm, -square_mm), cv::Point2d(columns * square_mm, -square_mm),
+        cv::Point2d(-square_mm, rows * square_mm), cv::Point2d(columns * square_mm, rows * square_mm)}) {
     const cv::Point2d p = out.map.to_image(q);
     if (p.x < 1 || p.y < 1 || p.x > gray.cols - 2 || p.y > gray.rows - 2) out.near_frame_edge = true;
   }

@@ -70,7 +70,7 @@ Decoded decode(const io::CaptureSettings& s, const CaptureOptions& o) {
     return static_cast<double>(k + 1) * s.every;
   };
   double interval = video.nominal_rate() > 0 ? 1.0 / video.nominal_rate() : 1.0 / 30.0;
-  std::size_t step = 1;  // every step-th frame before the release is a still candidate
+  std::size_t step = 1;     // every step-th frame before the release is a still candidate
   std::deque<Kept> recent;  // auto release: the frames the detector saw after the release
   // Takes a frame for the readings when it is the first at (or within half a frame before) the next time.
   auto wanted = [&](double t) {
@@ -79,9 +79,10 @@ Decoded decode(const io::CaptureSettings& s, const CaptureOptions& o) {
   };
   auto take = [&](Kept k) {
     if (static_cast<int>(out.readings.size()) >= o.max_readings)
-      throw std::invalid_argument(fmt::format("capture: more than {} readings asked for (expected a longer "
-                                              "interval, every, or fewer times)",
-                                              o.max_readings));
+      throw std::invalid_argument(
+          fmt::format("capture: more than {} readings asked for (expected a longer "
+                      "interval, every, or fewer times)",
+                      o.max_readings));
     while (wanted(k.time)) ++next;  // one frame serves all the times it is nearest to
     out.readings.push_back(std::move(k));
   };
@@ -145,8 +146,8 @@ Decoded decode(const io::CaptureSettings& s, const CaptureOptions& o) {
           "the ring or gate moves; or give the time, such as release = \"2.4 s\", in [capture])");
   } else {
     if (*release > out.times.back())
-      throw std::invalid_argument(fmt::format("capture.release: {} is after the video's end ({})",
-                                              seconds(*release), seconds(out.times.back())));
+      throw std::invalid_argument(fmt::format("capture.release: {} is after the video's end ({})", seconds(*release),
+                                              seconds(out.times.back())));
     std::erase_if(out.stills, [&](const Kept& k) { return k.time >= *release - 1.5 * interval; });
     if (out.stills.empty())
       throw std::invalid_argument(fmt::format(
@@ -156,9 +157,10 @@ Decoded decode(const io::CaptureSettings& s, const CaptureOptions& o) {
   }
   if (!s.times.empty()) out.targets_missed = s.times.size() - std::min(next, s.times.size());
   if (out.readings.empty())
-    throw NotFoundInVideo(fmt::format("no reading: the video ends {} after the release, before the first reading "
-                                      "time ({})",
-                                      seconds(out.times.back() - out.release), seconds(*target(0))));
+    throw NotFoundInVideo(
+        fmt::format("no reading: the video ends {} after the release, before the first reading "
+                    "time ({})",
+                    seconds(out.times.back() - out.release), seconds(*target(0))));
   return out;
 }
 
@@ -329,13 +331,13 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
   if (!video.from_container)
     warnings.push_back("the video carries no usable frame timestamps: times come from its nominal frame rate");
   if (result.timing.dropped > 0)
-    warnings.push_back(fmt::format("frames dropped: about {} missing (gaps up to {:.0f} ms between frames, {:.0f} ms "
-                                   "usual); readings keep their true times",
-                                   result.timing.dropped, 1000 * result.timing.longest_gap,
-                                   1000 * result.timing.median_interval));
+    warnings.push_back(
+        fmt::format("frames dropped: about {} missing (gaps up to {:.0f} ms between frames, {:.0f} ms "
+                    "usual); readings keep their true times",
+                    result.timing.dropped, 1000 * result.timing.longest_gap, 1000 * result.timing.median_interval));
   if (video.targets_missed > 0)
-    warnings.push_back(fmt::format("{} of the reading times lie after the video's end and are left out",
-                                   video.targets_missed));
+    warnings.push_back(
+        fmt::format("{} of the reading times lie after the video's end and are left out", video.targets_missed));
 
   // --- the plate's look before the release --------------------------------------------------------------------
   std::vector<cv::Mat> stills;
@@ -368,25 +370,28 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
     result.reference.board_corners = board->corners;
     result.scale_source = fmt::format("board {}, {:g} mm squares, tilt corrected", size, square_mm);
     if (board->near_frame_edge)
-      warnings.push_back("the board is only partly seen: its outer squares reach the frame's edge (the scale holds "
-                         "while its inner corners are found, but keep it whole in view)");
+      warnings.push_back(
+          "the board is only partly seen: its outer squares reach the frame's edge (the scale holds "
+          "while its inner corners are found, but keep it whole in view)");
     if (board->rms_mm > 0.1 * square_mm)
-      warnings.push_back(fmt::format("the board's corners stray {:.2f} mm from a flat board: is it lying flat, and "
-                                     "is the lens strongly distorting?",
-                                     board->rms_mm));
+      warnings.push_back(
+          fmt::format("the board's corners stray {:.2f} mm from a flat board: is it lying flat, and "
+                      "is the lens strongly distorting?",
+                      board->rms_mm));
   }
 
   // --- where the sample is: what the last reading frame changed -----------------------------------------------
   const cv::Mat& late = video.readings.back().image;
   const double change_threshold = std::max(5.0 * noise * std::sqrt(3.0), 10.0);
-  const cv::Mat late_change = magnitude(difference(late, background, exposure_gain(late, background, cv::Mat()),
-                                                    cv::Rect(cv::Point(0, 0), frame_size)));
+  const cv::Mat late_change = magnitude(
+      difference(late, background, exposure_gain(late, background, cv::Mat()), cv::Rect(cv::Point(0, 0), frame_size)));
   const cv::Mat changed_late = largest_component(clean_mask(late_change > change_threshold, 2));
   if (cv::countNonZero(changed_late) < 30)
-    throw NotFoundInVideo(fmt::format("sample not found: the frame at {} after the release looks like the frames "
-                                      "before it (expected the sample to spread, and to differ from the plate "
-                                      "in colour or brightness)",
-                                      seconds(video.readings.back().time - video.release)));
+    throw NotFoundInVideo(
+        fmt::format("sample not found: the frame at {} after the release looks like the frames "
+                    "before it (expected the sample to spread, and to differ from the plate "
+                    "in colour or brightness)",
+                    seconds(video.readings.back().time - video.release)));
   const cv::Mat late_outline = fill_holes(changed_late);
   const cv::Rect roi = grown(cv::boundingRect(late_outline), 0.15, 12, frame_size);
   const cv::Mat late_dilated = [&] {
@@ -435,9 +440,10 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
       const double d0 = equivalent_diameter(cv::mean(area_map, half_hole)[0] * cv::countNonZero(half_hole));
       const double ring_mm = 2000.0 * plate->ring_radius;
       if (std::abs(d0 - ring_mm) > o.size_tolerance * ring_mm)
-        warnings.push_back(fmt::format("the sample's outline before the release is {:.1f} mm across, but [rig] "
-                                       "ring_radius gives {:.1f} mm: check the ring's size and the board's square",
-                                       d0, ring_mm));
+        warnings.push_back(
+            fmt::format("the sample's outline before the release is {:.1f} mm across, but [rig] "
+                        "ring_radius gives {:.1f} mm: check the ring's size and the board's square",
+                        d0, ring_mm));
     }
     const double hole_radius = std::sqrt(cv::countNonZero(holes) / std::numbers::pi);
     cv::Mat hidden;
@@ -490,8 +496,9 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
     const cv::Vec2d normal(-axis[1], axis[0]);
     // Which way the sample flows: the end that moved between an earlier reading and the last one.
     if (video.readings.size() < 2)
-      throw NotFoundInVideo("a channel needs at least two readings to tell which way the sample flows (expected "
-                            "a shorter interval, every, or more times)");
+      throw NotFoundInVideo(
+          "a channel needs at least two readings to tell which way the sample flows (expected "
+          "a shorter interval, every, or more times)");
     const Kept& earlier = video.readings[video.readings.size() >= 3 ? video.readings.size() / 2 : 0];
     const cv::Rect all(cv::Point(0, 0), frame_size);
     const cv::Vec3d late_gain_all = exposure_gain(late, background, late_dilated);
@@ -519,9 +526,10 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
     const double side_low = mid_across - 0.5 * channel_width_mm, side_high = mid_across + 0.5 * channel_width_mm;
     const double width_rig = channel->width * 1000.0;
     if (s.scale == Scale::Board && std::abs(channel_width_mm - width_rig) > o.size_tolerance * width_rig)
-      warnings.push_back(fmt::format("the sample fills {:.1f} mm of the channel's width, but [rig] width is {:.1f} "
-                                     "mm: check the channel's size and the board's square",
-                                     channel_width_mm, width_rig));
+      warnings.push_back(
+          fmt::format("the sample fills {:.1f} mm of the channel's width, but [rig] width is {:.1f} "
+                      "mm: check the channel's size and the board's square",
+                      channel_width_mm, width_rig));
     // Per ROI pixel: where it lies along the channel and across it [mm].
     along_map = cv::Mat(roi.size(), CV_32F);
     cv::Mat side_map(roi.size(), CV_32F);
@@ -551,7 +559,7 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
       if (i0 < rise.size()) {
         const std::size_t reach = std::min(rise.size(), i0 + static_cast<std::size_t>(1.5 / profile_bin) + 1);
         const double step = *std::max_element(rise.begin() + static_cast<std::ptrdiff_t>(i0),
-                                               rise.begin() + static_cast<std::ptrdiff_t>(reach));
+                                              rise.begin() + static_cast<std::ptrdiff_t>(reach));
         std::size_t i = i0;
         while (i > 0 && rise[i - 1] >= 0.5 * step) --i;
         while (i < reach && rise[i] < 0.5 * step) ++i;
@@ -597,18 +605,21 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
   result.contrast = cv::norm(contrast) / noise;
 
   if (interior_count < 20 || result.contrast < o.no_contrast)
-    throw NotFoundInVideo(fmt::format("sample not found: it differs from the plate by {:.1f} times the noise only "
-                                      "(expected at least {:g}; light it evenly, or use a plate of another colour)",
-                                      result.contrast, o.no_contrast));
+    throw NotFoundInVideo(
+        fmt::format("sample not found: it differs from the plate by {:.1f} times the noise only "
+                    "(expected at least {:g}; light it evenly, or use a plate of another colour)",
+                    result.contrast, o.no_contrast));
   if (result.contrast < o.low_contrast)
-    warnings.push_back(fmt::format("low contrast: the sample differs from the plate by {:.1f} times the noise only "
-                                   "(readings are less sure; a plate of another colour or more even light helps)",
-                                   result.contrast));
+    warnings.push_back(
+        fmt::format("low contrast: the sample differs from the plate by {:.1f} times the noise only "
+                    "(readings are less sure; a plate of another colour or more even light helps)",
+                    result.contrast));
   const double glare = std::max(saturated_fraction(background, roi), saturated_fraction(late, roi));
   if (glare > o.glare_fraction)
-    warnings.push_back(fmt::format("glare: {:.1f}% of the pixels around the sample are saturated white (light it "
-                                   "from the side or dim it; readings near the glare may be off)",
-                                   100 * glare));
+    warnings.push_back(
+        fmt::format("glare: {:.1f}% of the pixels around the sample are saturated white (light it "
+                    "from the side or dim it; readings near the glare may be off)",
+                    100 * glare));
 
   // --- each reading -------------------------------------------------------------------------------------------
   const cv::Mat area_map = map.pixel_area_map(roi);
@@ -652,16 +663,19 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
     result.frames_measured.push_back(k.image);
   }
   if (edge_time)
-    warnings.push_back(fmt::format("the sample reached the frame's edge at {} after the release: readings from then "
-                                   "on are left out (keep the whole spread in view)",
-                                   seconds(*edge_time)));
+    warnings.push_back(
+        fmt::format("the sample reached the frame's edge at {} after the release: readings from then "
+                    "on are left out (keep the whole spread in view)",
+                    seconds(*edge_time)));
   if (result.readings.empty())
-    throw NotFoundInVideo("sample not found whole: it touches the frame's edge in every reading (expected the "
-                          "whole spread in view)");
+    throw NotFoundInVideo(
+        "sample not found whole: it touches the frame's edge in every reading (expected the "
+        "whole spread in view)");
   if (plate && worst_round > o.round_tolerance)
-    warnings.push_back(fmt::format("the outline is not round: its axes differ by {:.0f}% at {} (was the ring lifted "
-                                   "unevenly, or the plate not level?)",
-                                   100 * worst_round, seconds(worst_round_time)));
+    warnings.push_back(
+        fmt::format("the outline is not round: its axes differ by {:.0f}% at {} (was the ring lifted "
+                    "unevenly, or the plate not level?)",
+                    100 * worst_round, seconds(worst_round_time)));
   return result;
 }
 

@@ -13,22 +13,22 @@
 // sec. 9.3).
 #pragma once
 
-#include <opencv2/core.hpp>
 #include <deque>
+#include <opencv2/core.hpp>
 #include <optional>
 #include <vector>
 
 namespace spreadfit::capture {
 
 struct ReleaseOptions {
-  int lag = 8;                  ///< frames between the two compared; the video must start still for longer
-  double noise_factor = 5.0;    ///< a pixel has changed beyond this many noise standard deviations
-  double noise_floor = 4.0;     ///< [grey levels] least change counted (codecs keep some artefacts moving)
-  double trigger = 0.01;        ///< changed fraction that marks motion (1% of the frame; a codec key frame can
-                                ///< change 0.5%), at least
+  int lag = 8;                    ///< frames between the two compared; the video must start still for longer
+  double noise_factor = 5.0;      ///< a pixel has changed beyond this many noise standard deviations
+  double noise_floor = 4.0;       ///< [grey levels] least change counted (codecs keep some artefacts moving)
+  double trigger = 0.01;          ///< changed fraction that marks motion (1% of the frame; a codec key frame can
+                                  ///< change 0.5%), at least
   double trigger_over_still = 4;  ///< ... and this many times the still start's median fraction
-  int persistence = 3;          ///< frames in a row above the trigger (a single flicker is no release)
-  int width = 320;              ///< [px] width of the small images compared
+  int persistence = 3;            ///< frames in a row above the trigger (a single flicker is no release)
+  int width = 320;                ///< [px] width of the small images compared
 };
 
 /// Online release detector: feed every frame from the first; once `found()`, `release_index()` is the first

@@ -61,8 +61,8 @@ bool VideoReader::grab() {
     ++stamped_;
   } else {
     ++unstamped_;
-    const double interval = stamped_ > 0 ? (last_ms_ - first_ms_) / 1000.0 / stamped_
-                                         : 1.0 / (nominal_rate_ > 0 ? nominal_rate_ : 30.0);
+    const double interval =
+        stamped_ > 0 ? (last_ms_ - first_ms_) / 1000.0 / stamped_ : 1.0 / (nominal_rate_ > 0 ? nominal_rate_ : 30.0);
     time_ += interval;
   }
   return true;

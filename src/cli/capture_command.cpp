@@ -20,11 +20,11 @@ namespace {
 
 std::string csv_text(const io::TestDescription& test, const io::CaptureSettings& settings,
                      const capture::CaptureResult& r) {
-  std::string text = fmt::format(
-      "# capture of {} from '{}': {}x{}, {} frames read, {:.2f} frames/s ({})\n", test.sample_id, settings.video_as_written,
-      r.width, r.height, r.frames, r.frame_rate,
-      r.timestamps_from_container ? fmt::format("container timestamps; {:.2f} announced", r.nominal_rate)
-                                  : std::string("nominal rate: no timestamps in the video"));
+  std::string text =
+      fmt::format("# capture of {} from '{}': {}x{}, {} frames read, {:.2f} frames/s ({})\n", test.sample_id,
+                  settings.video_as_written, r.width, r.height, r.frames, r.frame_rate,
+                  r.timestamps_from_container ? fmt::format("container timestamps; {:.2f} announced", r.nominal_rate)
+                                              : std::string("nominal rate: no timestamps in the video"));
   text += fmt::format("# release: {:.3f} s into the video ({})\n", r.release_time,
                       r.release_detected ? "detected: the first frame that moves" : "as [capture] release gives");
   text += fmt::format("# scale: {:.3f} px/mm at the sample ({})\n", r.pixels_per_mm, r.scale_source);
@@ -64,9 +64,9 @@ int run_capture_command(const CaptureCommandOptions& options, std::ostream& out,
     if (!std::filesystem::is_regular_file(settings.video, ec))
       throw io::InputError("command line", 0, "--video", "video '" + settings.video_as_written + "' not found");
   } else if (!std::filesystem::is_regular_file(settings.video, ec)) {
-    throw io::InputError(toml, settings.video_line, "capture.video",
-                         "video '" + settings.video_as_written + "' not found (looked for '" + settings.video.string() +
-                             "')");
+    throw io::InputError(
+        toml, settings.video_line, "capture.video",
+        "video '" + settings.video_as_written + "' not found (looked for '" + settings.video.string() + "')");
   }
 
   capture::CaptureResult result;
@@ -78,11 +78,9 @@ int run_capture_command(const CaptureCommandOptions& options, std::ostream& out,
     const std::string message = e.what();
     const auto colon = message.find(": ");
     const bool field = message.rfind("capture", 0) == 0 && colon != std::string::npos;
-    throw io::InputError(toml, 0, field ? message.substr(0, colon) : "",
-                         field ? message.substr(colon + 2) : message);
+    throw io::InputError(toml, 0, field ? message.substr(0, colon) : "", field ? message.substr(colon + 2) : message);
   } catch (const std::runtime_error& e) {  // the video reader: the file is no video it can decode
-    throw io::InputError(toml, settings.video_line, "capture.video",
-                         "'" + settings.video_as_written + "' " + e.what());
+    throw io::InputError(toml, settings.video_line, "capture.video", "'" + settings.video_as_written + "' " + e.what());
   }
 
   if (options.check)

@@ -6,12 +6,12 @@
 // captures the readings from the video (src/capture/capture.hpp) and writes the readings CSV that [readings]
 // file names, or --out:
 //
-//   # capture of TS12-0412 from 'TS12-0412.mp4': 1280x720, 1800 frames read, 30.00 frames/s (container timestamps; 30.00 announced)
+//   # capture of TS12-0412 from 'TS12-0412.mp4': 1280x720, 1800 frames read, 30.00 frames/s (...)
 //   # release: 2.367 s into the video (detected: the first frame that moves)
-//   # scale: 4.21 px/mm at the sample (board 9x6, 10 mm squares, tilt corrected)
-//   # warning: ...                                   <- each warning, also printed on stderr
-//   time [s],diameter [mm]                           <- front [mm] on a channel
-//   1.001,95.32                                      <- the frame's own time since the release
+//   # scale: 4.210 px/mm at the sample (board 9x6, 10 mm squares, tilt corrected)
+//   # warning: ...                 <- each warning, also printed on stderr
+//   time [s],diameter [mm]         <- front [mm] on a channel
+//   1.001,95.32                    <- the frame's own time since the release
 //
 // --video replaces [capture] video (a path from the working folder); --check DIR writes the audit images
 // (src/capture/audit_images.hpp). A summary line goes to `out`, warnings to `err`.

@@ -26,14 +26,14 @@ namespace spreadfit::capture::test {
 struct SceneOptions {
   int width = 640, height = 480;  ///< video frame [px]
   double fps = 30;
-  double duration = 6;         ///< [s]
-  double release = 1.01;       ///< [s] video time of the release (between two frames)
-  bool channel = false;        ///< channel scene instead of a plate
-  double tilt_deg = 12;        ///< camera tilt about the image's x axis
-  double roll_deg = 8;         ///< camera turn about its optical axis
-  double view_mm = 250;        ///< plane width seen at the image's centre row
-  double noise = 3;            ///< [grey levels] sensor noise standard deviation
-  double blur = 0.8;           ///< [px] Gaussian blur standard deviation (focus)
+  double duration = 6;            ///< [s]
+  double release = 1.01;          ///< [s] video time of the release (between two frames)
+  bool channel = false;           ///< channel scene instead of a plate
+  double tilt_deg = 12;           ///< camera tilt about the image's x axis
+  double roll_deg = 8;            ///< camera turn about its optical axis
+  double view_mm = 250;           ///< plane width seen at the image's centre row
+  double noise = 3;               ///< [grey levels] sensor noise standard deviation
+  double blur = 0.8;              ///< [px] Gaussian blur standard deviation (focus)
   bool lighting_gradient = true;  ///< light falls off across the frame (factor 0.7 to 1.1)
   double exposure_drift = 0.03;   ///< relative exposure swing over the video
   bool board = true;
@@ -44,18 +44,18 @@ struct SceneOptions {
   bool gate = true;            ///< channel: a dark gate in front of the sample before the release, lifted away
   double ring_radius_mm = 30;  ///< plate: the sample's radius at the release
   double ring_wall_mm = 3;
-  double stretch = 1.0;        ///< plate: the outline's x axis times this (an uneven spread), area kept
+  double stretch = 1.0;  ///< plate: the outline's x axis times this (an uneven spread), area kept
   cv::Point2d sample_centre_mm{20, 0};
   double channel_width_mm = 50, reservoir_mm = 50;  ///< channel
-  cv::Vec3d plate_bgr{215, 222, 225};   ///< plate (or channel floor) colour
-  cv::Vec3d sample_bgr{40, 70, 185};    ///< sauce
+  cv::Vec3d plate_bgr{215, 222, 225};               ///< plate (or channel floor) colour
+  cv::Vec3d sample_bgr{40, 70, 185};                ///< sauce
   cv::Vec3d ring_bgr{70, 70, 75};
-  double glare = 0;            ///< peak extra brightness of a glare spot on the sample (grey levels)
-  std::string fourcc = "avc1"; ///< avc1 (H.264) | mp4v | MJPG
+  double glare = 0;             ///< peak extra brightness of a glare spot on the sample (grey levels)
+  std::string fourcc = "avc1";  ///< avc1 (H.264) | mp4v | MJPG
   int seed = 7;
   std::vector<double> frame_times;  ///< [s] each frame's content time when not empty (a variable rate; the file
                                     ///< itself is written at `fps`: retime it, vfr_remux.hpp, to match)
-  bool supersample = true;     ///< render at twice the size and area-average down (false: faster, for the bench)
+  bool supersample = true;          ///< render at twice the size and area-average down (false: faster, for the bench)
   /// Diameter (plate) or front past the gate (channel) [mm] at a time since the release [s], t >= 0.
   std::function<double(double)> spread;
 };
@@ -118,7 +118,7 @@ inline std::vector<double> render_video(const std::filesystem::path& file, const
   cv::RNG rng(static_cast<uint64_t>(o.seed));
   std::vector<double> times;
   const int frames = o.frame_times.empty() ? static_cast<int>(std::lround(o.duration * o.fps))
-                                          : static_cast<int>(o.frame_times.size());
+                                           : static_cast<int>(o.frame_times.size());
   const double w = o.channel_width_mm;
   const double x_gate = o.sample_centre_mm.x - 80 + o.reservoir_mm;
   for (int i = 0; i < frames; ++i) {
@@ -132,7 +132,8 @@ inline std::vector<double> render_video(const std::filesystem::path& file, const
       // Disc of the diameter `value`, stretched along x by `stretch` and squeezed along y (same area).
       const double r = value / 2, sx = o.stretch, sy = 1 / o.stretch;
       const cv::Point2d c = o.sample_centre_mm;
-      const cv::Point2d lo = tex(c - cv::Point2d(r * sx + 2, r * sy + 2)), hi = tex(c + cv::Point2d(r * sx + 2, r * sy + 2));
+      const cv::Point2d lo = tex(c - cv::Point2d(r * sx + 2, r * sy + 2)),
+                        hi = tex(c + cv::Point2d(r * sx + 2, r * sy + 2));
       for (int y = std::max(0, int(lo.y)); y < std::min(tex_size.height, int(hi.y) + 1); ++y)
         for (int x = std::max(0, int(lo.x)); x < std::min(tex_size.width, int(hi.x) + 1); ++x) {
           const double mx = (x + 0.5) / ppmm + extent.x - c.x, my = (y + 0.5) / ppmm + extent.y - c.y;
@@ -154,12 +155,13 @@ inline std::vector<double> render_video(const std::filesystem::path& file, const
         const cv::Point2d rc = c + cv::Point2d(0, since > 0 ? -300 * since : 0);
         const double inner = o.ring_radius_mm, outer = o.ring_radius_mm + o.ring_wall_mm;
         const cv::Vec3f ring(float(o.ring_bgr[0]), float(o.ring_bgr[1]), float(o.ring_bgr[2]));
-        const cv::Point2d rlo = tex(rc - cv::Point2d(outer + 1, outer + 1)), rhi = tex(rc + cv::Point2d(outer + 1, outer + 1));
+        const cv::Point2d rlo = tex(rc - cv::Point2d(outer + 1, outer + 1)),
+                          rhi = tex(rc + cv::Point2d(outer + 1, outer + 1));
         for (int y = std::max(0, int(rlo.y)); y < std::min(tex_size.height, int(rhi.y) + 1); ++y)
           for (int x = std::max(0, int(rlo.x)); x < std::min(tex_size.width, int(rhi.x) + 1); ++x) {
             const double d = std::hypot((x + 0.5) / ppmm + extent.x - rc.x, (y + 0.5) / ppmm + extent.y - rc.y);
-            const double cover = std::clamp((d - inner) * ppmm + 0.5, 0.0, 1.0) *
-                                 std::clamp((outer - d) * ppmm + 0.5, 0.0, 1.0);
+            const double cover =
+                std::clamp((d - inner) * ppmm + 0.5, 0.0, 1.0) * std::clamp((outer - d) * ppmm + 0.5, 0.0, 1.0);
             if (cover <= 0) continue;
             cv::Vec3f& p = plane.at<cv::Vec3f>(y, x);
             p = p * float(1 - cover) + ring * float(cover);
@@ -180,7 +182,7 @@ inline std::vector<double> render_video(const std::filesystem::path& file, const
       const double lift = since > 0 ? 300 * since : 0;
       if (o.gate)
         cv::rectangle(plane, tex({x_gate, -w / 2 - 12 - lift}), tex({x_gate + 3, w / 2 + 12 - lift}),
-                    cv::Scalar(o.ring_bgr[0], o.ring_bgr[1], o.ring_bgr[2]), cv::FILLED);
+                      cv::Scalar(o.ring_bgr[0], o.ring_bgr[1], o.ring_bgr[2]), cv::FILLED);
     }
     cv::Mat big, frame;
     const int sw = static_cast<int>(ss) * o.width, sh = static_cast<int>(ss) * o.height;

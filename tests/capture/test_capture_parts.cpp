@@ -59,13 +59,15 @@ TEST_CASE("capture: the board's homography measures the plane as the pinhole cam
         const cv::Point2d pixel = apply(camera, a);
         const cv::Matx33d inverse = camera.inv();
         const double eps = 0.5;
-        const cv::Point2d dx = (apply(inverse, pixel + cv::Point2d(eps, 0)) - apply(inverse, pixel - cv::Point2d(eps, 0))) / (2 * eps);
-        const cv::Point2d dy = (apply(inverse, pixel + cv::Point2d(0, eps)) - apply(inverse, pixel - cv::Point2d(0, eps))) / (2 * eps);
+        const cv::Point2d dx =
+            (apply(inverse, pixel + cv::Point2d(eps, 0)) - apply(inverse, pixel - cv::Point2d(eps, 0))) / (2 * eps);
+        const cv::Point2d dy =
+            (apply(inverse, pixel + cv::Point2d(0, eps)) - apply(inverse, pixel - cv::Point2d(0, eps))) / (2 * eps);
         const double true_area = std::abs(dx.x * dy.y - dx.y * dy.x);
         worst_area = std::max(worst_area, std::abs(board->map.pixel_area(pixel) / true_area - 1));
       }
     MESSAGE("worst length error " << worst_length << " mm over 40 mm; worst pixel-area error " << worst_area
-                               << "; corner RMS " << board->rms_mm << " mm");
+                                  << "; corner RMS " << board->rms_mm << " mm");
     // Tolerances: a tenth of a pixel on the corners is about 0.04 mm here; over the view, a little more.
     CHECK(worst_length <= 0.15);
     CHECK(worst_area <= 0.01);

@@ -19,7 +19,8 @@ namespace spreadfit::capture::test {
 inline void retime_video(const std::filesystem::path& in, const std::filesystem::path& out,
                          const std::vector<double>& times) {
   AVFormatContext* input = nullptr;
-  if (avformat_open_input(&input, in.c_str(), nullptr, nullptr) < 0) throw std::runtime_error("cannot open " + in.string());
+  if (avformat_open_input(&input, in.c_str(), nullptr, nullptr) < 0)
+    throw std::runtime_error("cannot open " + in.string());
   auto close_input = [&] { avformat_close_input(&input); };
   if (avformat_find_stream_info(input, nullptr) < 0 || input->nb_streams < 1) {
     close_input();

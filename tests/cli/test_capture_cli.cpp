@@ -1,9 +1,9 @@
 // `spreadfit capture` end to end: videos rendered here from a known curve (tests/capture/synthetic_video.hpp),
 // captured by the binary, and the readings fitted; every bad input and every thing a video can fail to show.
 #include <doctest/doctest.h>
+#include <fmt/format.h>
 
 #include <cmath>
-#include <fmt/format.h>
 #include <nlohmann/json.hpp>
 #include <string>
 
@@ -84,8 +84,8 @@ TEST_CASE("capture cli: video -> capture -> fit recovers the material the video 
   o.release = 1.03;
   ct::render_video(dir.path() / "plate.mp4", o);
   const auto test = dir.write("CAP-1.toml", plate_toml(kBoard));
-  const Run captured = run_spreadfit(dir, "capture " + quoted(test.string()) + " --check " +
-                                              quoted((dir.path() / "check").string()));
+  const Run captured =
+      run_spreadfit(dir, "capture " + quoted(test.string()) + " --check " + quoted((dir.path() / "check").string()));
   INFO(captured.err);
   REQUIRE(captured.exit_code == 0);
   const std::string csv = read_text(dir.path() / "CAP-1.csv");
@@ -131,8 +131,8 @@ TEST_CASE("capture cli: video -> capture -> fit recovers the material the video 
   };
   const auto from_video = fit(test, "video");
   const auto from_truth = fit(true_test, "truth");
-  for (const auto& [name, value] : {std::pair{"yield_stress", truth_material.yield_stress},
-                                    std::pair{"viscosity", truth_material.consistency}}) {
+  for (const auto& [name, value] :
+       {std::pair{"yield_stress", truth_material.yield_stress}, std::pair{"viscosity", truth_material.consistency}}) {
     const auto& v = from_video["parameters"][name];
     const auto& t = from_truth["parameters"][name];
     MESSAGE(std::string(name) << ": video " << v.dump() << ", true readings " << t.dump());
@@ -150,8 +150,8 @@ TEST_CASE("capture cli: video -> capture -> fit recovers the material the video 
 TEST_CASE("capture cli: every bad input is one line, exit 2, and no readings file") {
   TempDir dir;
   SUBCASE("a missing video") {
-    const Captured c = capture_with(dir, plate_toml("video = \"nothere.mp4\"\nboard = \"9x6\"\nsquare = \"8 mm\"\n"),
-                                    nullptr);
+    const Captured c =
+        capture_with(dir, plate_toml("video = \"nothere.mp4\"\nboard = \"9x6\"\nsquare = \"8 mm\"\n"), nullptr);
     CHECK(c.run.exit_code == 2);
     CHECK(c.run.err.find("CAP-1.toml:14: capture.video: video 'nothere.mp4' not found") != std::string::npos);
     CHECK(!c.csv_written);
@@ -173,11 +173,10 @@ TEST_CASE("capture cli: every bad input is one line, exit 2, and no readings fil
   SUBCASE("a mistyped scale, board size and release") {
     const Captured scale = capture_with(dir, plate_toml("video = \"plate.mp4\"\nscale = \"borad\"\n"), nullptr);
     CHECK(scale.run.err.find("capture.scale: unknown scale 'borad'; did you mean 'board'?") != std::string::npos);
-    const Captured board = capture_with(dir, plate_toml("video = \"plate.mp4\"\nboard = \"9 by 6\"\nsquare = \"8 mm\"\n"),
-                                        nullptr);
+    const Captured board =
+        capture_with(dir, plate_toml("video = \"plate.mp4\"\nboard = \"9 by 6\"\nsquare = \"8 mm\"\n"), nullptr);
     CHECK(board.run.err.find("capture.board: '9 by 6' is not a board size") != std::string::npos);
-    const Captured release =
-        capture_with(dir, plate_toml(std::string(kBoard) + "release = \"atuo\"\n"), nullptr);
+    const Captured release = capture_with(dir, plate_toml(std::string(kBoard) + "release = \"atuo\"\n"), nullptr);
     CHECK(release.run.err.find("capture.release: unknown release 'atuo'; did you mean 'auto'?") != std::string::npos);
     for (const Captured* c : {&scale, &board, &release}) {
       CHECK(c->run.exit_code == 2);
@@ -188,8 +187,8 @@ TEST_CASE("capture cli: every bad input is one line, exit 2, and no readings fil
     const Captured c = capture_with(dir, plate_toml("video = \"plate.mp4\"\nscale = \"channel\"\n"), nullptr);
     CHECK(c.run.exit_code == 2);
     CHECK(c.run.err.find("scale = 'channel' needs a channel rig") != std::string::npos);
-    const Captured both = capture_with(dir, plate_toml(std::string(kBoard) + "every = \"1 s\"\ntimes = [1, 2]\n"),
-                                       nullptr);
+    const Captured both =
+        capture_with(dir, plate_toml(std::string(kBoard) + "every = \"1 s\"\ntimes = [1, 2]\n"), nullptr);
     CHECK(both.run.exit_code == 2);
     CHECK(both.run.err.find("capture.times: give every or times, not both") != std::string::npos);
   }

@@ -8,8 +8,8 @@
 #include "tests/io/io_test_support.hpp"
 
 using spreadfit::io::CaptureSettings;
-using spreadfit::io::LoadOptions;
 using spreadfit::io::load_test_description;
+using spreadfit::io::LoadOptions;
 using spreadfit::io::test::input_error_of;
 using spreadfit::io::test::TempDir;
 
@@ -32,8 +32,9 @@ LoadOptions for_capture() {
 TEST_CASE("capture table: every key into SI, the video and the readings file resolved beside the TOML") {
   TempDir dir;
   const auto toml = dir.write("tests/DEMO-0002.toml",
-                              kPlate + "[capture]\nvideo = \"clips/DEMO-0002.mp4\"\nscale = \"board\"\nboard = \"9x6\"\n"
-                                       "square = \"10 mm\"\nrelease = \"2400 ms\"\ntimes = [\"1 s\", 2, \"0.1 min\"]\n");
+                              kPlate +
+                                  "[capture]\nvideo = \"clips/DEMO-0002.mp4\"\nscale = \"board\"\nboard = \"9x6\"\n"
+                                  "square = \"10 mm\"\nrelease = \"2400 ms\"\ntimes = [\"1 s\", 2, \"0.1 min\"]\n");
   const auto d = load_test_description(toml, for_capture());
   REQUIRE(d.capture.has_value());
   const CaptureSettings& c = *d.capture;
@@ -83,8 +84,8 @@ TEST_CASE("capture table: refusals name the line and the field") {
   CHECK(error("video = \"a.mp4\"\nboard = \"9x6\"\n") ==
         at + ":10: capture.square: missing required key in [capture] (expected a length, such as \"2.9 cm\" or a "
              "number in m: the side of one board square)");
-  CHECK(error("video = \"a.mp4\"\nboard = \"2x6\"\nsquare = \"1 cm\"\n").find(
-            "capture.board: '2x6' is not a board size (expected inner corners as columns x rows, each 3 to 60") !=
+  CHECK(error("video = \"a.mp4\"\nboard = \"2x6\"\nsquare = \"1 cm\"\n")
+            .find("capture.board: '2x6' is not a board size (expected inner corners as columns x rows, each 3 to 60") !=
         std::string::npos);
   CHECK(error("video = \"a.mp4\"\nscale = \"ring\"\nevery = \"0 s\"\n").find(":13: capture.every: ") !=
         std::string::npos);

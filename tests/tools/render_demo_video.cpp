@@ -29,7 +29,7 @@ int main(int argc, char** argv) {
     o.view_mm = 270;
     o.board_origin_mm = {-128, -78};
     o.sample_centre_mm = {30, 8};
-    o.plate_bgr = {95, 80, 70};     // a slate-blue plate
+    o.plate_bgr = {95, 80, 70};      // a slate-blue plate
     o.sample_bgr = {205, 228, 240};  // a cream-white lotion
     o.seed = 2213;
     capture::test::render_video(argv[1], o);
