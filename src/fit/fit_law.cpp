@@ -224,6 +224,205 @@ bool arrested_yield_stress(const std::vector<FitSeries>& series, const FitProble
   return false;
 }
 
+// The reported estimates and their 95% limits, with a plain warning for every open side or undetermined
+// parameter: profile-likelihood limits of the material parameters (their hull over every valley within the
+// cut-off) when `profiles` is given, else quadratic ones; the release times keep quadratic limits. The profile
+// limits were found around `profile_centre` (the coarse problem's optimum) and are moved to `x_best` with it.
+// Returns how many material parameters the readings determine.
+int interval_estimates(const FitProblem& problem, const Eigen::VectorXd& x_best, const Eigen::MatrixXd& cov, double q,
+                       const Profiles* profiles, const std::vector<Profiles>& other_basins,
+                       const Eigen::VectorXd& profile_centre, FitResult& out) {
+  int identifiable = 0;
+  const int p = problem.size();
+  for (int i = 0; i < p; ++i) {
+    ParameterEstimate e;
+    e.name = problem.names()[i];
+    e.unit = parameter_unit(e.name);
+    const bool log_scale = i < problem.material_parameters();
+    const double x = x_best[i];
+    const double se = std::sqrt(cov(i, i));
+    const double lo_box = problem.lower()[i], hi_box = problem.upper()[i];
+    double lo = x - q * se, hi = x + q * se;
+    bool lo_open = !std::isfinite(lo) || lo <= lo_box, hi_open = !std::isfinite(hi) || hi >= hi_box;
+    if (profiles && log_scale) {
+      e.profiled = true;
+      const ProfileSide& down = profiles->sides[std::size_t(2 * i)];
+      const ProfileSide& up = profiles->sides[std::size_t(2 * i + 1)];
+      lo_open = down.end != ProfileEnd::Crossed;
+      hi_open = up.end != ProfileEnd::Crossed;
+      lo = lo_open ? lo_box : x - (profile_centre[i] - down.limit);
+      hi = hi_open ? hi_box : x + (up.limit - profile_centre[i]);
+      // The hull with the other valleys' intervals (in the coarse problem's coordinates, shifted like the main
+      // one's).
+      for (const Profiles& other : other_basins) {
+        const ProfileSide& d = other.sides[std::size_t(2 * i)];
+        const ProfileSide& u = other.sides[std::size_t(2 * i + 1)];
+        if (d.end != ProfileEnd::Crossed) lo_open = true, lo = lo_box;
+        else if (!lo_open) lo = std::min(lo, d.limit + (x - profile_centre[i]));
+        if (u.end != ProfileEnd::Crossed) hi_open = true, hi = hi_box;
+        else if (!hi_open) hi = std::max(hi, u.limit + (x - profile_centre[i]));
+      }
+      // The coarse optimum and the fine one differ slightly; a limit can never be on the wrong side of the value.
+      lo = std::min(lo, x);
+      hi = std::max(hi, x);
+    }
+    lo = std::max(lo, lo_box);
+    hi = std::min(hi, hi_box);
+    if (log_scale) {
+      e.value = std::exp(x);
+      e.lower = std::exp(lo);
+      e.upper = std::exp(hi);
+      if (e.name == "flow_index") e.upper = std::min(e.upper, 2.0);
+    } else {
+      e.value = x;
+      e.lower = lo;
+      e.upper = hi;
+    }
+    e.lower_open = lo_open;
+    e.upper_open = hi_open;
+    if (e.name == "yield_stress" && lo_open) {
+      // A yield stress the readings do not need: the honest statement is an upper bound.
+      e.upper_only = true;
+      e.lower = 0.0;
+      e.identifiable = !hi_open;
+      if (e.identifiable)
+        out.warnings.push_back(fmt::format(
+            "the readings need no yield stress: only an upper bound ({:.3g} Pa) is supported; if the sample was "
+            "still spreading when readings ended, continue them until it stops",
+            e.upper));
+    } else if (log_scale) {
+      e.identifiable = !lo_open && !hi_open && hi - lo < std::log(100.0);
+    } else {
+      e.identifiable = std::isfinite(se);
+    }
+    if (log_scale) {
+      if (!e.identifiable && lo_open && hi_open)
+        out.warnings.push_back(fmt::format("the {} is not determined by these readings: its 95% interval spans its "
+                                           "whole range ({:.3g} to {:.3g} {})",
+                                           plain_name(e.name), e.lower, e.upper, e.unit));
+      else if (!e.upper_only && lo_open)
+        out.warnings.push_back(fmt::format("the readings set no lower limit on the {} (95% interval reaches the "
+                                           "end of its range, {:.3g} {})",
+                                           plain_name(e.name), e.lower, e.unit));
+      else if (hi_open)
+        out.warnings.push_back(fmt::format("the readings set no upper limit on the {} (95% interval reaches the "
+                                           "end of its range, {:.3g} {})",
+                                           plain_name(e.name), e.upper, e.unit));
+      else if (!e.identifiable)
+        out.warnings.push_back(fmt::format("the {} is not determined by these readings (95% interval spans more "
+                                           "than a factor of 100)",
+                                           plain_name(e.name)));
+      if (e.identifiable) ++identifiable;
+    }
+    out.parameters.push_back(e);
+  }
+  return identifiable;
+}
+
+// Parameter vectors drawn from the likelihood for bands (src/fit/likelihood_draws.hpp), on `sampled` (the coarse
+// problem, like the profiles) around its optimum `around`, moved to the fine optimum `x_best`; and the profile
+// walks' points inside the 95% region (FitResult::ridge).
+void draw_for_bands(const FitProblem& sampled, const FitProblem& problem, const LmResult& around,
+                    const Eigen::VectorXd& x_best, double s2, double q, const Profiles& profiles,
+                    const std::vector<Profiles>& other_basins, int count, FitResult& out) {
+  const int p = problem.size();
+  Eigen::VectorXd lo(p), hi(p);
+  for (int i = 0; i < p; ++i) {
+    const ParameterEstimate& e = out.parameters[std::size_t(i)];
+    const bool log_scale = i < problem.material_parameters();
+    lo[i] = log_scale ? (e.lower > 0 ? std::log(e.lower) : problem.lower()[i]) : e.lower;
+    hi[i] = log_scale ? std::log(e.upper) : e.upper;
+    lo[i] += around.x[i] - x_best[i];
+    hi[i] += around.x[i] - x_best[i];
+  }
+  std::vector<Eigen::VectorXd> centres;
+  for (const ProfileSide& side : profiles.sides) centres.insert(centres.end(), side.trace.begin(), side.trace.end());
+  for (const Profiles& other : other_basins)
+    for (const ProfileSide& side : other.sides) centres.insert(centres.end(), side.trace.begin(), side.trace.end());
+  const LikelihoodDraws d =
+      likelihood_draws(sampled, around.x, around.cost, s2, wald_covariance(around.jacobian, s2), lo, hi, centres,
+                       2 * count, count);
+  for (const Eigen::VectorXd& t : d.draws)
+    out.draws.push_back((t + x_best - around.x).cwiseMax(problem.lower()).cwiseMin(problem.upper()));
+  // The walks' points within the cut-off are inside the likelihood region by construction; a band that misses
+  // one of them understates the uncertainty (the resampled draws are few where the ridge is long and thin).
+  auto add_ridge = [&](const Profiles& set) {
+    for (const ProfileSide& side : set.sides)
+      for (std::size_t k = 0; k < side.trace.size(); ++k)
+        if (side.trace_tau[k] <= q)
+          out.ridge.push_back((side.trace[k] + x_best - around.x).cwiseMax(problem.lower()).cwiseMin(problem.upper()));
+  };
+  add_ridge(profiles);
+  for (const Profiles& other : other_basins) add_ridge(other);
+  out.draws_effective_size = d.effective_size;
+}
+
+// Plain-words findings on the fit at its optimum: parameters hard to separate, the forward model's validity
+// notes, and the fit-quality findings (src/fit/fit_quality.hpp).
+void describe_fit(const std::vector<FitSeries>& series, const FitProblem& problem, const Eigen::VectorXd& x_best,
+                  const Eigen::VectorXd& residuals_at_best, FitResult& out) {
+  {
+    std::string pairs;
+    for (int a = 0; a < problem.material_parameters(); ++a)
+      for (int b = a + 1; b < problem.material_parameters(); ++b)
+        if (std::abs(out.correlation(a, b)) > 0.95)
+          pairs += fmt::format("{}{} and {} ({:.2f})", pairs.empty() ? "" : ", ", plain_name(problem.names()[a]),
+                               plain_name(problem.names()[b]), out.correlation(a, b));
+    if (!pairs.empty())
+      out.warnings.push_back(fmt::format(
+          "hard to separate from these readings (correlation): {}; readings until the sample stops, a longer test, "
+          "a second fill volume or rig, or the product's prior flow index would separate them",
+          pairs));
+  }
+  for (std::string& note : problem.notes(x_best)) out.warnings.push_back(std::move(note));
+  {
+    std::vector<SeriesResiduals> residuals;
+    Eigen::Index k = 0;
+    for (std::size_t s = 0; s < series.size(); ++s) {
+      SeriesResiduals sr;
+      sr.label = series[s].label;
+      sr.times = problem.fitted_times()[s];
+      sr.readings = problem.fitted_values()[s];
+      sr.sigma = problem.sigma_stated() ? problem.weight_sigma(s) : 0.0;
+      for (std::size_t i = 0; i < sr.times.size(); ++i, ++k) sr.residuals.push_back(residuals_at_best[k] * problem.weight_sigma(s));
+      residuals.push_back(std::move(sr));
+    }
+    for (QualityFinding& finding : judge_fit_quality(residuals, problem.size())) {
+      out.quality.push_back(finding.kind);
+      out.warnings.push_back(std::move(finding.message));
+    }
+  }
+}
+
+// The polish starts from whichever candidate fits the full model best: the global stage's point, the related
+// fits' materials, and, should the full model fail at all of those (a stiff, nearly arrested flow at an extreme
+// corner of the box), points moved halfway, then all the way, to the centre of the box.
+Eigen::VectorXd polish_start(const FitProblem& problem, const ResidualFunction& f, Eigen::VectorXd start,
+                             const std::vector<FitResult>& hints) {
+  const int p = problem.size();
+  Eigen::VectorXd r;
+  double best_cost = std::numeric_limits<double>::infinity();
+  std::vector<Eigen::VectorXd> candidates{start};
+  for (const FitResult& h : hints)
+    if (h.status == FitStatus::Converged || h.status == FitStatus::NotIdentifiable)
+      candidates.push_back(problem.parameters(h.material, h.time_origins));
+  const Eigen::VectorXd centre = 0.5 * (problem.lower() + problem.upper());
+  const std::size_t first_fallback = candidates.size();
+  for (double w : {0.5, 1.0}) {
+    Eigen::VectorXd moved = (1.0 - w) * start + w * centre;
+    for (int i = problem.material_parameters(); i < p; ++i) moved[i] = start[i];  // release times stay
+    candidates.push_back(moved);
+  }
+  for (std::size_t c = 0; c < candidates.size(); ++c) {
+    if (c >= first_fallback && std::isfinite(best_cost)) break;
+    if (f(candidates[c], r) && r.squaredNorm() < best_cost) {
+      best_cost = r.squaredNorm();
+      start = candidates[c];
+    }
+  }
+  return start;
+}
+
 }  // namespace
 
 FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOptions& options,
@@ -253,31 +452,7 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
     failure = why;
     return false;
   };
-  {
-    // The polish starts from whichever candidate fits the full model best: the global stage's point, the related
-    // fits' materials, and, should the full model fail at all of those (a stiff, nearly arrested flow at an
-    // extreme corner of the box), points moved halfway, then all the way, to the centre of the box.
-    Eigen::VectorXd r;
-    double best_cost = std::numeric_limits<double>::infinity();
-    std::vector<Eigen::VectorXd> candidates{start};
-    for (const FitResult& h : hints)
-      if (h.status == FitStatus::Converged || h.status == FitStatus::NotIdentifiable)
-        candidates.push_back(problem.parameters(h.material, h.time_origins));
-    const Eigen::VectorXd centre = 0.5 * (problem.lower() + problem.upper());
-    const std::size_t first_fallback = candidates.size();
-    for (double w : {0.5, 1.0}) {
-      Eigen::VectorXd moved = (1.0 - w) * start + w * centre;
-      for (int i = problem.material_parameters(); i < p; ++i) moved[i] = start[i];  // release times stay
-      candidates.push_back(moved);
-    }
-    for (std::size_t c = 0; c < candidates.size(); ++c) {
-      if (c >= first_fallback && std::isfinite(best_cost)) break;
-      if (f(candidates[c], r) && r.squaredNorm() < best_cost) {
-        best_cost = r.squaredNorm();
-        start = candidates[c];
-      }
-    }
-  }
+  start = polish_start(problem, f, start, hints);
   LmOptions lm;
   lm.max_iterations = options.max_iterations;
   lm.fd_step = fd_steps(problem);
@@ -428,155 +603,12 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
       }
 
   const bool profiled = options.profile_intervals && !profiles.sides.empty();
-  const Eigen::VectorXd& profile_centre = coarse_ok ? coarse_best.x : best.x;
-  int identifiable = 0;
-  for (int i = 0; i < p; ++i) {
-    ParameterEstimate e;
-    e.name = problem.names()[i];
-    e.unit = parameter_unit(e.name);
-    const bool log_scale = i < problem.material_parameters();
-    const double x = best.x[i];
-    const double se = std::sqrt(cov(i, i));
-    const double lo_box = problem.lower()[i], hi_box = problem.upper()[i];
-    double lo = x - q * se, hi = x + q * se;
-    bool lo_open = !std::isfinite(lo) || lo <= lo_box, hi_open = !std::isfinite(hi) || hi >= hi_box;
-    if (profiled && log_scale) {
-      e.profiled = true;
-      const ProfileSide& down = profiles.sides[std::size_t(2 * i)];
-      const ProfileSide& up = profiles.sides[std::size_t(2 * i + 1)];
-      lo_open = down.end != ProfileEnd::Crossed;
-      hi_open = up.end != ProfileEnd::Crossed;
-      lo = lo_open ? lo_box : x - (profile_centre[i] - down.limit);
-      hi = hi_open ? hi_box : x + (up.limit - profile_centre[i]);
-      // The hull with the other valleys' intervals (in the coarse problem's coordinates, shifted like the main
-      // one's).
-      for (const Profiles& other : other_basins) {
-        const ProfileSide& d = other.sides[std::size_t(2 * i)];
-        const ProfileSide& u = other.sides[std::size_t(2 * i + 1)];
-        if (d.end != ProfileEnd::Crossed) lo_open = true, lo = lo_box;
-        else if (!lo_open) lo = std::min(lo, d.limit + (x - profile_centre[i]));
-        if (u.end != ProfileEnd::Crossed) hi_open = true, hi = hi_box;
-        else if (!hi_open) hi = std::max(hi, u.limit + (x - profile_centre[i]));
-      }
-      // The coarse optimum and the fine one differ slightly; a limit can never be on the wrong side of the value.
-      lo = std::min(lo, x);
-      hi = std::max(hi, x);
-    }
-    lo = std::max(lo, lo_box);
-    hi = std::min(hi, hi_box);
-    if (log_scale) {
-      e.value = std::exp(x);
-      e.lower = std::exp(lo);
-      e.upper = std::exp(hi);
-      if (e.name == "flow_index") e.upper = std::min(e.upper, 2.0);
-    } else {
-      e.value = x;
-      e.lower = lo;
-      e.upper = hi;
-    }
-    e.lower_open = lo_open;
-    e.upper_open = hi_open;
-    if (e.name == "yield_stress" && lo_open) {
-      // A yield stress the readings do not need: the honest statement is an upper bound.
-      e.upper_only = true;
-      e.lower = 0.0;
-      e.identifiable = !hi_open;
-      if (e.identifiable)
-        out.warnings.push_back(fmt::format(
-            "the readings need no yield stress: only an upper bound ({:.3g} Pa) is supported; if the sample was "
-            "still spreading when readings ended, continue them until it stops",
-            e.upper));
-    } else if (log_scale) {
-      e.identifiable = !lo_open && !hi_open && hi - lo < std::log(100.0);
-    } else {
-      e.identifiable = std::isfinite(se);
-    }
-    if (log_scale) {
-      if (!e.identifiable && lo_open && hi_open)
-        out.warnings.push_back(fmt::format("the {} is not determined by these readings: its 95% interval spans its "
-                                           "whole range ({:.3g} to {:.3g} {})",
-                                           plain_name(e.name), e.lower, e.upper, e.unit));
-      else if (!e.upper_only && lo_open)
-        out.warnings.push_back(fmt::format("the readings set no lower limit on the {} (95% interval reaches the "
-                                           "end of its range, {:.3g} {})",
-                                           plain_name(e.name), e.lower, e.unit));
-      else if (hi_open)
-        out.warnings.push_back(fmt::format("the readings set no upper limit on the {} (95% interval reaches the "
-                                           "end of its range, {:.3g} {})",
-                                           plain_name(e.name), e.upper, e.unit));
-      else if (!e.identifiable)
-        out.warnings.push_back(fmt::format("the {} is not determined by these readings (95% interval spans more "
-                                           "than a factor of 100)",
-                                           plain_name(e.name)));
-      if (e.identifiable) ++identifiable;
-    }
-    out.parameters.push_back(e);
-  }
-  if (profiled && options.likelihood_draws > 0) {
-    // Draws from the likelihood for bands, on the coarse problem like the profiles, moved to the fine optimum.
-    const FitProblem& sampled = coarse_ok ? *coarse : problem;
-    const LmResult& around = coarse_ok ? coarse_best : best;
-    Eigen::VectorXd lo(p), hi(p);
-    for (int i = 0; i < p; ++i) {
-      const ParameterEstimate& e = out.parameters[std::size_t(i)];
-      const bool log_scale = i < problem.material_parameters();
-      lo[i] = log_scale ? (e.lower > 0 ? std::log(e.lower) : problem.lower()[i]) : e.lower;
-      hi[i] = log_scale ? std::log(e.upper) : e.upper;
-      lo[i] += around.x[i] - best.x[i];
-      hi[i] += around.x[i] - best.x[i];
-    }
-    std::vector<Eigen::VectorXd> centres;
-    for (const ProfileSide& side : profiles.sides) centres.insert(centres.end(), side.trace.begin(), side.trace.end());
-    for (const Profiles& other : other_basins)
-      for (const ProfileSide& side : other.sides) centres.insert(centres.end(), side.trace.begin(), side.trace.end());
-    const LikelihoodDraws d =
-        likelihood_draws(sampled, around.x, around.cost, s2, wald_covariance(around.jacobian, s2), lo, hi, centres,
-                         2 * options.likelihood_draws, options.likelihood_draws);
-    for (const Eigen::VectorXd& t : d.draws)
-      out.draws.push_back((t + best.x - around.x).cwiseMax(problem.lower()).cwiseMin(problem.upper()));
-    // The walks' points within the cut-off are inside the likelihood region by construction; a band that misses
-    // one of them understates the uncertainty (the resampled draws are few where the ridge is long and thin).
-    auto add_ridge = [&](const Profiles& set) {
-      for (const ProfileSide& side : set.sides)
-        for (std::size_t k = 0; k < side.trace.size(); ++k)
-          if (side.trace_tau[k] <= q)
-            out.ridge.push_back((side.trace[k] + best.x - around.x).cwiseMax(problem.lower()).cwiseMin(problem.upper()));
-    };
-    add_ridge(profiles);
-    for (const Profiles& other : other_basins) add_ridge(other);
-    out.draws_effective_size = d.effective_size;
-  }
-  {
-    std::string pairs;
-    for (int a = 0; a < problem.material_parameters(); ++a)
-      for (int b = a + 1; b < problem.material_parameters(); ++b)
-        if (std::abs(out.correlation(a, b)) > 0.95)
-          pairs += fmt::format("{}{} and {} ({:.2f})", pairs.empty() ? "" : ", ", plain_name(problem.names()[a]),
-                               plain_name(problem.names()[b]), out.correlation(a, b));
-    if (!pairs.empty())
-      out.warnings.push_back(fmt::format(
-          "hard to separate from these readings (correlation): {}; readings until the sample stops, a longer test, "
-          "a second fill volume or rig, or the product's prior flow index would separate them",
-          pairs));
-  }
-  for (std::string& note : problem.notes(best.x)) out.warnings.push_back(std::move(note));
-  {
-    std::vector<SeriesResiduals> residuals;
-    Eigen::Index k = 0;
-    for (std::size_t s = 0; s < series.size(); ++s) {
-      SeriesResiduals sr;
-      sr.label = series[s].label;
-      sr.times = problem.fitted_times()[s];
-      sr.readings = problem.fitted_values()[s];
-      sr.sigma = problem.sigma_stated() ? problem.weight_sigma(s) : 0.0;
-      for (std::size_t i = 0; i < sr.times.size(); ++i, ++k) sr.residuals.push_back(best.r[k] * problem.weight_sigma(s));
-      residuals.push_back(std::move(sr));
-    }
-    for (QualityFinding& finding : judge_fit_quality(residuals, p)) {
-      out.quality.push_back(finding.kind);
-      out.warnings.push_back(std::move(finding.message));
-    }
-  }
+  const int identifiable = interval_estimates(problem, best.x, cov, q, profiled ? &profiles : nullptr, other_basins,
+                                              coarse_ok ? coarse_best.x : best.x, out);
+  if (profiled && options.likelihood_draws > 0)
+    draw_for_bands(coarse_ok ? *coarse : problem, problem, coarse_ok ? coarse_best : best, best.x, s2, q, profiles,
+                   other_basins, options.likelihood_draws, out);
+  describe_fit(series, problem, best.x, best.r, out);
   out.evaluations = problem.evaluations() + (coarse ? coarse->evaluations() : 0);
   // Stopped on the iteration limit in a flat valley, but no profile refit found a lower cost (by 1% of the
   // cut-off scale) anywhere along six traces through it: the point is an optimum for every purpose of the
