@@ -13,6 +13,7 @@
 #include "src/fit/fit_law.hpp"
 #include "src/fit/flow_index_prior.hpp"
 #include "src/history/history_db.hpp"
+#include "src/history/history_location.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/test_description.hpp"
@@ -52,9 +53,10 @@ void check_fittable(const std::vector<io::TestDescription>& tests) {
 
 // The flow index each earlier batch of `product` got from its readings alone (the history's result JSON), for
 // learning a prior. Batches fitted with a prior contribute their readings-alone value, never the prior's.
-std::vector<BatchFlowIndex> earlier_flow_indices(const std::filesystem::path& db, const std::string& product) {
+// A history file that does not exist yet has no earlier batches (the first `fit --db` creates it).
+std::vector<BatchFlowIndex> earlier_flow_indices(const std::string& db, const std::string& product) {
   std::vector<BatchFlowIndex> out;
-  if (product.empty() || !std::filesystem::exists(db)) return out;
+  if (product.empty() || (!history::is_server_uri(db) && !std::filesystem::exists(db))) return out;
   for (const history::StoredResult& r : history::load(db, product)) {
     const nlohmann::json j = nlohmann::json::parse(r.result_json, nullptr, false);
     if (j.is_discarded() || !j.is_object()) continue;
@@ -92,7 +94,7 @@ std::optional<FlowIndexPrior> prior_for(const io::ProductSpec* product, const st
   if (!options.db) return std::nullopt;
   std::string why_not;
   std::optional<FlowIndexPrior> learned =
-      learn_flow_index_prior(earlier_flow_indices(*options.db, product_code), &why_not);
+      learn_flow_index_prior(earlier_flow_indices(options.db->string(), product_code), &why_not);
   if (!learned && !product_code.empty()) note = "no flow-index prior: " + why_not;
   return learned;
 }

@@ -10,6 +10,7 @@
 #include <vector>
 
 #include "src/cli/exit_codes.hpp"
+#include "src/history/history_location.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
 #include "src/qc/control_chart.hpp"
@@ -77,7 +78,7 @@ std::vector<const StoredResult*> of_product(const std::vector<StoredResult>& row
   std::vector<const StoredResult*> out;
   for (const auto& r : rows)
     if (r.product == product) out.push_back(&r);
-  return out;
+  return batch_order(std::move(out));
 }
 
 std::string product_label(const std::string& product) { return product.empty() ? kNoProduct : product; }
@@ -131,15 +132,45 @@ std::string interval_cell(const Parameter& p) {
   return fmt::format("{:.4g} [{:.4g}, {:.4g}]", value, low, high);
 }
 
+/// The distinct non-empty sites of `rows`, sorted.
+std::vector<std::string> sites_of(const std::vector<const StoredResult*>& rows) {
+  std::vector<std::string> sites;
+  for (const StoredResult* r : rows)
+    if (!r->site.empty() && std::find(sites.begin(), sites.end(), r->site) == sites.end()) sites.push_back(r->site);
+  std::sort(sites.begin(), sites.end());
+  return sites;
+}
+
+/// Which sites a table or chart covers, in words: "" when no result names a site (a single lab's history),
+/// "site RH" with --site, else "all sites (LK, RH)".
+std::string site_scope(const std::vector<const StoredResult*>& rows, const std::string& site) {
+  if (!site.empty()) return "site " + site;
+  const std::vector<std::string> sites = sites_of(rows);
+  if (sites.empty()) return "";
+  const bool some_without = std::any_of(rows.begin(), rows.end(), [](const StoredResult* r) { return r->site.empty(); });
+  return fmt::format("all sites ({}{})", fmt::join(sites, ", "), some_without ? ", and results without a site" : "");
+}
+
 /// The table of one product, with its control-chart signals.
-std::string product_table(const std::string& product, const std::vector<const StoredResult*>& rows) {
+std::string product_table(const std::string& product, const std::vector<const StoredResult*>& rows,
+                          const std::string& site) {
   const std::vector<Column> columns = parameter_columns(rows);
-  std::vector<std::string> header = {"sample", "recorded (UTC)", "rig", "model"};
+  const bool show_site = std::any_of(rows.begin(), rows.end(), [](const StoredResult* r) { return !r->site.empty(); });
+  const bool show_tested =
+      std::any_of(rows.begin(), rows.end(), [](const StoredResult* r) { return !r->tested.empty(); });
+  std::vector<std::string> header = {"sample"};
+  if (show_site) header.push_back("site");
+  if (show_tested) header.push_back("tested");
+  for (const char* h : {"recorded (UTC)", "rig", "model"}) header.push_back(h);
   for (const Column& c : columns) header.push_back(fmt::format("{} [{}]", c.name, c.unit));
   header.push_back("verdict");
   std::vector<std::vector<std::string>> cells;
   for (const StoredResult* r : rows) {
-    std::vector<std::string> line = {r->sample_id, r->recorded_at, r->rig, r->law.empty() ? "(fit failed)" : r->law};
+    std::vector<std::string> line = {r->sample_id};
+    if (show_site) line.push_back(r->site.empty() ? "-" : r->site);
+    if (show_tested) line.push_back(r->tested.empty() ? "-" : r->tested);
+    for (const std::string& cell : {r->recorded_at, r->rig, r->law.empty() ? std::string("(fit failed)") : r->law})
+      line.push_back(cell);
     for (const Column& c : columns) {
       const Parameter* p = find_parameter(*r, c.name);
       line.push_back(p ? interval_cell(*p) : "-");
@@ -158,12 +189,15 @@ std::string product_table(const std::string& product, const std::vector<const St
       s += k + 1 < line.size() ? fmt::format(" {:<{}} ", line[k], width[k]) : " " + line[k];
     return s + "\n";
   };
-  std::string s = fmt::format("Product {}: {} result{}\n", product_label(product), rows.size(),
-                              rows.size() == 1 ? "" : "s");
+  const std::string scope = site_scope(rows, site);
+  std::string s = fmt::format("Product {}{}: {} result{}\n", product_label(product), scope.empty() ? "" : ", " + scope,
+                              rows.size(), rows.size() == 1 ? "" : "s");
   s += row_text(header);
   for (const auto& line : cells) s += row_text(line);
   if (!columns.empty()) {
-    s += "  Control charts (individuals; limits = mean +/- 2.66 x mean moving range; runs of 8 on one side):\n";
+    s += fmt::format("  Control charts (individuals; limits = mean +/- 2.66 x mean moving range; runs of 8 on one "
+                     "side{}):\n",
+                     scope.empty() ? "" : "; " + scope);
     for (const Column& c : columns) {
       const std::optional<ControlChart> chart = chart_of(rows, c);
       if (!chart) {
@@ -202,7 +236,7 @@ std::string history_csv(const std::vector<StoredResult>& rows) {
   const std::vector<Column> columns = parameter_columns(all);
   std::string s = "sample,product,recorded_at,rig,model,verdict";
   for (const Column& c : columns) s += fmt::format(",{0} [{1}],{0} low [{1}],{0} high [{1}]", c.name, c.unit);
-  s += ",software_version,input_hash\n";
+  s += ",software_version,input_hash,site,tested\n";
   for (const auto& r : rows) {
     s += fmt::format("{},{},{},{},{},{}", csv_cell(r.sample_id), csv_cell(r.product), csv_cell(r.recorded_at),
                      csv_cell(r.rig), csv_cell(r.law), csv_cell(r.verdict));
@@ -212,19 +246,20 @@ std::string history_csv(const std::vector<StoredResult>& rows) {
                            csv_number(std::get<3>(*p)))
              : std::string(",,,");
     }
-    s += fmt::format(",{},{}\n", csv_cell(r.software_version), csv_cell(r.input_hash));
+    s += fmt::format(",{},{},{},{}\n", csv_cell(r.software_version), csv_cell(r.input_hash), csv_cell(r.site),
+                     csv_cell(r.tested));
   }
   return s;
 }
 
 /// The chart --chart draws; throws InputError("--chart") when none can be drawn.
-ControlChart chosen_chart(const std::filesystem::path& db, const std::vector<StoredResult>& rows,
+ControlChart chosen_chart(const std::string& db, const std::vector<StoredResult>& rows,
                           const std::string& product) {
   const std::vector<std::string> codes = product_order(rows);
   if (codes.empty())
     throw io::InputError("", 0, "--chart",
                          fmt::format("no results{} in {}; a control chart needs at least two; no chart written",
-                                     product.empty() ? "" : " for product " + product, db.string()));
+                                     product.empty() ? "" : " for product " + product, db));
   if (codes.size() > 1) {
     std::vector<std::string> labels;
     for (const auto& c : codes) labels.push_back(product_label(c));
@@ -248,53 +283,105 @@ ControlChart chosen_chart(const std::filesystem::path& db, const std::vector<Sto
 
 }  // namespace
 
-int run_history_command(const std::filesystem::path& db, const std::string& product,
-                        const std::optional<std::filesystem::path>& chart, bool csv, std::ostream& out,
-                        std::ostream& err) {
-  const std::vector<StoredResult> rows = history::load(db, product);
+std::vector<const StoredResult*> batch_order(std::vector<const StoredResult*> rows) {
+  const bool any_tested =
+      std::any_of(rows.begin(), rows.end(), [](const StoredResult* r) { return !r->tested.empty(); });
+  if (any_tested)
+    std::stable_sort(rows.begin(), rows.end(), [](const StoredResult* a, const StoredResult* b) {
+      const std::string& ka = a->tested.empty() ? a->recorded_at : a->tested;
+      const std::string& kb = b->tested.empty() ? b->recorded_at : b->tested;
+      return ka < kb;
+    });
+  return rows;
+}
+
+namespace {
+
+/// "product TS12", "site RH", "product TS12 at site RH".
+std::string filter_words(const history::HistoryFilter& f) {
+  if (!f.product.empty() && !f.site.empty()) return fmt::format("product {} at site {}", f.product, f.site);
+  if (!f.product.empty()) return "product " + f.product;
+  return "site " + f.site;
+}
+
+int copy_command(const HistoryCommandOptions& o, const history::HistoryFilter& filter, std::ostream& out) {
+  if (o.chart || o.csv)
+    throw io::InputError("", 0, "--copy-to",
+                         "cannot be combined with --chart or --csv (copy first, then read the copy with history)");
+  const std::string site = history::default_site();
+  const history::CopySummary c = history::copy_history(o.db, *o.copy_to, filter, site);
+  const std::size_t total = c.added + c.replaced + c.unchanged + c.kept_newer;
+  out << fmt::format("copied {} result{}{} from {} to {}: {} added, {} replaced, {} already there, {} kept (the "
+                     "target's recording was later){}\n",
+                     total, total == 1 ? "" : "s", filter.product.empty() && filter.site.empty() ? "" : " of " + filter_words(filter),
+                     history::display_name(o.db), history::display_name(*o.copy_to), c.added, c.replaced, c.unchanged,
+                     c.kept_newer,
+                     c.site_given == 0 ? std::string()
+                                       : fmt::format("; {} without a site given site {} from {}", c.site_given, site,
+                                                     history::site_environment_variable));
+  return to_int(ExitCode::Done);
+}
+
+}  // namespace
+
+int run_history_command(const HistoryCommandOptions& o, std::ostream& out, std::ostream& err) {
+  const history::HistoryFilter filter{o.product, o.site};
+  if (o.copy_to) return copy_command(o, filter, out);
+  const std::unique_ptr<history::HistoryStore> store = history::open_history(o.db, history::Access::Read);
+  const std::vector<StoredResult> rows = store->load(filter);
+  const std::string name = store->name();
   std::string chart_note;  // said last, after the table
-  if (chart) {
-    const ControlChart c = chosen_chart(db, rows, product);
+  if (o.chart) {
+    const ControlChart c = chosen_chart(name, rows, o.product);
     const std::string code = product_label(rows.front().product);  // chosen_chart checked: one product
-    io::write_file_atomically(*chart, control_chart_svg(c, fmt::format("Product {}: batch history {}", code,
-                                                                       db.filename().string())));
-    chart_note = fmt::format("chart: {} ({} of product {}, {} results)\n", chart->string(), c.parameter, code,
-                             c.values.size());
+    const std::string scope = site_scope(of_product(rows, rows.front().product), o.site);
+    const std::string title_name = history::is_server_uri(o.db) ? name : std::filesystem::path(o.db).filename().string();
+    io::write_file_atomically(*o.chart, control_chart_svg(c, fmt::format("Product {}{}: batch history {}", code,
+                                                                         scope.empty() ? "" : ", " + scope,
+                                                                         title_name)));
+    chart_note = fmt::format("chart: {} ({} of product {}{}, {} results)\n", o.chart->string(), c.parameter, code,
+                             scope.empty() ? "" : ", " + scope, c.values.size());
   }
-  if (csv) {
+  if (o.csv) {
     out << history_csv(rows);
   }
   if (rows.empty()) {
     std::string message;
-    if (product.empty()) {
-      message = fmt::format("{}: the history holds no results yet\n", db.string());
+    if (o.product.empty() && o.site.empty()) {
+      message = fmt::format("{}: the history holds no results yet\n", name);
     } else {
       std::vector<std::string> labels;
-      for (const auto& code : history::products(db)) labels.push_back(product_label(code));
-      message = fmt::format("{}: no results for product {}{}\n", db.string(), product,
-                            labels.empty() ? std::string(" (the history is empty)")
-                                           : fmt::format(" (products in the history: {})", fmt::join(labels, ", ")));
+      for (const auto& code : store->products()) labels.push_back(product_label(code));
+      std::vector<std::string> sites;
+      for (const auto& code : store->sites())
+        if (!code.empty()) sites.push_back(code);
+      std::string held = " (the history is empty)";
+      if (!labels.empty())
+        held = fmt::format(" (products in the history: {}{})", fmt::join(labels, ", "),
+                           sites.empty() ? std::string() : fmt::format("; sites: {}", fmt::join(sites, ", ")));
+      message = fmt::format("{}: no results for {}{}\n", name, filter_words(filter), held);
     }
-    (csv ? err : out) << message;
+    (o.csv ? err : out) << message;
     return to_int(ExitCode::Done);
   }
-  if (!csv) {
+  if (!o.csv) {
     bool first = true;
     for (const std::string& code : product_order(rows)) {
       if (!first) out << "\n";
       first = false;
-      out << product_table(code, of_product(rows, code));
+      out << product_table(code, of_product(rows, code), o.site);
     }
   }
-  (csv ? err : out) << chart_note;
+  (o.csv ? err : out) << chart_note;
   return to_int(ExitCode::Done);
 }
 
-std::string history_record_note(const std::filesystem::path& db, const history::StoredResult& result,
+std::string history_record_note(const std::string& db, const history::StoredResult& result,
                                 history::WriteOutcome outcome) {
+  const std::string name = history::display_name(db);
   return outcome == history::WriteOutcome::Updated
-             ? fmt::format("history: replaced {} in {} (same inputs as an earlier run)", result.sample_id, db.string())
-             : fmt::format("history: added {} to {}", result.sample_id, db.string());
+             ? fmt::format("history: replaced {} in {} (same inputs as an earlier run)", result.sample_id, name)
+             : fmt::format("history: added {} to {}", result.sample_id, name);
 }
 
 }  // namespace spreadfit::cli

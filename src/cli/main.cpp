@@ -72,7 +72,9 @@ int run(int argc, char** argv) {
   fit_plot.add_to(*fit, "--plot", "FILE.svg",
                   "Draw readings, fitted curve, uncertainty band and residuals to FILE.svg");
   fit_out_dir.add_to(*fit, "--out-dir", "DIR", "Write <sample id>.json and <sample id>.svg per material (tests sharing a sample id are one material) into DIR");
-  fit_db.add_to(*fit, "--db", "FILE", "Append the results to the batch history FILE");
+  fit_db.add_to(*fit, "--db", "DB",
+                "Append the results to the batch history DB: an SQLite file, or a postgresql:// URI of a shared "
+                "history on a server");
   fit_specs.add_to(*fit, "--specs", "FILE", "Read product specifications from FILE");
   fit_csv.add_to(*fit, "--csv", "FILE", "Write the results as a CSV table to FILE");
   bool fit_no_prior = false;
@@ -108,14 +110,25 @@ int run(int argc, char** argv) {
   // --- history -----------------------------------------------------------------------------------------------
   CLI::App* history =
       app.add_subcommand("history", "List the batch history per product, with control-chart signals.");
-  std::string history_db, history_product;
-  bool history_csv = false;
-  history->add_option("DB", history_db, "History database written by 'spreadfit fit --db'")->required()->type_name("");
-  history->add_option("--product", history_product, "Only this product code")->type_name("CODE");
+  spreadfit::cli::HistoryCommandOptions history_options;
+  history->add_option("DB", history_options.db,
+                      "History written by 'spreadfit fit --db': an SQLite file or a postgresql:// URI")
+      ->required()
+      ->type_name("");
+  history->add_option("--product", history_options.product, "Only this product code")->type_name("CODE");
+  history->add_option("--site", history_options.site, "Only this site (lab or plant); default: across all sites")
+      ->type_name("CODE");
   PathOption history_chart;
   history_chart.add_to(*history, "--chart", "FILE.svg",
                        "Draw an individuals control chart of the product's yield stress (else its first parameter)");
-  history->add_flag("--csv", history_csv, "Write CSV to stdout instead of the table");
+  history->add_flag("--csv", history_options.csv, "Write CSV to stdout instead of the table");
+  std::string history_copy_to;
+  CLI::Option* history_copy_option =
+      history
+          ->add_option("--copy-to", history_copy_to,
+                       "Copy the results into another history (e.g. a postgresql:// URI); running it twice adds "
+                       "nothing")
+          ->type_name("URI");
 
   // --- predict -----------------------------------------------------------------------------------------------
   CLI::App* predict = app.add_subcommand(
@@ -262,9 +275,11 @@ int run(int argc, char** argv) {
     if (predict_plot_option->count() > 0) predict_options.plot = predict_plot;
     return spreadfit::cli::run_predict_command(predict_options, std::cout, std::cerr);
   }
-  if (history->parsed())
-    return spreadfit::cli::run_history_command(history_db, history_product, history_chart.get(), history_csv,
-                                               std::cout, std::cerr);
+  if (history->parsed()) {
+    history_options.chart = history_chart.get();
+    if (history_copy_option->count() > 0) history_options.copy_to = history_copy_to;
+    return spreadfit::cli::run_history_command(history_options, std::cout, std::cerr);
+  }
   if (simulate->parsed()) {
     simulate_options.test = simulate_test;
     if (times_option->count() > 0) simulate_options.times = simulate_times;

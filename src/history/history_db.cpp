@@ -1,20 +1,18 @@
 #include "src/history/history_db.hpp"
 
 #include <fmt/format.h>
-#include <sqlite3.h>
 
-#include <algorithm>
 #include <chrono>
 #include <cmath>
+#include <cstdlib>
 #include <ctime>
-#include <limits>
 #include <map>
-#include <memory>
-#include <optional>
 #include <stdexcept>
-#include <thread>
 
 #include "src/history/file_hash.hpp"
+#include "src/history/history_location.hpp"
+#include "src/history/postgres_history.hpp"
+#include "src/history/sqlite_history.hpp"
 #include "src/io/input_error.hpp"
 #include "src/report/result_json.hpp"
 #include "src/version.hpp"
@@ -23,237 +21,6 @@ namespace spreadfit::history {
 
 namespace {
 
-namespace fs = std::filesystem;
-
-/// The hint that follows SQLite's own words, by primary result code.
-std::string hint_for(int code) {
-  switch (code & 0xff) {
-    case SQLITE_NOTADB:
-      return " (expected a history written by 'spreadfit fit --db', or the name of a file to create)";
-    case SQLITE_CORRUPT:
-      return " (the database is damaged; restore it from a backup)";
-    case SQLITE_BUSY:
-    case SQLITE_LOCKED:
-      return fmt::format(" (another process kept the database locked for more than {} s)", busy_timeout_ms / 1000);
-    case SQLITE_CANTOPEN:
-      return " (expected an existing folder, and permission to read and write the file and create files next to it)";
-    case SQLITE_READONLY:
-    case SQLITE_PERM:
-    case SQLITE_AUTH:
-      return " (no permission to write the database or the files SQLite keeps next to it)";
-    case SQLITE_FULL:
-      return " (the disk is full)";
-    case SQLITE_IOERR:
-      return " (the disk or file system reported an error)";
-    default:
-      return "";
-  }
-}
-
-[[noreturn]] void fail(const fs::path& db, const std::string& message) {
-  throw io::InputError(db.string(), 0, "", message);
-}
-
-struct ConnectionCloser {
-  void operator()(sqlite3* c) const { sqlite3_close_v2(c); }
-};
-
-/// One open connection; closed on destruction. Every error it raises names the database file.
-class Database {
- public:
-  enum class Mode { ReadOnly, ReadWriteCreate };
-
-  Database(const fs::path& file, Mode mode) : file_(file) {
-    std::error_code ec;
-    if (fs::is_directory(file, ec)) fail(file_, "is a folder (expected a history database file)");
-    if (mode == Mode::ReadOnly && !fs::exists(file, ec))
-      fail(file_, "no such history database (expected a file written by 'spreadfit fit --db')");
-    const int flags = mode == Mode::ReadOnly ? SQLITE_OPEN_READONLY : (SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE);
-    sqlite3* raw = nullptr;
-    const int rc = sqlite3_open_v2(file.c_str(), &raw, flags, nullptr);
-    handle_.reset(raw);  // closed even when opening failed
-    if (raw == nullptr) fail(file_, "cannot open the history database: out of memory");
-    if (rc != SQLITE_OK) raise(rc, "opening the history database");
-    check(sqlite3_extended_result_codes(raw, 1), "enabling extended error codes");
-    check(sqlite3_busy_timeout(raw, busy_timeout_ms), "setting the busy timeout");
-  }
-
-  sqlite3* get() const { return handle_.get(); }
-  const fs::path& file() const { return file_; }
-
-  [[noreturn]] void raise(int rc, std::string_view doing) const {
-    std::string what = handle_ ? sqlite3_errmsg(handle_.get()) : sqlite3_errstr(rc);
-    if ((rc & 0xff) == SQLITE_NOTADB)
-      fail(file_, fmt::format("not a spreadfit history database: {}{}", what, hint_for(rc)));
-    fail(file_, fmt::format("batch history: {}: {}{}", doing, what, hint_for(rc)));
-  }
-  void check(int rc, std::string_view doing) const {
-    if (rc != SQLITE_OK) raise(rc, doing);
-  }
-  /// Runs SQL that returns no rows.
-  void exec(const char* sql, std::string_view doing) const { check(sqlite3_exec(get(), sql, nullptr, nullptr, nullptr), doing); }
-
- private:
-  fs::path file_;
-  std::unique_ptr<sqlite3, ConnectionCloser> handle_;
-};
-
-/// A prepared statement; finalized on destruction.
-class Statement {
- public:
-  Statement(const Database& db, std::string_view sql, std::string doing) : db_(db), doing_(std::move(doing)) {
-    const int rc = sqlite3_prepare_v2(db.get(), sql.data(), static_cast<int>(sql.size()), &stmt_, nullptr);
-    if (rc != SQLITE_OK) db_.raise(rc, doing_);
-  }
-  ~Statement() { sqlite3_finalize(stmt_); }
-  Statement(const Statement&) = delete;
-  Statement& operator=(const Statement&) = delete;
-
-  void bind(int index, std::string_view text) {
-    check(sqlite3_bind_text(stmt_, index, text.data(), static_cast<int>(text.size()), SQLITE_TRANSIENT));
-  }
-  /// NaN is stored as NULL (and read back as NaN); infinities are stored as they are.
-  void bind(int index, double value) {
-    check(std::isnan(value) ? sqlite3_bind_null(stmt_, index) : sqlite3_bind_double(stmt_, index, value));
-  }
-  void bind(int index, sqlite3_int64 value) { check(sqlite3_bind_int64(stmt_, index, value)); }
-
-  /// The raw result code of one step (SQLITE_ROW, SQLITE_DONE or an error), for callers that handle BUSY.
-  int step_code() { return sqlite3_step(stmt_); }
-  /// One step: true when a row is ready, false when done; throws on any error.
-  bool step() {
-    const int rc = sqlite3_step(stmt_);
-    if (rc == SQLITE_ROW) return true;
-    if (rc == SQLITE_DONE) return false;
-    db_.raise(rc, doing_);
-  }
-  /// Runs a statement that returns no rows.
-  void run() {
-    if (step()) db_.raise(SQLITE_MISUSE, doing_ + " (a row where none was expected)");
-  }
-  void reset() {
-    sqlite3_reset(stmt_);
-    sqlite3_clear_bindings(stmt_);
-  }
-
-  std::string text(int column) const {
-    const auto* p = sqlite3_column_text(stmt_, column);
-    if (p == nullptr) return {};
-    return std::string(reinterpret_cast<const char*>(p), static_cast<std::size_t>(sqlite3_column_bytes(stmt_, column)));
-  }
-  double real(int column) const {
-    if (sqlite3_column_type(stmt_, column) == SQLITE_NULL) return std::numeric_limits<double>::quiet_NaN();
-    return sqlite3_column_double(stmt_, column);
-  }
-  sqlite3_int64 integer(int column) const { return sqlite3_column_int64(stmt_, column); }
-
- private:
-  void check(int rc) const {
-    if (rc != SQLITE_OK) db_.raise(rc, doing_);
-  }
-  const Database& db_;
-  std::string doing_;
-  sqlite3_stmt* stmt_ = nullptr;
-};
-
-/// A transaction rolled back on destruction unless committed.
-class Transaction {
- public:
-  /// `immediate`: take the write lock now (BEGIN IMMEDIATE), waiting up to the busy timeout; otherwise a read
-  /// transaction, which sees one consistent snapshot.
-  Transaction(const Database& db, bool immediate) : db_(db) {
-    db_.exec(immediate ? "BEGIN IMMEDIATE" : "BEGIN", immediate ? "starting a write transaction" : "starting a read");
-  }
-  ~Transaction() {
-    if (open_) sqlite3_exec(db_.get(), "ROLLBACK", nullptr, nullptr, nullptr);  // nothing of it is kept
-  }
-  Transaction(const Transaction&) = delete;
-  Transaction& operator=(const Transaction&) = delete;
-  void commit() {
-    db_.exec("COMMIT", "committing the transaction");
-    open_ = false;
-  }
-
- private:
-  const Database& db_;
-  bool open_ = true;
-};
-
-/// Switches the database to WAL mode (a lasting property of the file). Converting a new file needs a moment of
-/// exclusive access, which SQLite does not always wait for; retried every `kRetryMs` up to the busy timeout.
-void use_wal(const Database& db) {
-  constexpr int kRetryMs = 10;
-  const auto deadline = std::chrono::steady_clock::now() + std::chrono::milliseconds(busy_timeout_ms);
-  for (;;) {
-    Statement s(db, "PRAGMA journal_mode = WAL", "switching to WAL journal mode");
-    const int rc = s.step_code();
-    if (rc == SQLITE_ROW) return;  // "wal", or the mode the file system allows (the writes stay transactional)
-    if ((rc & 0xff) != SQLITE_BUSY && (rc & 0xff) != SQLITE_LOCKED) db.raise(rc, "switching to WAL journal mode");
-    if (std::chrono::steady_clock::now() >= deadline) db.raise(rc, "switching to WAL journal mode");
-    std::this_thread::sleep_for(std::chrono::milliseconds(kRetryMs));
-  }
-}
-
-sqlite3_int64 single_integer(const Database& db, const char* sql, const std::string& doing) {
-  Statement s(db, sql, doing);
-  if (!s.step()) db.raise(SQLITE_MISUSE, doing + " (no row)");
-  return s.integer(0);
-}
-
-/// Checks the schema version and tables. Returns false when the file holds no schema yet (a new or empty file).
-bool check_schema(const Database& db) {
-  const auto version = single_integer(db, "PRAGMA user_version", "reading the schema version");
-  const auto tables =
-      single_integer(db, "SELECT count(*) FROM sqlite_master WHERE type = 'table'", "listing the tables");
-  if (version > schema_version)
-    fail(db.file(), fmt::format("the history was written by a later spreadfit (schema version {}; this version "
-                                "reads up to {}); use that version or a later one",
-                                version, schema_version));
-  if (version == 0) {
-    if (tables > 0)
-      fail(db.file(), "not a spreadfit history database: it is an SQLite database of another program (it has "
-                      "tables but no spreadfit schema version); expected a file written by 'spreadfit fit --db'");
-    return false;
-  }
-  const auto ours = single_integer(
-      db, "SELECT count(*) FROM sqlite_master WHERE type = 'table' AND name IN ('results', 'parameters')",
-      "listing the tables");
-  if (ours != 2)
-    fail(db.file(), fmt::format("not a spreadfit history database: schema version {} but without the tables "
-                                "'results' and 'parameters'",
-                                version));
-  return true;
-}
-
-constexpr const char* kCreateSchema = R"sql(
-CREATE TABLE results (
-  id               INTEGER PRIMARY KEY,
-  input_hash       TEXT NOT NULL UNIQUE,
-  sample_id        TEXT NOT NULL,
-  product          TEXT NOT NULL,
-  rig              TEXT NOT NULL,
-  law              TEXT NOT NULL,
-  verdict          TEXT NOT NULL CHECK (verdict IN ('pass', 'fail', 'none')),
-  software_version TEXT NOT NULL,
-  recorded_at      TEXT NOT NULL,
-  result_json      TEXT NOT NULL
-);
-CREATE INDEX results_by_product ON results (product, id);
-CREATE TABLE parameters (
-  result_id INTEGER NOT NULL REFERENCES results (id) ON DELETE CASCADE,
-  position  INTEGER NOT NULL,
-  name      TEXT NOT NULL,
-  value     REAL,
-  low       REAL,
-  high      REAL,
-  unit      TEXT NOT NULL,
-  PRIMARY KEY (result_id, position),
-  UNIQUE (result_id, name)
-);
-PRAGMA user_version = 1;
-)sql";
-static_assert(schema_version == 1, "kCreateSchema writes user_version 1");
-
 void check_storable(const StoredResult& r) {
   if (r.input_hash.empty()) throw std::invalid_argument("history record: input_hash is empty");
   if (r.sample_id.empty()) throw std::invalid_argument("history record: sample_id is empty");
@@ -261,7 +28,106 @@ void check_storable(const StoredResult& r) {
     throw std::invalid_argument("history record: verdict '" + r.verdict + "' (expected pass, fail or none)");
 }
 
+bool same_number(double a, double b) { return (std::isnan(a) && std::isnan(b)) || a == b; }
+
+/// A store that checks every result before the backend sees it.
+class CheckedStore final : public HistoryStore {
+ public:
+  explicit CheckedStore(std::unique_ptr<HistoryStore> inner) : inner_(std::move(inner)) {}
+  WriteOutcome record(const StoredResult& r) override {
+    check_storable(r);
+    return inner_->record(r);
+  }
+  std::vector<StoredResult> load(const HistoryFilter& f) override { return inner_->load(f); }
+  std::vector<std::string> products() override { return inner_->products(); }
+  std::vector<std::string> sites() override { return inner_->sites(); }
+  const std::string& name() const override { return inner_->name(); }
+
+ private:
+  std::unique_ptr<HistoryStore> inner_;
+};
+
 }  // namespace
+
+bool same_result(const StoredResult& a, const StoredResult& b) {
+  if (a.sample_id != b.sample_id || a.product != b.product || a.site != b.site || a.tested != b.tested ||
+      a.rig != b.rig || a.law != b.law || a.verdict != b.verdict || a.input_hash != b.input_hash ||
+      a.software_version != b.software_version || a.recorded_at != b.recorded_at || a.result_json != b.result_json ||
+      a.parameters.size() != b.parameters.size())
+    return false;
+  for (std::size_t k = 0; k < a.parameters.size(); ++k) {
+    const auto& [an, av, al, ah, au] = a.parameters[k];
+    const auto& [bn, bv, bl, bh, bu] = b.parameters[k];
+    if (an != bn || au != bu || !same_number(av, bv) || !same_number(al, bl) || !same_number(ah, bh)) return false;
+  }
+  return true;
+}
+
+std::unique_ptr<HistoryStore> open_history(const std::string& location, Access access) {
+  if (is_server_uri(location)) return std::make_unique<CheckedStore>(open_postgres_history(location, access));
+  return std::make_unique<CheckedStore>(open_sqlite_history(location, access));
+}
+
+WriteOutcome record(const std::string& location, const StoredResult& r) {
+  check_storable(r);
+  return open_history(location, Access::Write)->record(r);
+}
+
+std::vector<StoredResult> load(const std::string& location, const HistoryFilter& filter) {
+  return open_history(location, Access::Read)->load(filter);
+}
+
+std::vector<StoredResult> load(const std::string& location, const std::string& product) {
+  return load(location, HistoryFilter{product, ""});
+}
+
+std::vector<std::string> products(const std::string& location) {
+  return open_history(location, Access::Read)->products();
+}
+
+CopySummary copy_history(const std::string& from, const std::string& to, const HistoryFilter& filter,
+                         const std::string& site_for_unsited) {
+  if (from == to)
+    throw io::InputError(display_name(to), 0, "--copy-to", "is the history being copied (expected another one)");
+  std::vector<StoredResult> rows = open_history(from, Access::Read)->load(filter);
+  const std::unique_ptr<HistoryStore> target = open_history(to, Access::Write);
+  std::map<std::string, StoredResult> there;
+  for (StoredResult& r : target->load(HistoryFilter{})) {
+    std::string hash = r.input_hash;
+    there.emplace(std::move(hash), std::move(r));
+  }
+  CopySummary summary;
+  for (StoredResult& r : rows) {
+    if (r.site.empty() && !site_for_unsited.empty()) {
+      r.site = site_for_unsited;
+      ++summary.site_given;
+    }
+    const auto it = there.find(r.input_hash);
+    if (it == there.end()) {
+      target->record(r);
+      ++summary.added;
+    } else if (same_result(it->second, r)) {
+      ++summary.unchanged;
+    } else if (it->second.recorded_at > r.recorded_at) {  // ISO 8601 UTC text: text order is time order
+      ++summary.kept_newer;
+    } else {
+      target->record(r);
+      ++summary.replaced;
+    }
+  }
+  return summary;
+}
+
+std::string default_site() {
+  const char* value = std::getenv(site_environment_variable);
+  if (value == nullptr) return {};
+  const std::string site = value;
+  if (site.find_first_of("\r\n\t") != std::string::npos)
+    throw io::InputError(site_environment_variable, 0, "",
+                         "the site code holds a line break or tab (expected a short code such as \"RH\")");
+  if (site.find_first_not_of(' ') == std::string::npos) return {};
+  return site;
+}
 
 std::string utc_now_iso8601() {
   const std::time_t now = std::chrono::system_clock::to_time_t(std::chrono::system_clock::now());
@@ -272,141 +138,16 @@ std::string utc_now_iso8601() {
   return std::string(text, n);
 }
 
-WriteOutcome record(const fs::path& db_file, const StoredResult& r) {
-  check_storable(r);
-  const Database db(db_file, Database::Mode::ReadWriteCreate);
-  {
-    // Refuse another program's database or a later schema before changing anything, even the journal mode.
-    Transaction look(db, /*immediate=*/false);
-    (void)check_schema(db);
-    look.commit();
-  }
-  use_wal(db);
-  db.exec("PRAGMA foreign_keys = ON", "enabling foreign keys");
-  Transaction transaction(db, /*immediate=*/true);
-  if (!check_schema(db)) db.exec(kCreateSchema, "creating the history tables");
-
-  std::optional<sqlite3_int64> existing;
-  {
-    Statement find(db, "SELECT id FROM results WHERE input_hash = ?1", "looking up the input hash");
-    find.bind(1, r.input_hash);
-    if (find.step()) existing = find.integer(0);
-  }
-  const std::string recorded_at = r.recorded_at.empty() ? utc_now_iso8601() : r.recorded_at;
-  auto bind_fields = [&](Statement& s) {
-    s.bind(1, r.input_hash);
-    s.bind(2, r.sample_id);
-    s.bind(3, r.product);
-    s.bind(4, r.rig);
-    s.bind(5, r.law);
-    s.bind(6, r.verdict);
-    s.bind(7, r.software_version);
-    s.bind(8, recorded_at);
-    s.bind(9, r.result_json);
-  };
-  sqlite3_int64 id = 0;
-  if (existing) {
-    id = *existing;
-    Statement update(db,
-                     "UPDATE results SET input_hash = ?1, sample_id = ?2, product = ?3, rig = ?4, law = ?5, "
-                     "verdict = ?6, software_version = ?7, recorded_at = ?8, result_json = ?9 WHERE id = ?10",
-                     "replacing the earlier result of the same inputs");
-    bind_fields(update);
-    update.bind(10, id);
-    update.run();
-    Statement remove(db, "DELETE FROM parameters WHERE result_id = ?1", "removing the earlier result's parameters");
-    remove.bind(1, id);
-    remove.run();
-  } else {
-    Statement insert(db,
-                     "INSERT INTO results (input_hash, sample_id, product, rig, law, verdict, software_version, "
-                     "recorded_at, result_json) VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9)",
-                     "adding the result");
-    bind_fields(insert);
-    insert.run();
-    id = sqlite3_last_insert_rowid(db.get());
-  }
-  Statement parameter(db,
-                      "INSERT INTO parameters (result_id, position, name, value, low, high, unit) "
-                      "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7)",
-                      "adding the result's parameters");
-  sqlite3_int64 position = 0;
-  for (const auto& [name, value, low, high, unit] : r.parameters) {
-    parameter.bind(1, id);
-    parameter.bind(2, position++);
-    parameter.bind(3, name);
-    parameter.bind(4, value);
-    parameter.bind(5, low);
-    parameter.bind(6, high);
-    parameter.bind(7, unit);
-    parameter.run();
-    parameter.reset();
-  }
-  transaction.commit();
-  return existing ? WriteOutcome::Updated : WriteOutcome::Inserted;
-}
-
-std::vector<StoredResult> load(const fs::path& db_file, const std::string& product) {
-  const Database db(db_file, Database::Mode::ReadOnly);
-  Transaction snapshot(db, /*immediate=*/false);
-  std::vector<StoredResult> out;
-  if (!check_schema(db)) return out;  // an empty file: no history yet
-  const bool all = product.empty();
-  const std::string filter = all ? "" : " WHERE r.product = ?1";
-  std::map<sqlite3_int64, std::size_t> index;
-  {
-    Statement rows(db,
-                   "SELECT r.id, r.sample_id, r.product, r.rig, r.law, r.verdict, r.input_hash, r.software_version, "
-                   "r.recorded_at, r.result_json FROM results r" + filter + " ORDER BY r.id",
-                   "reading the results");
-    if (!all) rows.bind(1, product);
-    while (rows.step()) {
-      StoredResult s;
-      s.sample_id = rows.text(1);
-      s.product = rows.text(2);
-      s.rig = rows.text(3);
-      s.law = rows.text(4);
-      s.verdict = rows.text(5);
-      s.input_hash = rows.text(6);
-      s.software_version = rows.text(7);
-      s.recorded_at = rows.text(8);
-      s.result_json = rows.text(9);
-      index[rows.integer(0)] = out.size();
-      out.push_back(std::move(s));
-    }
-  }
-  Statement params(db,
-                   "SELECT p.result_id, p.name, p.value, p.low, p.high, p.unit FROM parameters p "
-                   "JOIN results r ON r.id = p.result_id" + filter + " ORDER BY p.result_id, p.position",
-                   "reading the parameters");
-  if (!all) params.bind(1, product);
-  while (params.step()) {
-    const auto it = index.find(params.integer(0));
-    if (it == index.end()) continue;  // cannot happen inside one snapshot; never attach to the wrong result
-    out[it->second].parameters.emplace_back(params.text(1), params.real(2), params.real(3), params.real(4),
-                                            params.text(5));
-  }
-  snapshot.commit();
-  return out;
-}
-
-std::vector<std::string> products(const fs::path& db_file) {
-  const Database db(db_file, Database::Mode::ReadOnly);
-  Transaction snapshot(db, /*immediate=*/false);
-  std::vector<std::string> out;
-  if (!check_schema(db)) return out;
-  Statement s(db, "SELECT DISTINCT product FROM results ORDER BY product", "listing the products");
-  while (s.step()) out.push_back(s.text(0));
-  snapshot.commit();
-  return out;
-}
-
 StoredResult stored_result(const FitOutcome& o) {
   if (o.tests.empty()) throw std::invalid_argument("stored_result: the outcome has no tests");
   StoredResult s;
   s.sample_id = o.tests.front().sample_id;
-  for (const auto& t : o.tests)
+  for (const auto& t : o.tests) {
     if (s.product.empty()) s.product = t.product;
+    if (s.site.empty()) s.site = t.site;
+    if (s.tested.empty()) s.tested = t.tested;
+  }
+  if (s.site.empty()) s.site = default_site();
   for (const auto& t : o.tests) {
     if (!s.rig.empty()) s.rig.push_back('+');
     s.rig.append(io::rig_kind_name(t.setup.rig));

@@ -6,6 +6,7 @@
 #include <cctype>
 #include <cstdio>
 #include <cmath>
+#include <cstdlib>
 #include <numbers>
 #include <set>
 #include <string_view>
@@ -14,6 +15,7 @@
 
 #include "models/forward.hpp"
 #include "src/io/input_error.hpp"
+#include "src/io/test_time.hpp"
 #include "src/io/units.hpp"
 
 namespace spreadfit::io {
@@ -30,7 +32,7 @@ constexpr double kTemperatureMax = kCelsiusZero + 150.0;
 using Names = std::vector<std::string_view>;
 
 const Names kTables{"sample", "rig", "readings", "fit", "spec", "capture"};
-const Names kSampleKeys{"id", "product", "density", "temperature"};
+const Names kSampleKeys{"id", "product", "density", "temperature", "site", "tested"};
 const Names kRigKinds{"channel", "plate", "squeeze", "slump"};
 const Names kChannelKeys{"kind", "width", "reservoir_length", "volume", "fill_height", "side_wall_drag"};
 const Names kPlateKeys{"kind", "ring_radius", "volume", "fill_height"};
@@ -118,6 +120,8 @@ class DescriptionReader {
   std::string as_written(const toml::node& node) const;
 
   void read_sample(const toml::table& root, TestDescription& out) const;
+  /// [sample] tested in canonical form (test_time.hpp), from a string or a TOML date / date-time.
+  std::string tested_time(const toml::node& node) const;
   Rig read_rig(const toml::table& root) const;
   void read_readings(const toml::table& root, TestDescription& out) const;
   void read_fit(const toml::table& root, TestDescription& out) const;
@@ -242,6 +246,30 @@ double DescriptionReader::quantity(const toml::node& node, const std::string& fi
   }
 }
 
+std::string DescriptionReader::tested_time(const toml::node& node) const {
+  std::string written;
+  if (const auto* s = node.as_string()) {
+    written = s->get();
+  } else if (const auto* d = node.as_date()) {  // a TOML date, tested = 2026-04-12
+    written = fmt::format("{:04}-{:02}-{:02}", d->get().year, d->get().month, d->get().day);
+  } else if (const auto* dt = node.as_date_time()) {  // a TOML date-time, tested = 2026-04-12T10:30:00
+    const toml::date_time& v = dt->get();
+    written = fmt::format("{:04}-{:02}-{:02}T{:02}:{:02}:{:02}", v.date.year, v.date.month, v.date.day, v.time.hour,
+                          v.time.minute, v.time.second);
+    if (v.offset) {
+      const int m = v.offset->minutes;
+      written += m == 0 ? std::string("Z") : fmt::format("{}{:02}:{:02}", m < 0 ? '-' : '+', std::abs(m) / 60, std::abs(m) % 60);
+    }
+  } else {
+    fail(line_of(node), "sample.tested",
+         "expected a date or date-time such as \"2026-04-12T10:30\", got " + std::string(type_name(node)));
+  }
+  std::string why;
+  const std::optional<std::string> canonical = canonical_test_time(written, why);
+  if (!canonical) fail(line_of(node), "sample.tested", fmt::format("'{}': {}", written, why));
+  return *canonical;
+}
+
 void DescriptionReader::read_sample(const toml::table& root, TestDescription& out) const {
   const toml::table* sample = table(root, "sample");
   if (!sample) fail(0, "sample", "missing table [sample] (expected at least id and density)");
@@ -249,6 +277,12 @@ void DescriptionReader::read_sample(const toml::table& root, TestDescription& ou
 
   out.sample_id = text(required(*sample, "sample", "id", "the sample's id, such as \"TS12-0412\""), "sample.id");
   if (const toml::node* p = sample->get("product")) out.product = text(*p, "sample.product");
+  if (const toml::node* p = sample->get("site")) {
+    out.site = text(*p, "sample.site");
+    if (out.site.find_first_of("\r\n\t") != std::string::npos)
+      fail(line_of(*p), "sample.site", "the site code holds a line break or tab (expected a short code such as \"RH\")");
+  }
+  if (const toml::node* p = sample->get("tested")) out.tested = tested_time(*p);
 
   const toml::node& density = required(*sample, "sample", "density", expected_quantity(Dimension::Density));
   out.density = quantity(density, "sample.density", Dimension::Density, Range::Positive);

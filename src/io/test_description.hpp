@@ -1,7 +1,8 @@
 // Test description: one TOML file per bench test (interface.md "Test description"), read into SI units and
 // checked before any physics runs.
 //
-//   [sample]   id (required), product, density (required), temperature
+//   [sample]   id (required), product, density (required), temperature, site (the lab or plant, for a shared
+//              history), tested (when the test was run: a date or date-time, test_time.hpp)
 //   [rig]      kind = channel | plate | squeeze | slump, and the rig's fields:
 //                channel: width, reservoir_length, volume or fill_height, side_wall_drag (default true)
 //                plate:   ring_radius, volume or fill_height
@@ -93,6 +94,8 @@ struct LoadOptions {
 struct TestDescription {
   std::filesystem::path path;  ///< the TOML file as given
   std::string sample_id, product;  ///< product empty when not given
+  std::string site;                ///< [sample] site, the lab or plant; empty when not given
+  std::string tested;              ///< [sample] tested in canonical form (test_time.hpp); empty when not given
   double density = 0;                     ///< [kg/m^3]
   std::optional<double> temperature;      ///< [K]
   TestSetup setup;                        ///< rig + density + reading kind

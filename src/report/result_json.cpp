@@ -43,6 +43,8 @@ nlohmann::json result_json(const FitOutcome& o) {
   json j;
   j["sample"] = {{"id", first.sample_id}, {"density_kg_m3", first.density}};
   if (!first.product.empty()) j["sample"]["product"] = first.product;
+  if (!first.site.empty()) j["sample"]["site"] = first.site;
+  if (!first.tested.empty()) j["sample"]["tested"] = first.tested;
   if (first.temperature) j["sample"]["temperature_K"] = *first.temperature;
   if (o.tests.size() == 1) {
     j["rig"] = rig_json(first);

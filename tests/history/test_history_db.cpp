@@ -380,7 +380,7 @@ TEST_CASE("files that are not a spreadfit history are refused with an error nami
     sqlite3_close(c);
     const auto e = input_error_of([&] { (void)spreadfit::history::load(file, ""); });
     CHECK(e.message() ==
-          "the history was written by a later spreadfit (schema version 99; this version reads up to 1); use that "
+          "the history was written by a later spreadfit (schema version 99; this version reads up to 2); use that "
           "version or a later one");
   }
   SUBCASE("a missing file is not created by reading") {
@@ -469,7 +469,7 @@ TEST_CASE("the history command lists each product's results and says which batch
   std::ostringstream out, err;
 
   SUBCASE("table") {
-    CHECK(spreadfit::cli::run_history_command(db, "HX1", std::nullopt, false, out, err) == 0);
+    CHECK(spreadfit::cli::run_history_command(spreadfit::cli::HistoryCommandOptions{db, "HX1", "", std::nullopt, false, std::nullopt}, out, err) == 0);
     const std::string text = out.str();
     INFO(text);
     CHECK(text.rfind("Product HX1: 10 results\n", 0) == 0);
@@ -484,33 +484,33 @@ TEST_CASE("the history command lists each product's results and says which batch
     CHECK(err.str().empty());
   }
   SUBCASE("every product, sorted") {
-    CHECK(spreadfit::cli::run_history_command(db, "", std::nullopt, false, out, err) == 0);
+    CHECK(spreadfit::cli::run_history_command(spreadfit::cli::HistoryCommandOptions{db, "", "", std::nullopt, false, std::nullopt}, out, err) == 0);
     const std::string text = out.str();
     CHECK(text.find("Product HX1: 10 results") < text.find("Product HX2: 1 result\n"));
     CHECK(text.find("yield_stress [Pa]: 1 value; a chart needs at least 2") != std::string::npos);
   }
   SUBCASE("CSV: one row per result, units in the header, numbers that read back exactly") {
-    CHECK(spreadfit::cli::run_history_command(db, "", std::nullopt, true, out, err) == 0);
+    CHECK(spreadfit::cli::run_history_command(spreadfit::cli::HistoryCommandOptions{db, "", "", std::nullopt, true, std::nullopt}, out, err) == 0);
     std::istringstream lines(out.str());
     std::string header, line;
     std::getline(lines, header);
     CHECK(header ==
           "sample,product,recorded_at,rig,model,verdict,yield_stress [Pa],yield_stress low [Pa],yield_stress high "
           "[Pa],consistency [Pa.s^n],consistency low [Pa.s^n],consistency high [Pa.s^n],flow_index [-],flow_index "
-          "low [-],flow_index high [-],software_version,input_hash");
+          "low [-],flow_index high [-],software_version,input_hash,site,tested");
     std::vector<std::string> rows;
     while (std::getline(lines, line)) rows.push_back(line);
     REQUIRE(rows.size() == 11);
     CHECK(rows.back().rfind("T1,HX2,2025-01-02T03:04:05Z,channel,herschel-bulkley,pass,11,9.5,12.5,3.25,", 0) == 0);
-    CHECK(rows.back().substr(rows.back().size() - 64) == sample_result("T1", "HX2", 11.0).input_hash);
+    CHECK(rows.back().substr(rows.back().size() - 66, 64) == sample_result("T1", "HX2", 11.0).input_hash);
   }
   SUBCASE("a product without results is said, not an error") {
-    CHECK(spreadfit::cli::run_history_command(db, "ZZ9", std::nullopt, false, out, err) == 0);
+    CHECK(spreadfit::cli::run_history_command(spreadfit::cli::HistoryCommandOptions{db, "ZZ9", "", std::nullopt, false, std::nullopt}, out, err) == 0);
     CHECK(out.str() == db.string() + ": no results for product ZZ9 (products in the history: HX1, HX2)\n");
   }
   SUBCASE("a chart of a history of several products needs --product") {
     const auto e = input_error_of([&] {
-      spreadfit::cli::run_history_command(db, "", dir.path() / "chart.svg", false, out, err);
+      spreadfit::cli::run_history_command(spreadfit::cli::HistoryCommandOptions{db, "", "", dir.path() / "chart.svg", false, std::nullopt}, out, err);
     });
     CHECK(e.field() == "--chart");
     CHECK(e.message() ==
@@ -519,7 +519,7 @@ TEST_CASE("the history command lists each product's results and says which batch
   }
   SUBCASE("a chart of one product's yield stress, with the flagged batch marked") {
     const fs::path svg = dir.path() / "chart.svg";
-    CHECK(spreadfit::cli::run_history_command(db, "HX1", svg, false, out, err) == 0);
+    CHECK(spreadfit::cli::run_history_command(spreadfit::cli::HistoryCommandOptions{db, "HX1", "", svg, false, std::nullopt}, out, err) == 0);
     CHECK(out.str().find("chart: " + svg.string() + " (yield_stress of product HX1, 10 results)\n") !=
           std::string::npos);
     std::ifstream in(svg, std::ios::binary);
@@ -530,7 +530,7 @@ TEST_CASE("the history command lists each product's results and says which batch
   }
   SUBCASE("a missing database is an error naming it") {
     const auto e = input_error_of([&] {
-      spreadfit::cli::run_history_command(dir.path() / "nope.db", "", std::nullopt, false, out, err);
+      spreadfit::cli::run_history_command(spreadfit::cli::HistoryCommandOptions{dir.path() / "nope.db", "", "", std::nullopt, false, std::nullopt}, out, err);
     });
     CHECK(e.file() == (dir.path() / "nope.db").string());
   }
