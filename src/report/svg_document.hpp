@@ -75,8 +75,9 @@ class LinearScale {
  public:
   /// Data range [lo, hi] onto pixels [pixel_lo, pixel_hi] (pixel_hi < pixel_lo for a y axis, which grows upward).
   /// About `target_ticks` ticks. A zero-width or inverted range is widened around its value; non-finite ends
-  /// give the range [0, 1].
-  LinearScale(double lo, double hi, double pixel_lo, double pixel_hi, int target_ticks = 6);
+  /// give the range [0, 1]. With `widen` false the domain stays [lo, hi] and only the ticks inside it are kept
+  /// (an axis that starts where the data start, e.g. a time axis from a release before the clock's zero).
+  LinearScale(double lo, double hi, double pixel_lo, double pixel_hi, int target_ticks = 6, bool widen = true);
 
   double operator()(double value) const;
   const std::vector<double>& ticks() const { return ticks_; }
@@ -159,6 +160,15 @@ inline constexpr const char* frame = "#9aa1a9";
 /// then the finished document.
 std::string finish_with_caution(Document& doc, std::string_view caution, double y, double page_width, double margin,
                                 std::string_view footer_colour);
+
+/// A unit as a reader writes it: the interface's ASCII symbols with a middle dot for the product and superscripts
+/// for powers, "Pa.s^n" -> "Pa\u00b7s\u207f", "Pa.s" -> "Pa\u00b7s", "m^3" -> "m\u00b3", "Pa s" -> "Pa\u00b7s". Other text
+/// passes unchanged.
+std::string unit_text(std::string_view unit);
+
+/// Opens a group whose drawing is clipped to the rectangle [left, right] x [top, bottom]: a <clipPath> with the
+/// id `id` (unique in the document), then <g clip-path="url(#id)">; close it with Document::close().
+void open_clipped_group(Document& doc, std::string_view id, double left, double top, double right, double bottom);
 
 /// Approximate width [px] of `text` in the generic sans-serif face at `font_size` px (0.56 em a character on
 /// average, a little generous so that layouts built on it do not overlap).
