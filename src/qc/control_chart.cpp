@@ -80,7 +80,8 @@ bool log_scale_suits(const std::string& parameter, const std::vector<double>& va
     return false;
   }
   if (parameter == "viscosity" || parameter == "consistency") {
-    why = "log scale: a " + parameter + " varies by factors (it is fitted as its logarithm), so the limits are "
+    why = "log scale: a " + parameter +
+          " varies by factors (it is fitted as its logarithm), so the limits are "
           "set on the logarithms and stay positive";
     return true;
   }

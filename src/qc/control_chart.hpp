@@ -19,24 +19,25 @@
 namespace spreadfit {
 
 struct LeftOutBatch {
-  std::string label;       ///< batch / sample id
-  std::string reason;      ///< plain words, e.g. "power-law gives no yield_stress"
+  std::string label;         ///< batch / sample id
+  std::string reason;        ///< plain words, e.g. "power-law gives no yield_stress"
   std::size_t position = 0;  ///< place among all batches (charted and left out) in time order, from 0
 };
 
 struct ControlChart {
-  std::string parameter;             ///< e.g. yield_stress
-  std::string unit;                  ///< e.g. Pa
-  std::vector<std::string> labels;   ///< charted batch / sample ids, in time order
+  std::string parameter;            ///< e.g. yield_stress
+  std::string unit;                 ///< e.g. Pa
+  std::vector<std::string> labels;  ///< charted batch / sample ids, in time order
   std::vector<double> values;
-  double centre = 0, lower = 0, upper = 0;  ///< centre line and control limits (lower may be negative on a linear scale)
-  double mean_moving_range = 0;      ///< in the value's unit; on a log scale, of the natural logarithms
-  std::vector<bool> beyond_limits;   ///< per point
-  std::vector<bool> in_run;          ///< per point: part of a run of `run_length` on one side
+  double centre = 0, lower = 0,
+         upper = 0;                 ///< centre line and control limits (lower may be negative on a linear scale)
+  double mean_moving_range = 0;     ///< in the value's unit; on a log scale, of the natural logarithms
+  std::vector<bool> beyond_limits;  ///< per point
+  std::vector<bool> in_run;         ///< per point: part of a run of `run_length` on one side
   int run_length = 8;
-  bool log_scale = false;            ///< computed on the logarithms (and drawn on a log axis)
-  std::string scale_reason;          ///< why this scale, in plain words (set by the caller; may be empty)
-  std::vector<LeftOutBatch> left_out;  ///< batches not charted, with their place in the order
+  bool log_scale = false;                     ///< computed on the logarithms (and drawn on a log axis)
+  std::string scale_reason;                   ///< why this scale, in plain words (set by the caller; may be empty)
+  std::vector<LeftOutBatch> left_out;         ///< batches not charted, with their place in the order
   std::optional<double> spec_low, spec_high;  ///< the product's spec limits, drawn beside the control limits
   /// Place of charted point i among all batches (charted and left out), in time order.
   std::size_t position(std::size_t i) const;

@@ -71,7 +71,8 @@ void draw_value_axis(Document& doc, const ValueAxis& a, double left, double righ
   double widest = 0;
   for (std::size_t k = 0; k < a.ticks.size(); ++k) {
     const double py = a.pixel(a.ticks[k]);
-    doc.add("line", {{"x1", left}, {"y1", py}, {"x2", right}, {"y2", py}, {"stroke", "#e3e6ea"}, {"stroke-width", 1.0}});
+    doc.add("line",
+            {{"x1", left}, {"y1", py}, {"x2", right}, {"y2", py}, {"stroke", "#e3e6ea"}, {"stroke-width", 1.0}});
     doc.add_text("text",
                  {{"class", "value-tick"},
                   {"x", left - 7},
@@ -174,10 +175,12 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
     plain += !flag(chart.beyond_limits, i) && !flag(chart.in_run, i);
   }
   const std::string limits_rule =
-      chart.log_scale ? fmt::format("geometric mean \u00d7/\u00f7 exp(2.66 \u00d7 mean moving range of the logarithms, "
-                                    "{:.3g})",
-                                    chart.mean_moving_range)
-                      : fmt::format("mean \u00b1 2.66 \u00d7 mean moving range {:.3g}{}", chart.mean_moving_range, unit);
+      chart.log_scale
+          ? fmt::format(
+                "geometric mean \u00d7/\u00f7 exp(2.66 \u00d7 mean moving range of the logarithms, "
+                "{:.3g})",
+                chart.mean_moving_range)
+          : fmt::format("mean \u00b1 2.66 \u00d7 mean moving range {:.3g}{}", chart.mean_moving_range, unit);
   std::string summary = fmt::format(
       "Individuals chart of {}{}, {} batches in time order, {} charted. Centre line {:.4g}{}; control limits {:.4g} "
       "to {:.4g}{} ({}).",
@@ -200,9 +203,9 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
   for (const LeftOutBatch& b : chart.left_out) {
     const std::string note = fmt::format("Not charted, not in the limits: {} ({}).", b.label, b.reason);
     for (const auto& line : svg::wrap(note, text_width, 12)) {
-      doc.add_text("text",
-                   {{"class", "left-out-note"}, {"x", page_margin}, {"y", y}, {"font-size", 12.0}, {"fill", amber_text}},
-                   line);
+      doc.add_text(
+          "text", {{"class", "left-out-note"}, {"x", page_margin}, {"y", y}, {"font-size", 12.0}, {"fill", amber_text}},
+          line);
       y += 17;
     }
   }
@@ -238,9 +241,13 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
                          {"y1", cy},
                          {"x2", x + 20},
                          {"y2", cy},
-                         {"stroke", e.kind == 3 ? centre_colour : e.kind == 5 ? spec_colour : beyond_colour},
+                         {"stroke", e.kind == 3   ? centre_colour
+                                    : e.kind == 5 ? spec_colour
+                                                  : beyond_colour},
                          {"stroke-width", 1.6},
-                         {"stroke-dasharray", e.kind == 3 ? "none" : e.kind == 5 ? "2 3" : "6 4"}});
+                         {"stroke-dasharray", e.kind == 3   ? "none"
+                                              : e.kind == 5 ? "2 3"
+                                                            : "6 4"}});
       }
       doc.add_text("text", {{"x", x + 26}, {"y", cy + 4}, {"font-size", 12.0}, {"fill", ink}}, e.text);
       x += w;
@@ -287,9 +294,9 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
                      {"width", plot_right - plot_left},
                      {"height", bottom - value.pixel(chart.lower)},
                      {"fill", "#fbeceb"}});
-  draw_value_axis(doc, value, plot_left, plot_right,
-                  (chart.unit.empty() ? parameter : parameter + " [" + unit_symbol + "]") +
-                      (chart.log_scale ? ", log scale" : ""));
+  draw_value_axis(
+      doc, value, plot_left, plot_right,
+      (chart.unit.empty() ? parameter : parameter + " [" + unit_symbol + "]") + (chart.log_scale ? ", log scale" : ""));
 
   // Centre line, control limits and spec limits, labelled at the right (labels pushed apart when close).
   struct Level {

@@ -24,15 +24,15 @@ using svg::LinearScale;
 using svg::Shape;
 
 constexpr double page_width = 900;
-constexpr double page_margin = 20;  // header and footer left/right margin
-constexpr double plot_left = 88;    // plot area, x
+constexpr double page_margin = 20;              // header and footer left/right margin
+constexpr double plot_left = 88;                // plot area, x
 constexpr double plot_right = page_width - 44;  // room for the +/-2 sigma labels right of the residual panel
 constexpr double reading_panel_height = 270;
 constexpr double residual_panel_height = 120;
 constexpr double badge_width = 104;
-constexpr int dense_points = 81;  // fitted curve: times from the fitted release to the last reading
+constexpr int dense_points = 81;           // fitted curve: times from the fitted release to the last reading
 constexpr double final_panel_height = 64;  // a final-only test's reading on its scale
-constexpr int band_draws = 200;   // parameter draws for the 95% band
+constexpr int band_draws = 200;            // parameter draws for the 95% band
 
 using svg::frame;
 using svg::ink;
@@ -55,12 +55,12 @@ struct View {
   const FitSeries* series = nullptr;
   std::string name;
   Look look{};
-  double sigma = 0;         // error bar half-length [m]; 0: none
+  double sigma = 0;           // error bar half-length [m]; 0: none
   bool sigma_stated = false;  // the bars are the stated resolution (else the fit's scatter)
-  double release = 0;       // fitted release time [s] on the series' clock (0 when not fitted)
-  std::string unit;         // the reading unit as the readings file wrote it; empty when not known
-  int rig = 0;              // Rig variant index: series of different rigs get panels of their own
-  PredictionBand curve;  // dense best fit and band; empty when there is no fit
+  double release = 0;         // fitted release time [s] on the series' clock (0 when not fitted)
+  std::string unit;           // the reading unit as the readings file wrote it; empty when not known
+  int rig = 0;                // Rig variant index: series of different rigs get panels of their own
+  PredictionBand curve;       // dense best fit and band; empty when there is no fit
   bool has_curve = false, has_band = false;
   std::vector<double> fitted;  // best fit at the reading times; empty when not available
 };
@@ -240,7 +240,11 @@ double final_reading_panels(Document& doc, const FitOutcome& outcome, double y) 
                 {{"class", "final-reading"}, {"fill", looks[0].colour}, {"stroke", "#ffffff"}, {"stroke-width", 1.0}},
                 fmt::format("measured {}: {:.4g} {}", what, measured * scale, unit));
     doc.add_text("text",
-                 {{"x", x}, {"y", mid - 12}, {"font-size", 12.0}, {"fill", ink}, {"text-anchor", "middle"},
+                 {{"x", x},
+                  {"y", mid - 12},
+                  {"font-size", 12.0},
+                  {"fill", ink},
+                  {"text-anchor", "middle"},
                   {"font-weight", "bold"}},
                  fmt::format("{:.4g} {}", measured * scale, unit));
     svg::plot_frame(doc, plot_left, top, plot_right, bottom);
@@ -392,7 +396,7 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
   }
   if (r && !views.empty()) {
     std::string line = views.size() > 1 ? "best fit from the fitted release (colour of its series)"
-                                         : "best fit from the fitted release";
+                                        : "best fit from the fitted release";
     const bool before_clock = std::any_of(views.begin(), views.end(), [](const View& v) { return v.release < 0; });
     if (before_clock) line += "; dotted: the clock's zero";
     entries.push_back({Entry::Line, views.front().look, line});
@@ -518,7 +522,7 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
                            {"stroke-width", 2.2},
                            {"stroke-linejoin", "round"}});
     }
-    doc.close();  // the clipped group
+    doc.close();          // the clipped group
     if (r && p.t_lo < 0)  // the clock started after the release: mark where it started
       doc.add("line", {{"class", "clock-start"},
                        {"x1", time(0)},
@@ -615,11 +619,11 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
     y += 30;
   }
   y = final_reading_panels(doc, outcome, y);
-  const bool any_final =
-      std::any_of(outcome.tests.begin(), outcome.tests.end(), [](const auto& t) { return t.final_reading.has_value(); });
+  const bool any_final = std::any_of(outcome.tests.begin(), outcome.tests.end(),
+                                     [](const auto& t) { return t.final_reading.has_value(); });
   if (panels.empty() && !any_final) {
-    const std::string note = r ? "No reading series to plot: see the parameters above."
-                               : "NO RESULT \u2014 and no reading series to plot.";
+    const std::string note =
+        r ? "No reading series to plot: see the parameters above." : "NO RESULT \u2014 and no reading series to plot.";
     doc.add_text("text",
                  {{"class", r ? "note" : "no-result"},
                   {"x", page_margin},

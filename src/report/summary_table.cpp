@@ -69,11 +69,10 @@ std::vector<std::string> time_origin_labels(const FitOutcome& o) {
       files.push_back(name.empty() ? series.source : name);
     }
   const FitResult* r = o.result();
-  const std::size_t origins = r ? std::size_t(std::count_if(r->parameters.begin(), r->parameters.end(),
-                                                            [](const ParameterEstimate& p) {
-                                                              return p.name == "time_origin";
-                                                            }))
-                                : 0;
+  const std::size_t origins =
+      r ? std::size_t(std::count_if(r->parameters.begin(), r->parameters.end(),
+                                    [](const ParameterEstimate& p) { return p.name == "time_origin"; }))
+        : 0;
   std::vector<std::string> labels;
   for (std::size_t k = 0; k < origins; ++k)
     labels.push_back(origins > 1 && k < files.size() ? fmt::format("time_origin ({})", files[k])

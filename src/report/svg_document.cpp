@@ -254,9 +254,9 @@ LogScale::LogScale(double lo, double hi, double pixel_lo, double pixel_hi, int t
   ticks_ = decade_ticks({1.0});
   if (int(ticks_.size()) >= target_ticks) return;
   ticks_ = decade_ticks({1.0, 2.0, 5.0});
-  if (ticks_.size() >= 3) return;
+  if (int(ticks_.size()) >= std::min(target_ticks, 4)) return;
   ticks_.clear();
-  const LinearScale linear(lo, hi, 0, 1, 4);
+  const LinearScale linear(lo, hi, 0, 1, target_ticks);
   for (double t : linear.ticks())
     if (inside(t)) ticks_.push_back(t);
 }
@@ -409,9 +409,15 @@ std::string unit_text(std::string_view unit) {
     } else if (c == '^' && i + 1 < unit.size()) {
       const char power = unit[++i];
       switch (power) {
-        case 'n': out += "\u207f"; break;
-        case '2': out += "\u00b2"; break;
-        case '3': out += "\u00b3"; break;
+        case 'n':
+          out += "\u207f";
+          break;
+        case '2':
+          out += "\u00b2";
+          break;
+        case '3':
+          out += "\u00b3";
+          break;
         case '-':
           if (i + 1 < unit.size() && unit[i + 1] == '1') {
             out += "\u207b\u00b9";

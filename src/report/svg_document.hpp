@@ -94,9 +94,10 @@ class LinearScale {
 
 /// A logarithmic map from positive data values to pixels over exactly [lo, hi] (not widened: a contour map's
 /// plot area is its grid), with ticks at 1, 2 and 5 times powers of ten inside the range, or at powers of ten only
-/// when those alone give `target_ticks` or more. A range too narrow for three such ticks (less than about a factor
-/// of 2.5) gets the round linear ticks of LinearScale inside it instead. A non-positive or non-finite end gives
-/// the range [1, 10]; a zero-width range is widened by 10% each way.
+/// when those alone give `target_ticks` or more. A range with fewer than four 1-2-5 ticks (or `target_ticks`, when
+/// less; e.g. 13 to 45, which holds only 20) gets the round linear ticks of LinearScale for `target_ticks` inside
+/// it instead (15, 20, ..., 45), so that a short log axis still reads at a glance. A non-positive or non-finite end
+/// gives the range [1, 10]; a zero-width range is widened by 10% each way.
 class LogScale {
  public:
   LogScale(double lo, double hi, double pixel_lo, double pixel_hi, int target_ticks = 6);
@@ -162,8 +163,8 @@ std::string finish_with_caution(Document& doc, std::string_view caution, double 
                                 std::string_view footer_colour);
 
 /// A unit as a reader writes it: the interface's ASCII symbols with a middle dot for the product and superscripts
-/// for powers, "Pa.s^n" -> "Pa\u00b7s\u207f", "Pa.s" -> "Pa\u00b7s", "m^3" -> "m\u00b3", "Pa s" -> "Pa\u00b7s". Other text
-/// passes unchanged.
+/// for powers, "Pa.s^n" -> "Pa\u00b7s\u207f", "Pa.s" -> "Pa\u00b7s", "m^3" -> "m\u00b3", "Pa s" -> "Pa\u00b7s". Other
+/// text passes unchanged.
 std::string unit_text(std::string_view unit);
 
 /// Opens a group whose drawing is clipped to the rectangle [left, right] x [top, bottom]: a <clipPath> with the
