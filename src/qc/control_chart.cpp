@@ -58,9 +58,14 @@ ControlChart individuals_chart(std::string parameter, std::string unit, std::vec
   c.upper = log_scale ? std::exp(l.upper) : l.upper;
   c.beyond_limits.resize(x.size());
   c.in_run.assign(x.size(), false);
-  for (std::size_t i = 0; i < x.size(); ++i) c.beyond_limits[i] = x[i] < l.lower || x[i] > l.upper;
+  // Comparisons allow for rounding: equal values must not fall outside limits that collapsed onto them (a mean of
+  // identical logarithms can differ from each in the last bit).
+  double level = 0;
+  for (double v : x) level = std::max(level, std::abs(v));
+  const double slack = 1e-12 * std::max(1.0, level);
+  for (std::size_t i = 0; i < x.size(); ++i) c.beyond_limits[i] = x[i] < l.lower - slack || x[i] > l.upper + slack;
   // Runs: consecutive points strictly on one side of the centre line.
-  auto side = [&](std::size_t k) { return x[k] > l.centre ? 1 : (x[k] < l.centre ? -1 : 0); };
+  auto side = [&](std::size_t k) { return x[k] > l.centre + slack ? 1 : (x[k] < l.centre - slack ? -1 : 0); };
   std::size_t start = 0;
   for (std::size_t i = 1; i <= x.size(); ++i) {
     if (i == x.size() || side(i) != side(start) || side(i) == 0) {
