@@ -4,10 +4,13 @@
 #include <fmt/ranges.h>
 
 #include <algorithm>
+#include <cctype>
 #include <cmath>
 #include <iterator>
 #include <optional>
 #include <vector>
+
+#include <nlohmann/json.hpp>
 
 #include "src/cli/exit_codes.hpp"
 #include "src/history/history_location.hpp"
@@ -83,18 +86,58 @@ std::vector<const StoredResult*> of_product(const std::vector<StoredResult>& row
 
 std::string product_label(const std::string& product) { return product.empty() ? kNoProduct : product; }
 
-/// The individuals chart of one parameter over `rows` (results with a finite value only), or nullopt when fewer
-/// than two results have one.
+/// Why a result's value of `name` cannot be charted, or empty when it can: the fit failed, its law has no such
+/// parameter, the value is not a number, or the readings left it undetermined (result JSON "identifiable").
+std::string not_chartable(const StoredResult& r, const std::string& name) {
+  if (r.law.empty()) return "the fit failed";
+  const Parameter* p = find_parameter(r, name);
+  if (!p) return fmt::format("{} gives no {}", r.law, name);
+  if (!std::isfinite(std::get<1>(*p))) return "no value";
+  const nlohmann::json j = nlohmann::json::parse(r.result_json, nullptr, false);
+  if (!j.is_discarded() && j.contains("parameters") && j["parameters"].contains(name) &&
+      j["parameters"][name].value("identifiable", true) == false)
+    return "undetermined by its readings";
+  return {};
+}
+
+/// The spec limits of `name` in the latest result that was judged on it (result JSON verdict checks).
+void spec_limits(const std::vector<const StoredResult*>& rows, const std::string& name, ControlChart& chart) {
+  for (auto it = rows.rbegin(); it != rows.rend(); ++it) {
+    const nlohmann::json j = nlohmann::json::parse((*it)->result_json, nullptr, false);
+    if (j.is_discarded() || !j.contains("verdict") || !j["verdict"].contains("checks")) continue;
+    for (const auto& c : j["verdict"]["checks"])
+      if (c.value("parameter", "") == name && c.contains("low") && c.contains("high") && c["low"].is_number() &&
+          c["high"].is_number()) {
+        chart.spec_low = c["low"].get<double>();
+        chart.spec_high = c["high"].get<double>();
+        return;
+      }
+  }
+}
+
+/// The individuals chart of one parameter over `rows` (results with a determined, finite value; the others are
+/// kept as left out, in their place), or nullopt when fewer than two results have one.
 std::optional<ControlChart> chart_of(const std::vector<const StoredResult*>& rows, const Column& column) {
   std::vector<std::string> labels;
   std::vector<double> values;
-  for (const StoredResult* r : rows)
-    if (const Parameter* p = find_parameter(*r, column.name); p && std::isfinite(std::get<1>(*p))) {
+  std::vector<LeftOutBatch> left_out;
+  for (const StoredResult* r : rows) {
+    const std::string why = not_chartable(*r, column.name);
+    if (why.empty()) {
       labels.push_back(r->sample_id);
-      values.push_back(std::get<1>(*p));
+      values.push_back(std::get<1>(*find_parameter(*r, column.name)));
+    } else {
+      left_out.push_back({r->sample_id, why, labels.size() + left_out.size()});
     }
+  }
   if (values.size() < 2) return std::nullopt;
-  return individuals_chart(column.name, column.unit, std::move(labels), std::move(values));
+  std::string why;
+  const bool log = log_scale_suits(column.name, values, why);
+  ControlChart chart = individuals_chart(column.name, column.unit, std::move(labels), std::move(values), 8, log);
+  chart.scale_reason = why;
+  chart.left_out = std::move(left_out);
+  spec_limits(rows, column.name, chart);
+  return chart;
 }
 
 std::size_t values_of(const std::vector<const StoredResult*>& rows, const std::string& name) {
@@ -205,8 +248,9 @@ std::string product_table(const std::string& product, const std::vector<const St
                          values_of(rows, c.name), values_of(rows, c.name) == 1 ? "" : "s");
         continue;
       }
-      s += fmt::format("    {} [{}]: {} values, centre {:.4g}, limits {:.4g} to {:.4g}: ", c.name, c.unit,
-                       chart->values.size(), chart->centre, chart->lower, chart->upper);
+      s += fmt::format("    {} [{}]: {} values, centre {:.4g}, limits {:.4g} to {:.4g}{}: ", c.name, c.unit,
+                       chart->values.size(), chart->centre, chart->lower, chart->upper,
+                       chart->log_scale ? " (log scale)" : "");
       const std::vector<std::string> said = signals(*chart);
       if (said.empty()) {
         s += "no point beyond the limits and no run on one side\n";
@@ -214,6 +258,8 @@ std::string product_table(const std::string& product, const std::vector<const St
         for (std::size_t k = 0; k < said.size(); ++k) s += (k ? "; " : "") + said[k];
         s += "\n";
       }
+      for (const LeftOutBatch& b : chart->left_out)
+        s += fmt::format("      left out (not in the limits): {}: {}\n", b.label, b.reason);
     }
   }
   return s;
@@ -335,12 +381,15 @@ int run_history_command(const HistoryCommandOptions& o, std::ostream& out, std::
     const ControlChart c = chosen_chart(name, rows, o.product);
     const std::string code = product_label(rows.front().product);  // chosen_chart checked: one product
     const std::string scope = site_scope(of_product(rows, rows.front().product), o.site);
-    const std::string title_name = history::is_server_uri(o.db) ? name : std::filesystem::path(o.db).filename().string();
-    io::write_file_atomically(*o.chart, control_chart_svg(c, fmt::format("Product {}{}: batch history {}", code,
-                                                                         scope.empty() ? "" : ", " + scope,
-                                                                         title_name)));
-    chart_note = fmt::format("chart: {} ({} of product {}{}, {} results)\n", o.chart->string(), c.parameter, code,
-                             scope.empty() ? "" : ", " + scope, c.values.size());
+    std::string title = c.parameter;
+    std::replace(title.begin(), title.end(), '_', ' ');
+    if (!title.empty()) title[0] = char(std::toupper(static_cast<unsigned char>(title[0])));
+    io::write_file_atomically(*o.chart, control_chart_svg(c, fmt::format("{} of product {}{}, {} batches", title,
+                                                                         code, scope.empty() ? "" : ", " + scope,
+                                                                         c.batches())));
+    chart_note = fmt::format("chart: {} ({} of product {}{}, {} results{})\n", o.chart->string(), c.parameter, code,
+                             scope.empty() ? "" : ", " + scope, c.values.size(),
+                             c.left_out.empty() ? std::string() : fmt::format(", {} left out", c.left_out.size()));
   }
   if (o.csv) {
     out << history_csv(rows);

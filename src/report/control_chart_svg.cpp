@@ -3,7 +3,9 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <cctype>
 #include <cmath>
+#include <functional>
 
 #include "src/report/fit_outcome.hpp"
 #include "src/report/svg_document.hpp"
@@ -33,6 +35,65 @@ constexpr const char* normal_colour = "#1f4e9c";
 constexpr const char* beyond_colour = "#c62828";
 constexpr const char* run_colour = "#e08a00";
 constexpr const char* centre_colour = "#2d3b4e";
+constexpr const char* spec_colour = "#6b3fa0";
+constexpr const char* left_out_colour = "#6b7280";
+constexpr const char* amber_text = "#8a5300";
+
+// The value axis: linear (round ticks, widened to them) or logarithmic (1-2-5 ticks inside a padded range).
+struct ValueAxis {
+  std::function<double(double)> pixel;
+  std::vector<double> ticks;
+  std::vector<std::string> labels;
+  double lo = 0, hi = 1;
+};
+
+ValueAxis value_axis(bool log, double lo, double hi, double bottom, double top) {
+  ValueAxis a;
+  if (log) {
+    const double pad = std::pow(hi / lo, 0.06);
+    const svg::LogScale s(lo / pad, hi * pad, bottom, top, 5);
+    a.pixel = [s](double v) { return s(v); };
+    a.ticks = s.ticks();
+    for (double t : a.ticks) a.labels.push_back(s.tick_label(t));
+    a.lo = s.lo(), a.hi = s.hi();
+  } else {
+    const double pad = 0.06 * (hi - lo);
+    const LinearScale s(lo - pad, hi + pad, bottom, top, 6);
+    a.pixel = [s](double v) { return s(v); };
+    a.ticks = s.ticks();
+    for (double t : a.ticks) a.labels.push_back(s.tick_label(t));
+    a.lo = s.lo(), a.hi = s.hi();
+  }
+  return a;
+}
+
+void draw_value_axis(Document& doc, const ValueAxis& a, double left, double right, const std::string& name) {
+  double widest = 0;
+  for (std::size_t k = 0; k < a.ticks.size(); ++k) {
+    const double py = a.pixel(a.ticks[k]);
+    doc.add("line",
+            {{"x1", left}, {"y1", py}, {"x2", right}, {"y2", py}, {"stroke", "#e3e6ea"}, {"stroke-width", 1.0}});
+    doc.add_text("text",
+                 {{"class", "value-tick"},
+                  {"x", left - 7},
+                  {"y", py + 4},
+                  {"font-size", 11.0},
+                  {"text-anchor", "end"},
+                  {"fill", "#3b4048"}},
+                 a.labels[k]);
+    widest = std::max(widest, svg::text_width(a.labels[k], 11.0));
+  }
+  const double middle = 0.5 * (a.pixel(a.lo) + a.pixel(a.hi));
+  const double x = left - widest - 20;
+  doc.add_text("text",
+               {{"x", x},
+                {"y", middle},
+                {"font-size", 12.0},
+                {"text-anchor", "middle"},
+                {"fill", ink},
+                {"transform", "rotate(-90 " + svg::number(x) + " " + svg::number(middle) + ")"}},
+               name);
+}
 
 // A batch id short enough for the axis: its last characters after an ellipsis (ids differ at the end).
 std::string axis_label(const std::string& id) {
@@ -70,14 +131,27 @@ void point_marker(Document& doc, double x, double y, bool beyond, bool run, cons
   }
 }
 
+// A batch left out of the chart: a hollow grey triangle (class "left-out"), unlike every charted mark.
+void left_out_marker(Document& doc, double x, double y, const std::string& tooltip, bool legend = false) {
+  svg::marker(doc, Shape::Triangle, x, y, 4.6,
+              {{"class", legend ? "legend-mark" : "left-out"},
+               {"fill", "#ffffff"},
+               {"stroke", left_out_colour},
+               {"stroke-width", 1.8}},
+              tooltip);
+}
+
 }  // namespace
 
 std::string control_chart_svg(const ControlChart& chart, const std::string& title) {
-  const std::size_t n = chart.values.size();
+  const std::size_t n = chart.values.size(), batches = chart.batches();
   auto flag = [](const std::vector<bool>& flags, std::size_t i) { return i < flags.size() && flags[i]; };
   auto label_of = [&](std::size_t i) { return i < chart.labels.size() ? chart.labels[i] : fmt::format("#{}", i + 1); };
-  const std::string unit = chart.unit.empty() || chart.unit == "-" ? std::string() : " " + chart.unit;
-  const std::string heading = title.empty() ? "Control chart" : title;
+  const std::string unit_symbol = svg::unit_text(chart.unit);
+  const std::string unit = chart.unit.empty() || chart.unit == "-" ? std::string() : " " + unit_symbol;
+  std::string parameter = chart.parameter.empty() ? std::string("value") : chart.parameter;
+  std::replace(parameter.begin(), parameter.end(), '_', ' ');  // yield_stress -> yield stress
+  const std::string heading = title.empty() ? "Control chart of " + parameter : title;
 
   Document doc(page_width, heading);
   doc.add("rect", {{"x", 0.0}, {"y", 0.0}, {"width", "100%"}, {"height", "100%"}, {"fill", "#ffffff"}});
@@ -100,32 +174,58 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
     in_run += flag(chart.in_run, i);
     plain += !flag(chart.beyond_limits, i) && !flag(chart.in_run, i);
   }
-  std::string parameter = chart.parameter.empty() ? std::string("value") : chart.parameter;
-  std::replace(parameter.begin(), parameter.end(), '_', ' ');  // yield_stress -> yield stress
+  const std::string limits_rule =
+      chart.log_scale
+          ? fmt::format(
+                "geometric mean \u00d7/\u00f7 exp(2.66 \u00d7 mean moving range of the logarithms, "
+                "{:.3g})",
+                chart.mean_moving_range)
+          : fmt::format("mean \u00b1 2.66 \u00d7 mean moving range {:.3g}{}", chart.mean_moving_range, unit);
   std::string summary = fmt::format(
-      "Individuals chart of {}{}, {} batches in time order. Centre line {:.4g}{} (the mean); control limits {:.4g} "
-      "to {:.4g}{} (mean \u00b1 2.66 \u00d7 mean moving range {:.3g}{}).",
-      parameter, chart.unit.empty() ? "" : " [" + chart.unit + "]", n, chart.centre, unit, chart.lower, chart.upper,
-      unit, chart.mean_moving_range, unit);
+      "Individuals chart of {}{}, {} batches in time order, {} charted. Centre line {:.4g}{}; control limits {:.4g} "
+      "to {:.4g}{} ({}).",
+      parameter, chart.unit.empty() ? "" : " [" + unit_symbol + "]", batches, n, chart.centre, unit, chart.lower,
+      chart.upper, unit, limits_rule);
+  if (chart.spec_low || chart.spec_high)
+    summary += fmt::format(" Spec limits {} to {}{}.", chart.spec_low ? fmt::format("{:.4g}", *chart.spec_low) : "-",
+                           chart.spec_high ? fmt::format("{:.4g}", *chart.spec_high) : "-", unit);
+  if (!chart.scale_reason.empty()) {
+    std::string why = chart.scale_reason;
+    why[0] = char(std::toupper(static_cast<unsigned char>(why[0])));
+    summary += " " + why + ".";
+  }
   if (shown < n) summary += fmt::format(" {} value{} not a number, not drawn.", n - shown, n - shown == 1 ? "" : "s");
   for (const auto& line : svg::wrap(summary, text_width, 13)) {
-    doc.add_text("text", {{"x", page_margin}, {"y", y}, {"font-size", 13.0}, {"fill", ink}}, line);
+    doc.add_text("text", {{"class", "summary"}, {"x", page_margin}, {"y", y}, {"font-size", 13.0}, {"fill", ink}},
+                 line);
     y += 19;
+  }
+  for (const LeftOutBatch& b : chart.left_out) {
+    const std::string note = fmt::format("Not charted, not in the limits: {} ({}).", b.label, b.reason);
+    for (const auto& line : svg::wrap(note, text_width, 12)) {
+      doc.add_text(
+          "text", {{"class", "left-out-note"}, {"x", page_margin}, {"y", y}, {"font-size", 12.0}, {"fill", amber_text}},
+          line);
+      y += 17;
+    }
   }
 
   // --- legend ---------------------------------------------------------------------------------------------------
   {
     struct Entry {
-      int kind;  // 0 normal, 1 beyond, 2 run, 3 centre line, 4 limits
+      int kind;  // 0 normal, 1 beyond, 2 run, 3 centre line, 4 limits, 5 spec, 6 left out
       std::string text;
     };
-    const std::vector<Entry> entries = {
+    std::vector<Entry> entries = {
         {0, fmt::format("within the limits, no run ({})", plain)},
         {1, fmt::format("beyond a control limit ({})", beyond)},
         {2, fmt::format("in a run of {} or more on one side of the centre line ({})", chart.run_length, in_run)},
         {3, "centre line"},
         {4, "control limits"},
     };
+    if (chart.spec_low || chart.spec_high) entries.push_back({5, "spec limits"});
+    if (!chart.left_out.empty())
+      entries.push_back({6, fmt::format("not charted, at the foot ({})", chart.left_out.size())});
     double x = page_margin;
     y += 4;
     for (const Entry& e : entries) {
@@ -134,14 +234,20 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
       const double cy = y + 10;
       if (e.kind <= 2) {
         point_marker(doc, x + 9, cy, e.kind == 1, e.kind == 2, "", true);
+      } else if (e.kind == 6) {
+        left_out_marker(doc, x + 9, cy, "", true);
       } else {
         doc.add("line", {{"x1", x},
                          {"y1", cy},
                          {"x2", x + 20},
                          {"y2", cy},
-                         {"stroke", e.kind == 3 ? centre_colour : beyond_colour},
+                         {"stroke", e.kind == 3   ? centre_colour
+                                    : e.kind == 5 ? spec_colour
+                                                  : beyond_colour},
                          {"stroke-width", 1.6},
-                         {"stroke-dasharray", e.kind == 3 ? "none" : "6 4"}});
+                         {"stroke-dasharray", e.kind == 3   ? "none"
+                                              : e.kind == 5 ? "2 3"
+                                                            : "6 4"}});
       }
       doc.add_text("text", {{"x", x + 26}, {"y", cy + 4}, {"font-size", 12.0}, {"fill", ink}}, e.text);
       x += w;
@@ -150,50 +256,66 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
   }
 
   // --- chart ----------------------------------------------------------------------------------------------------
-  double widest_label = 0;
+  std::vector<std::string> all_labels(batches);
   for (std::size_t i = 0; i < n; ++i)
-    widest_label = std::max(widest_label, svg::text_width(axis_label(label_of(i)), label_font));
+    if (chart.position(i) < batches) all_labels[chart.position(i)] = label_of(i);
+  for (const LeftOutBatch& b : chart.left_out)
+    if (b.position < batches) all_labels[b.position] = b.label;
+  double widest_label = 0;
+  for (const auto& l : all_labels) widest_label = std::max(widest_label, svg::text_width(axis_label(l), label_font));
   const double slant = label_slant * 3.14159265358979 / 180;
   const double plot_left = std::max(88.0, std::cos(slant) * widest_label + 14);
   const double top = y, bottom = y + panel_height;
   double lo = INFINITY, hi = -INFINITY;
-  for (double v : {chart.centre, chart.lower, chart.upper})
-    if (std::isfinite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
-  for (double v : chart.values)
-    if (std::isfinite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
-  const double pad = 0.06 * (hi - lo);
-  const LinearScale value(lo - pad, hi + pad, bottom, top, 6);
-  const double spacing = (plot_right - plot_left) / double(std::max<std::size_t>(n, 1));
-  auto x_of = [&](std::size_t i) { return plot_left + (double(i) + 0.5) * spacing; };
+  const auto include = [&](double v) {
+    if (std::isfinite(v) && (!chart.log_scale || v > 0)) lo = std::min(lo, v), hi = std::max(hi, v);
+  };
+  for (double v : {chart.centre, chart.lower, chart.upper}) include(v);
+  for (double v : chart.values) include(v);
+  if (chart.spec_low) include(*chart.spec_low);
+  if (chart.spec_high) include(*chart.spec_high);
+  if (!std::isfinite(lo)) lo = chart.log_scale ? 1 : 0, hi = chart.log_scale ? 10 : 1;
+  const ValueAxis value = value_axis(chart.log_scale, lo, hi, bottom, top);
+  const double spacing = (plot_right - plot_left) / double(std::max<std::size_t>(batches, 1));
+  auto x_at = [&](std::size_t place) { return plot_left + (double(place) + 0.5) * spacing; };
+  auto x_of = [&](std::size_t i) { return x_at(chart.position(i)); };
+  const auto visible = [&](double v) { return std::isfinite(v) && (!chart.log_scale || v > 0); };
 
   // Shading beyond the limits, grid, axis.
-  if (std::isfinite(chart.upper) && value(chart.upper) > top)
+  if (visible(chart.upper) && value.pixel(chart.upper) > top)
     doc.add("rect", {{"x", plot_left},
                      {"y", top},
                      {"width", plot_right - plot_left},
-                     {"height", value(chart.upper) - top},
+                     {"height", value.pixel(chart.upper) - top},
                      {"fill", "#fbeceb"}});
-  if (std::isfinite(chart.lower) && value(chart.lower) < bottom)
+  if (visible(chart.lower) && value.pixel(chart.lower) < bottom)
     doc.add("rect", {{"x", plot_left},
-                     {"y", value(chart.lower)},
+                     {"y", value.pixel(chart.lower)},
                      {"width", plot_right - plot_left},
-                     {"height", bottom - value(chart.lower)},
+                     {"height", bottom - value.pixel(chart.lower)},
                      {"fill", "#fbeceb"}});
-  svg::y_axis(doc, value, plot_left, plot_right, chart.unit.empty() ? parameter : parameter + " [" + chart.unit + "]");
+  draw_value_axis(
+      doc, value, plot_left, plot_right,
+      (chart.unit.empty() ? parameter : parameter + " [" + unit_symbol + "]") + (chart.log_scale ? ", log scale" : ""));
 
-  // Centre line and limits, labelled at the right.
+  // Centre line, control limits and spec limits, labelled at the right (labels pushed apart when close).
   struct Level {
     double v;
-    const char* name;
+    std::string name;
     const char* colour;
     const char* dash;
   };
-  for (const Level& l :
-       {Level{chart.upper, "UCL", beyond_colour, "6 4"}, Level{chart.centre, "CL", centre_colour, "none"},
-        Level{chart.lower, "LCL", beyond_colour, "6 4"}}) {
-    if (!std::isfinite(l.v)) continue;
-    const double py = value(l.v);
-    doc.add("line", {{"class", std::string("level ") + l.name},
+  std::vector<Level> levels = {{chart.upper, "UCL", beyond_colour, "6 4"},
+                               {chart.centre, "CL", centre_colour, "none"},
+                               {chart.lower, "LCL", beyond_colour, "6 4"}};
+  if (chart.spec_high) levels.push_back({*chart.spec_high, "USL", spec_colour, "2 3"});
+  if (chart.spec_low) levels.push_back({*chart.spec_low, "LSL", spec_colour, "2 3"});
+  std::vector<std::pair<double, std::size_t>> label_rows;
+  for (std::size_t k = 0; k < levels.size(); ++k) {
+    const Level& l = levels[k];
+    if (!visible(l.v)) continue;
+    const double py = value.pixel(l.v);
+    doc.add("line", {{"class", "level " + l.name},
                      {"x1", plot_left},
                      {"y1", py},
                      {"x2", plot_right},
@@ -201,13 +323,24 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
                      {"stroke", l.colour},
                      {"stroke-width", 1.6},
                      {"stroke-dasharray", l.dash}});
-    doc.add_text(
-        "text",
-        {{"x", plot_right + 6}, {"y", py + 4}, {"font-size", 11.0}, {"fill", l.colour}, {"font-weight", "bold"}},
-        fmt::format("{} {:.4g}", l.name, l.v));
+    label_rows.emplace_back(py, k);
+  }
+  std::sort(label_rows.begin(), label_rows.end());
+  double last_y = -INFINITY;
+  for (auto& [py, k] : label_rows) {
+    const double ly = std::max(py + 4, last_y + 13);
+    last_y = ly;
+    doc.add_text("text",
+                 {{"class", "level-label"},
+                  {"x", plot_right + 6},
+                  {"y", ly},
+                  {"font-size", 11.0},
+                  {"fill", levels[k].colour},
+                  {"font-weight", "bold"}},
+                 fmt::format("{} {:.4g}", levels[k].name, levels[k].v));
   }
 
-  // Values joined in batch order (a gap where a value is missing), then the markers over the line.
+  // Values joined in batch order (a gap where a value is missing or left out), then the markers over the line.
   std::vector<std::pair<double, double>> run_of_points;
   auto flush = [&] {
     if (run_of_points.size() >= 2)
@@ -220,20 +353,25 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
     run_of_points.clear();
   };
   for (std::size_t i = 0; i < n; ++i) {
-    if (std::isfinite(chart.values[i]))
-      run_of_points.emplace_back(x_of(i), value(chart.values[i]));
+    if (i > 0 && chart.position(i) != chart.position(i - 1) + 1) flush();
+    if (visible(chart.values[i]))
+      run_of_points.emplace_back(x_of(i), value.pixel(chart.values[i]));
     else
       flush();
   }
   flush();
   for (std::size_t i = 0; i < n; ++i) {
-    if (!std::isfinite(chart.values[i])) continue;
+    if (!visible(chart.values[i])) continue;
     const bool b = flag(chart.beyond_limits, i), r = flag(chart.in_run, i);
     std::string tip = fmt::format("{}: {:.4g}{}", label_of(i), chart.values[i], unit);
     if (b) tip += fmt::format(", beyond the {} control limit", chart.values[i] > chart.centre ? "upper" : "lower");
     if (r) tip += fmt::format(", in a run of {} or more on one side of the centre line", chart.run_length);
-    point_marker(doc, x_of(i), value(chart.values[i]), b, r, tip);
+    point_marker(doc, x_of(i), value.pixel(chart.values[i]), b, r, tip);
   }
+  // Left-out batches: a hollow mark on the chart's bottom edge at their place, with the reason.
+  for (const LeftOutBatch& b : chart.left_out)
+    left_out_marker(doc, x_at(b.position), bottom - 8,
+                    fmt::format("{}: not charted ({}); not in the limits", b.label, b.reason));
   doc.add("rect", {{"x", plot_left},
                    {"y", top},
                    {"width", plot_right - plot_left},
@@ -244,8 +382,8 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
 
   // Batch ids along the bottom, slanted; every k-th when they would crowd.
   const std::size_t every = std::max<std::size_t>(1, std::size_t(std::ceil(22.0 / spacing)));
-  for (std::size_t i = 0; i < n; ++i) {
-    const double x = x_of(i);
+  for (std::size_t i = 0; i < batches; ++i) {
+    const double x = x_at(i);
     doc.add("line",
             {{"x1", x}, {"y1", bottom}, {"x2", x}, {"y2", bottom + (i % every == 0 ? 5 : 3)}, {"stroke", frame}});
     if (i % every != 0) continue;
@@ -259,7 +397,7 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
                   {"text-anchor", "end"},
                   {"transform",
                    fmt::format("rotate(-{} {} {})", svg::number(label_slant), svg::number(x + 3), svg::number(ly))}},
-                 axis_label(label_of(i)));
+                 axis_label(all_labels[i]));
   }
   y = bottom + 15 + std::sin(slant) * widest_label + 12;
   doc.add_text("text",

@@ -139,15 +139,29 @@ struct Placed {
 
 // One label along a chain where it has `min_label_run` px of line, upright, clear of the frame and of labels
 // placed before; tries the middle of the chain, then a quarter from either end.
+// Distance [px] from (x, y) to the nearest segment of `lines`.
+double distance_to(const std::vector<std::vector<std::pair<double, double>>>& lines, double x, double y) {
+  double best = INFINITY;
+  for (const auto& line : lines)
+    for (std::size_t k = 1; k < line.size(); ++k) {
+      const double ax = line[k - 1].first, ay = line[k - 1].second, dx = line[k].first - ax, dy = line[k].second - ay;
+      const double length2 = dx * dx + dy * dy;
+      const double t = length2 > 0 ? std::clamp(((x - ax) * dx + (y - ay) * dy) / length2, 0.0, 1.0) : 0.0;
+      best = std::min(best, std::hypot(x - (ax + t * dx), y - (ay + t * dy)));
+    }
+  return best;
+}
+
 void label_chain(Document& doc, const std::vector<std::pair<double, double>>& line, const std::string& text,
                  const char* cls, const char* colour, const char* weight, double left, double top, double right,
-                 double bottom, std::vector<Placed>& placed) {
+                 double bottom, std::vector<Placed>& placed,
+                 const std::vector<std::vector<std::pair<double, double>>>& keep_clear = {}) {
   std::vector<double> run(line.size(), 0.0);
   for (std::size_t k = 1; k < line.size(); ++k)
     run[k] = run[k - 1] + std::hypot(line[k].first - line[k - 1].first, line[k].second - line[k - 1].second);
   if (line.size() < 2 || run.back() < min_label_run) return;
   const double half = 0.5 * svg::text_width(text, label_font) + 3;
-  for (double fraction : {0.5, 0.25, 0.75}) {
+  for (double fraction : {0.5, 0.25, 0.75, 0.375, 0.625, 0.125, 0.875}) {
     const double at = fraction * run.back();
     const std::size_t k = std::size_t(std::upper_bound(run.begin(), run.end(), at) - run.begin());
     const std::size_t b = std::clamp<std::size_t>(k, 1, line.size() - 1), a = b - 1;
@@ -159,6 +173,7 @@ void label_chain(Document& doc, const std::vector<std::pair<double, double>>& li
       return std::hypot(p.x - x, p.y - y) < p.half_width + half + 4;
     });
     if (crowded) continue;
+    if (distance_to(keep_clear, x, y) < half + 4) continue;  // not on top of a limit line
     double angle = std::atan2(line[b].second - line[a].second, line[b].first - line[a].first) * 180 / 3.14159265358979;
     if (angle > 90) angle -= 180;
     if (angle < -90) angle += 180;
@@ -416,11 +431,15 @@ std::string reading_map_svg(const ReadingMap& map) {
   doc.close();  // the clipped group
 
   std::vector<Placed> placed;
+  std::vector<std::vector<std::pair<double, double>>> limit_lines;  // contour labels keep clear of these
+  for (const Drawn& dr : drawn)
+    if (dr.limit) limit_lines.insert(limit_lines.end(), dr.lines.begin(), dr.lines.end());
+  static const std::vector<std::vector<std::pair<double, double>>> none;
   for (auto it = drawn.rbegin(); it != drawn.rend(); ++it)  // limits were traced last: label them first
     for (const auto& line : it->lines)
       label_chain(doc, line, plain(it->level, scale), it->limit ? "limit-label" : "contour-label",
                   it->limit ? limit_colour : contour_colour, it->limit ? "bold" : "normal", plot_left, top, plot_right,
-                  bottom, placed);
+                  bottom, placed, it->limit ? none : limit_lines);
 
   doc.add("rect", {{"x", plot_left},
                    {"y", top},

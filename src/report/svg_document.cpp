@@ -3,6 +3,7 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <cctype>
 #include <cmath>
 #include <initializer_list>
 #include <stdexcept>
@@ -191,7 +192,7 @@ std::string Document::finish(double height) {
   return s;
 }
 
-LinearScale::LinearScale(double lo, double hi, double pixel_lo, double pixel_hi, int target_ticks)
+LinearScale::LinearScale(double lo, double hi, double pixel_lo, double pixel_hi, int target_ticks, bool widen)
     : pixel_lo_(pixel_lo), pixel_hi_(pixel_hi) {
   if (!std::isfinite(lo) || !std::isfinite(hi)) lo = 0, hi = 1;
   if (hi < lo) std::swap(lo, hi);
@@ -210,6 +211,13 @@ LinearScale::LinearScale(double lo, double hi, double pixel_lo, double pixel_hi,
   for (double k = first; k <= last + 0.5; k += 1.0) {
     const double v = k * step_;
     ticks_.push_back(std::abs(v) < 1e-9 * step_ ? 0.0 : v);
+  }
+  if (!widen) {
+    const double slack = 1e-9 * step_;
+    std::erase_if(ticks_, [&](double t) { return t < lo - slack || t > hi + slack; });
+    lo_ = lo;
+    hi_ = hi;
+    return;
   }
   lo_ = std::min(ticks_.front(), lo);  // min/max: a tick may miss the data end by a rounding error
   hi_ = std::max(ticks_.back(), hi);
@@ -246,9 +254,9 @@ LogScale::LogScale(double lo, double hi, double pixel_lo, double pixel_hi, int t
   ticks_ = decade_ticks({1.0});
   if (int(ticks_.size()) >= target_ticks) return;
   ticks_ = decade_ticks({1.0, 2.0, 5.0});
-  if (ticks_.size() >= 3) return;
+  if (int(ticks_.size()) >= std::min(target_ticks, 4)) return;
   ticks_.clear();
-  const LinearScale linear(lo, hi, 0, 1, 4);
+  const LinearScale linear(lo, hi, 0, 1, target_ticks);
   for (double t : linear.ticks())
     if (inside(t)) ticks_.push_back(t);
 }
@@ -387,6 +395,55 @@ double text_box(Document& doc, std::string_view text, double x, double y, double
   doc.add_text_lines({{"font-size", font_size}, {"fill", std::string(text_colour)}}, lines, x + pad,
                      y + pad + 0.8 * font_size, line_height);
   return height;
+}
+
+std::string unit_text(std::string_view unit) {
+  std::string out;
+  for (std::size_t i = 0; i < unit.size(); ++i) {
+    const char c = unit[i];
+    const bool between_symbols = i > 0 && i + 1 < unit.size() &&
+                                 std::isalpha(static_cast<unsigned char>(unit[i - 1])) &&
+                                 std::isalpha(static_cast<unsigned char>(unit[i + 1]));
+    if ((c == '.' || c == ' ') && between_symbols) {
+      out += "\u00b7";
+    } else if (c == '^' && i + 1 < unit.size()) {
+      const char power = unit[++i];
+      switch (power) {
+        case 'n':
+          out += "\u207f";
+          break;
+        case '2':
+          out += "\u00b2";
+          break;
+        case '3':
+          out += "\u00b3";
+          break;
+        case '-':
+          if (i + 1 < unit.size() && unit[i + 1] == '1') {
+            out += "\u207b\u00b9";
+            ++i;
+          } else {
+            out += "^-";
+          }
+          break;
+        default:
+          out += '^';
+          out += power;
+      }
+    } else {
+      out += c;
+    }
+  }
+  return out;
+}
+
+void open_clipped_group(Document& doc, std::string_view id, double left, double top, double right, double bottom) {
+  doc.open("defs", {});
+  doc.open("clipPath", {{"id", std::string(id)}});
+  doc.add("rect", {{"x", left}, {"y", top}, {"width", right - left}, {"height", bottom - top}});
+  doc.close();
+  doc.close();
+  doc.open("g", {{"clip-path", fmt::format("url(#{})", id)}});
 }
 
 double text_width(std::string_view text, double font_size) {

@@ -75,8 +75,9 @@ class LinearScale {
  public:
   /// Data range [lo, hi] onto pixels [pixel_lo, pixel_hi] (pixel_hi < pixel_lo for a y axis, which grows upward).
   /// About `target_ticks` ticks. A zero-width or inverted range is widened around its value; non-finite ends
-  /// give the range [0, 1].
-  LinearScale(double lo, double hi, double pixel_lo, double pixel_hi, int target_ticks = 6);
+  /// give the range [0, 1]. With `widen` false the domain stays [lo, hi] and only the ticks inside it are kept
+  /// (an axis that starts where the data start, e.g. a time axis from a release before the clock's zero).
+  LinearScale(double lo, double hi, double pixel_lo, double pixel_hi, int target_ticks = 6, bool widen = true);
 
   double operator()(double value) const;
   const std::vector<double>& ticks() const { return ticks_; }
@@ -93,9 +94,10 @@ class LinearScale {
 
 /// A logarithmic map from positive data values to pixels over exactly [lo, hi] (not widened: a contour map's
 /// plot area is its grid), with ticks at 1, 2 and 5 times powers of ten inside the range, or at powers of ten only
-/// when those alone give `target_ticks` or more. A range too narrow for three such ticks (less than about a factor
-/// of 2.5) gets the round linear ticks of LinearScale inside it instead. A non-positive or non-finite end gives
-/// the range [1, 10]; a zero-width range is widened by 10% each way.
+/// when those alone give `target_ticks` or more. A range with fewer than four 1-2-5 ticks (or `target_ticks`, when
+/// less; e.g. 13 to 45, which holds only 20) gets the round linear ticks of LinearScale for `target_ticks` inside
+/// it instead (15, 20, ..., 45), so that a short log axis still reads at a glance. A non-positive or non-finite end
+/// gives the range [1, 10]; a zero-width range is widened by 10% each way.
 class LogScale {
  public:
   LogScale(double lo, double hi, double pixel_lo, double pixel_hi, int target_ticks = 6);
@@ -159,6 +161,15 @@ inline constexpr const char* frame = "#9aa1a9";
 /// then the finished document.
 std::string finish_with_caution(Document& doc, std::string_view caution, double y, double page_width, double margin,
                                 std::string_view footer_colour);
+
+/// A unit as a reader writes it: the interface's ASCII symbols with a middle dot for the product and superscripts
+/// for powers, "Pa.s^n" -> "Pa\u00b7s\u207f", "Pa.s" -> "Pa\u00b7s", "m^3" -> "m\u00b3", "Pa s" -> "Pa\u00b7s". Other
+/// text passes unchanged.
+std::string unit_text(std::string_view unit);
+
+/// Opens a group whose drawing is clipped to the rectangle [left, right] x [top, bottom]: a <clipPath> with the
+/// id `id` (unique in the document), then <g clip-path="url(#id)">; close it with Document::close().
+void open_clipped_group(Document& doc, std::string_view id, double left, double top, double right, double bottom);
 
 /// Approximate width [px] of `text` in the generic sans-serif face at `font_size` px (0.56 em a character on
 /// average, a little generous so that layouts built on it do not overlap).

@@ -479,8 +479,8 @@ TEST_CASE("the history command lists each product's results and says which batch
     CHECK(text.find("S10 (40 Pa) is above the upper limit") != std::string::npos);
     CHECK(text.find("S1 to S9 (9 results in a row) are all below the centre line") != std::string::npos);
     // consistency is the same in every batch: no moving range, nothing flagged
-    CHECK(text.find("consistency [Pa.s^n]: 10 values, centre 3.25, limits 3.25 to 3.25: no point beyond the "
-                    "limits and no run on one side") != std::string::npos);
+    CHECK(text.find("consistency [Pa.s^n]: 10 values, centre 3.25, limits 3.25 to 3.25 (log scale): no point "
+                    "beyond the limits and no run on one side") != std::string::npos);
     CHECK(err.str().empty());
   }
   SUBCASE("every product, sorted") {
@@ -525,7 +525,7 @@ TEST_CASE("the history command lists each product's results and says which batch
     std::ifstream in(svg, std::ios::binary);
     const std::string text{std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
     CHECK(text.find("<svg") != std::string::npos);
-    CHECK(text.find("Product HX1: batch history history.db") != std::string::npos);
+    CHECK(text.find("Yield stress of product HX1, 10 batches") != std::string::npos);
     CHECK(text.find("beyond-limits") != std::string::npos);
   }
   SUBCASE("a missing database is an error naming it") {

@@ -168,12 +168,18 @@ TEST_CASE("map axes: a log scale ticks 1, 2, 5 x 10^k in plain numbers, each at 
   }
   SUBCASE("a narrow range gets round linear ticks inside it") {
     const svg::LogScale s(20, 35, 0, 100);
-    REQUIRE(s.ticks().size() >= 2);
+    REQUIRE(s.ticks().size() >= 4);
     for (double t : s.ticks()) {
       CHECK(t >= 20);
       CHECK(t <= 35);
-      CHECK(std::abs(t / 5 - std::round(t / 5)) < 1e-9);  // steps of 5 over a range of 15 (LinearScale's rule)
+      CHECK(std::abs(t / 2 - std::round(t / 2)) < 1e-9);  // steps of 2 over a range of 15 (LinearScale's rule, 6 ticks)
     }
+  }
+  SUBCASE("a range of a factor of 3.5 holding one 1-2-5 tick gets enough ticks to read") {
+    const svg::LogScale s(13, 45, 0, 100);
+    std::vector<std::string> labels;
+    for (double t : s.ticks()) labels.push_back(s.tick_label(t));
+    CHECK(labels == std::vector<std::string>{"15", "20", "25", "30", "35", "40", "45"});
   }
   SUBCASE("a range without a logarithm falls back to 1 to 10") {
     const svg::LogScale s(-3, 0, 0, 100);
@@ -186,6 +192,30 @@ TEST_CASE("map: plate radius over yield stress and flow index, with limits, a sp
   const ReadingMap m = plate_map();
   const std::string svg = reading_map_svg(m);
   const XmlReader x(svg);  // throws, failing the test, when not well-formed
+
+  SUBCASE("contour labels keep clear of the limit lines") {
+    std::vector<std::pair<double, double>> limit_points;  // vertices of the limit contours [px]
+    for (const XmlNode* n : with_class(x, "limit-contour")) {
+      std::istringstream in(n->attributes.at("d"));
+      std::string word;
+      while (in >> word) {
+        if (word == "M" || word == "L" || word == "Z") continue;
+        if (word[0] == 'M' || word[0] == 'L') word = word.substr(1);
+        std::string second;
+        in >> second;
+        limit_points.emplace_back(std::stod(word), std::stod(second));
+      }
+    }
+    REQUIRE(!limit_points.empty());
+    for (const XmlNode* n : with_class(x, "contour-label")) {
+      // The label centre: its baseline sits 0.35 em (10.5 px font) below it.
+      const double lx = std::stod(n->attributes.at("x")), ly = std::stod(n->attributes.at("y")) - 0.35 * 10.5;
+      double nearest = INFINITY;
+      for (const auto& [px, py] : limit_points) nearest = std::min(nearest, std::hypot(px - lx, py - ly));
+      // Half a short label plus a margin (common practice, no source); vertices are dense enough (grid spacing).
+      CHECK_MESSAGE(nearest > 8, collapsed(n->content) << " at " << lx << "," << ly);
+    }
+  }
 
   SUBCASE("title, notes, caution and the count of failed points are shown") {
     CHECK(some_text_is(x, m.title));
