@@ -74,6 +74,9 @@ int run(int argc, char** argv) {
   fit_db.add_to(*fit, "--db", "FILE", "Append the results to the batch history FILE");
   fit_specs.add_to(*fit, "--specs", "FILE", "Read product specifications from FILE");
   fit_csv.add_to(*fit, "--csv", "FILE", "Write the results as a CSV table to FILE");
+  bool fit_require_spec = false;
+  fit->add_flag("--require-spec", fit_require_spec,
+                "Refuse (exit 2, nothing fitted) a material without limits: no [spec] and no catalogue entry");
 
   // --- simulate ----------------------------------------------------------------------------------------------
   CLI::App* simulate = app.add_subcommand(
@@ -253,6 +256,7 @@ int run(int argc, char** argv) {
   options.db = fit_db.get();
   options.specs = fit_specs.get();
   options.csv = fit_csv.get();
+  options.require_spec = fit_require_spec;
   return spreadfit::cli::run_fit_command(options, std::cout, std::cerr);
 }
 
@@ -268,7 +272,7 @@ int main(int argc, char** argv) {
     }
     return code;
   } catch (const spreadfit::io::InputError& e) {
-    std::cerr << "spreadfit: " << e.what() << '\n';
+    spreadfit::io::print_input_error(std::cerr, e);
     return to_int(ExitCode::BadInput);
   } catch (const std::invalid_argument& e) {
     std::cerr << "spreadfit: " << e.what() << '\n';

@@ -189,7 +189,8 @@ TEST_CASE("data cells must be finite numbers, located by line and column") {
   }
   SUBCASE("a decimal comma makes a third cell") {
     CHECK(std::string(csv_error(header + "5,3,1\n").what()) ==
-          "run.csv:4:5: row has 3 cells (expected 2: time [s], front [cm])");
+          "run.csv:4:5: row has 3 cells (expected 2: time [s], front [cm]); a decimal comma? write numbers with a "
+            "decimal point, such as 2.9");
   }
   SUBCASE("a row with one cell") {
     CHECK(std::string(csv_error(header + "5\n").what()) ==
