@@ -203,6 +203,9 @@ int run(int argc, char** argv) {
   plan->add_option("--until", plan_options.until, "Duration for candidates without readings (default 120 s)")
       ->type_name("T");
 
+  // Only fit judges against limits; the other commands have no "out of spec".
+  for (CLI::App* command : {simulate, predict, translate, plan})
+    command->footer("Exit codes: 0 done, 2 bad input or usage, 3 numerical failure.");
   try {
     app.parse(argc, argv);
   } catch (const CLI::Success& e) {  // --help, --help-all, --version
@@ -215,6 +218,13 @@ int run(int argc, char** argv) {
                              : translate->parsed() ? translate
                              : plan->parsed()      ? plan
                                                   : nullptr;
+    if (!chosen && argc > 1 && argv[1][0] != '-') {
+      // An unknown first word is a mistyped command: name it and the nearest one, not "a subcommand is required".
+      const std::vector<std::string_view> commands{"fit", "simulate", "history", "predict", "translate", "plan"};
+      std::cerr << "spreadfit: unknown command " << spreadfit::io::quote_for_message(argv[1])
+                << spreadfit::io::did_you_mean(argv[1], commands) << "\nRun 'spreadfit --help' for usage.\n";
+      return to_int(ExitCode::BadInput);
+    }
     std::cerr << "spreadfit: " << e.what() << '\n'
               << "Run 'spreadfit " << (chosen ? chosen->get_name() + " " : std::string()) << "--help' for usage.\n";
     return to_int(ExitCode::BadInput);

@@ -51,3 +51,39 @@ TEST_CASE("fit --require-spec: a material with catalogue limits is fitted and ju
   CHECK(run.out.find("verdict: ") != std::string::npos);
   CHECK(run.out.find("verdict: none") == std::string::npos);
 }
+
+TEST_CASE("cli: a mistyped command is named with the nearest one") {
+  TempDir dir;
+  const Run run = run_spreadfit(dir, "fitt x.toml");
+  CHECK(run.exit_code == 2);
+  CHECK(run.err.find("unknown command 'fitt'; did you mean 'fit'?") != std::string::npos);
+}
+
+TEST_CASE("simulate: a material no sauce has, or times without bound, are refused before any solve") {
+  // Viscosity range: src/io/plausible_ranges.hpp; latest time: max_simulated_time (1e7 s).
+  TempDir dir;
+  const auto test = dir.write("t.toml",
+                              "[sample]\nid = \"S-1\"\ndensity = \"1.0 g/mL\"\n[rig]\nkind = \"plate\"\n"
+                              "ring_radius = \"3 cm\"\nvolume = \"50 mL\"\n");
+  // was: exit 0 on a viscosity of 1e-300 Pa.s.
+  const Run tiny = run_spreadfit(dir, "simulate " + quoted(test.string()) + " --model newtonian --set viscosity=1e-300");
+  CHECK(tiny.exit_code == 2);
+  CHECK(tiny.err.find("--set viscosity=1e-300") != std::string::npos);
+  CHECK(tiny.out.empty());
+  const Run late = run_spreadfit(dir, "simulate " + quoted(test.string()) +
+                                          " --model newtonian --set viscosity=1 --times 1,1e12");
+  CHECK(late.exit_code == 2);
+  CHECK(late.err.find("--times") != std::string::npos);
+}
+
+TEST_CASE("plan: a reading interval that would make millions of readings is refused") {
+  // was: memory growing by 400 MB/s with --every 1e-9.
+  TempDir dir;
+  const auto test = dir.write("t.toml",
+                              "[sample]\nid = \"S-1\"\ndensity = \"1.0 g/mL\"\n[rig]\nkind = \"plate\"\n"
+                              "ring_radius = \"3 cm\"\nvolume = \"50 mL\"\n");
+  const Run run = run_spreadfit(dir, "plan " + quoted(test.string()) +
+                                         " --model newtonian --set viscosity=1 --every 1e-9");
+  CHECK(run.exit_code == 2);
+  CHECK(run.err.find("--every/--until") != std::string::npos);
+}

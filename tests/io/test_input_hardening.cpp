@@ -6,6 +6,7 @@
 #include <sstream>
 #include <string>
 
+#include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/plausible_ranges.hpp"
 #include "src/io/readings_csv.hpp"
@@ -94,4 +95,13 @@ TEST_CASE("plausible ranges: refuse outside the possible, warn outside the usual
   CHECK(wide->find("unusual for a channel width") != std::string::npos);
   // Water's viscosity, 1.0 mPa.s at 20 degC (CRC Handbook, from memory), is inside the usual range.
   CHECK(check_plausible(1.0e-3, plausible::viscosity, "1 mPa.s") == std::nullopt);
+}
+
+TEST_CASE("atomic file: a temporary file left by a killed process is removed by the next write") {
+  spreadfit::io::test::TempDir dir;
+  // PID 2^22 + 1 is above Linux's largest pid_max (2^22, proc(5)), so no process has it.
+  const auto leftover = dir.write(".r.json.tmp-4194305-0", "");
+  spreadfit::io::write_file_atomically(dir.path() / "r.json", "{}\n");
+  CHECK_FALSE(std::filesystem::exists(leftover));
+  CHECK(std::filesystem::exists(dir.path() / "r.json"));
 }
