@@ -55,7 +55,9 @@ TEST_CASE("every reading name maps to its kind") {
                                                    {"diameter", Reading::Diameter},
                                                    {"gap", Reading::Gap},
                                                    {"slump", Reading::Slump}};
-  for (const auto& [name, kind] : names) {
+  for (const auto& entry : names) {
+    const auto& name = entry.first;  // not a structured binding: clang 14 cannot capture one in INFO
+    const auto& kind = entry.second;
     INFO("reading: " << name);
     const auto s = parse_readings_csv(std::string("time [s],") + name + " [mm]\n1,2\n", "run.csv");
     CHECK(s.kind == kind);

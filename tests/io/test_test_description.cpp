@@ -455,7 +455,9 @@ TEST_CASE("fit settings are checked against the readings") {
                                                   {"power-law", Law::PowerLaw},
                                                   {"bingham", Law::Bingham},
                                                   {"herschel-bulkley", Law::HerschelBulkley}};
-    for (const auto& [name, law] : models) {
+    for (const auto& entry : models) {
+      const auto& name = entry.first;  // not a structured binding: clang 14 cannot capture one in INFO
+      const auto& law = entry.second;
       INFO("model: " << name);
       const auto d =
           load_test_description(dir.write("test.toml", base + "[fit]\nmodel = \"" + std::string(name) + "\"\n"));
