@@ -9,6 +9,7 @@
 #include "models/temperature.hpp"
 #include "src/cli/exit_codes.hpp"
 #include "src/cli/history_command.hpp"
+#include "src/cli/output_paths.hpp"
 #include "src/fit/final_only.hpp"
 #include "src/fit/fit_law.hpp"
 #include "src/fit/flow_index_prior.hpp"
@@ -211,10 +212,13 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
       if (!by_sample.count(t.sample_id)) order.push_back(t.sample_id);
       by_sample[t.sample_id].push_back(std::move(t));
     } catch (const io::InputError& e) {
-      err << "spreadfit: " << e.what() << "\n";
+      io::print_input_error(err, e);
       bad_input = true;
     }
   }
+  for (const std::string& id : order)
+    for (const io::TestDescription& t : by_sample[id])
+      for (const std::string& warning : t.warnings) err << "spreadfit: warning: " << warning << "\n";
   // Spec catalogues: --specs, else a specs.toml beside each test file (read once per folder).
   std::map<std::filesystem::path, std::map<std::string, io::ProductSpec>> catalogues;
   auto catalogue_for = [&](const io::TestDescription& t) -> const std::map<std::string, io::ProductSpec>* {
@@ -228,7 +232,56 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
     const std::vector<io::TestDescription>& tests = by_sample[id];
     try {
       check_fittable(tests);
-      catalogue_for(tests.front());
+      const auto* catalogue = catalogue_for(tests.front());
+      if (options.require_spec) {
+        const bool inline_limits =
+            std::any_of(tests.begin(), tests.end(), [](const io::TestDescription& t) { return !t.spec.empty(); });
+        const std::string& product = tests.front().product;
+        const bool listed = catalogue && catalogue->count(product) > 0 && !catalogue->at(product).limits.empty();
+        if (!inline_limits && !listed)
+          throw io::InputError(
+              tests.front().path.string(), 0, product.empty() ? "sample.product" : "sample.product " + product,
+              product.empty() ? "no limits to judge against (--require-spec: expected a [spec] table or a product "
+                                "code found in the spec catalogue)"
+              : catalogue    ? "the spec catalogue has no limits for this product (--require-spec: expected a [" +
+                                product + "] table with limits in the catalogue, or a [spec] table in the test)"
+                             : "no spec catalogue found (--require-spec: expected specs.toml beside the test, "
+                               "--specs FILE, or a [spec] table in the test)");
+      }
+    } catch (const io::InputError& e) {
+      err << "spreadfit: " << e.what() << "\n";
+      bad_input = true;
+    }
+  }
+  // Every output path, before any work: none may be an input or another output, and each folder must exist.
+  if (!bad_input) {
+    std::vector<RunFile> inputs, outputs;
+    for (const std::string& id : order)
+      for (const io::TestDescription& t : by_sample[id]) {
+        inputs.push_back({t.path, "test description"});
+        for (const io::ReadingSeries& s : t.series) inputs.push_back({s.source, "readings file"});
+        if (!options.specs && std::filesystem::exists(t.path.parent_path() / "specs.toml"))
+          inputs.push_back({t.path.parent_path() / "specs.toml", "spec catalogue"});
+      }
+    if (options.specs) inputs.push_back({*options.specs, "spec catalogue (--specs)"});
+    if (options.json) outputs.push_back({*options.json, "--json"});
+    if (options.csv) outputs.push_back({*options.csv, "--csv"});
+    if (options.plot) {
+      outputs.push_back({*options.plot, "--plot"});
+      for (std::size_t i = 1; i < order.size(); ++i)
+        outputs.push_back({options.plot->parent_path() / (file_stem_safe(order[i]) + ".svg"),
+                           "--plot (sample " + order[i] + ")"});
+    }
+    // A server history is no file: only an SQLite path can collide with another input or output.
+    if (options.db && !history::is_server_uri(options.db->string())) outputs.push_back({*options.db, "--db"});
+    try {
+      if (options.out_dir) {
+        check_output_folder(*options.out_dir, "--out-dir");
+        for (const std::string& id : order)
+          for (const char* ext : {".json", ".svg"})
+            outputs.push_back({*options.out_dir / (file_stem_safe(id) + ext), "--out-dir (sample " + id + ")"});
+      }
+      check_output_paths(inputs, outputs);
     } catch (const io::InputError& e) {
       err << "spreadfit: " << e.what() << "\n";
       bad_input = true;
@@ -263,6 +316,10 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
       std::string prior_absent;
       const std::optional<FlowIndexPrior> prior = prior_for(from_catalogue, product, options, prior_absent);
       o = fit_material(std::move(tests), forced, from_catalogue, prior, prior_absent);
+      // Unusual input values travel with the result, so the JSON and the table carry them too.
+      if (o.result())
+        for (const io::TestDescription& t : o.tests)
+          for (const std::string& w : t.warnings) o.candidates[std::size_t(o.chosen)].warnings.push_back(w);
     } catch (const io::InputError& e) {
       err << "spreadfit: " << e.what() << "\n";
       bad_input = true;
@@ -276,10 +333,13 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
     if (o.verdict.status == Verdict::Status::Fail) out_of_spec = true;
     const nlohmann::json j = result_json(o);
     all.push_back(j);
-    if (options.out_dir) io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".json"), j.dump(2) + "\n");
     if (options.plot || options.out_dir) {
+      // Both files of a material are rendered before either is written: a drawing that fails leaves no JSON.
       const std::string svg = fit_plot_svg(o, series_of(o.tests));
-      if (options.out_dir) io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".svg"), svg);
+      if (options.out_dir) {
+        io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".json"), j.dump(2) + "\n");
+        io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".svg"), svg);
+      }
       // --plot names one file: with several materials, the first gets it and the rest go beside it by sample id.
       if (options.plot) {
         const std::filesystem::path file =

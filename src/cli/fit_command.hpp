@@ -20,6 +20,7 @@ struct FitCommandOptions {
   std::optional<std::filesystem::path> specs;    ///< --specs FILE
   std::optional<std::filesystem::path> csv;      ///< --csv FILE
   bool use_prior = true;                         ///< false with --no-prior: readings alone
+  bool require_spec = false;                     ///< --require-spec: a material with no limits is bad input
 };
 
 /// Runs the fit subcommand; returns the exit code (interface.md). Throws io::InputError for bad input.

@@ -80,6 +80,9 @@ int run(int argc, char** argv) {
   bool fit_no_prior = false;
   fit->add_flag("--no-prior", fit_no_prior,
                 "Fit the readings alone: no flow-index prior from the spec catalogue or the history (--db)");
+  bool fit_require_spec = false;
+  fit->add_flag("--require-spec", fit_require_spec,
+                "Refuse (exit 2, nothing fitted) a material without limits: no [spec] and no catalogue entry");
 
   // --- simulate ----------------------------------------------------------------------------------------------
   CLI::App* simulate = app.add_subcommand(
@@ -230,6 +233,9 @@ int run(int argc, char** argv) {
   capture_check.add_to(*capture, "--check", "DIR",
                        "Write audit images (frames with the outline found, a contact sheet, the curve) into DIR");
 
+  // Only fit judges against limits; the other commands have no "out of spec".
+  for (CLI::App* command : {simulate, predict, translate, plan})
+    command->footer("Exit codes: 0 done, 2 bad input or usage, 3 numerical failure.");
   try {
     app.parse(argc, argv);
   } catch (const CLI::Success& e) {  // --help, --help-all, --version
@@ -243,6 +249,13 @@ int run(int argc, char** argv) {
                              : plan->parsed()      ? plan
                              : capture->parsed()   ? capture
                                                   : nullptr;
+    if (!chosen && argc > 1 && argv[1][0] != '-') {
+      // An unknown first word is a mistyped command: name it and the nearest one, not "a subcommand is required".
+      const std::vector<std::string_view> commands{"fit", "simulate", "history", "predict", "translate", "plan"};
+      std::cerr << "spreadfit: unknown command " << spreadfit::io::quote_for_message(argv[1])
+                << spreadfit::io::did_you_mean(argv[1], commands) << "\nRun 'spreadfit --help' for usage.\n";
+      return to_int(ExitCode::BadInput);
+    }
     std::cerr << "spreadfit: " << e.what() << '\n'
               << "Run 'spreadfit " << (chosen ? chosen->get_name() + " " : std::string()) << "--help' for usage.\n";
     return to_int(ExitCode::BadInput);
@@ -295,6 +308,7 @@ int run(int argc, char** argv) {
   options.specs = fit_specs.get();
   options.csv = fit_csv.get();
   options.use_prior = !fit_no_prior;
+  options.require_spec = fit_require_spec;
   return spreadfit::cli::run_fit_command(options, std::cout, std::cerr);
 }
 
@@ -310,7 +324,7 @@ int main(int argc, char** argv) {
     }
     return code;
   } catch (const spreadfit::io::InputError& e) {
-    std::cerr << "spreadfit: " << e.what() << '\n';
+    spreadfit::io::print_input_error(std::cerr, e);
     return to_int(ExitCode::BadInput);
   } catch (const std::invalid_argument& e) {
     std::cerr << "spreadfit: " << e.what() << '\n';

@@ -319,6 +319,10 @@ int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::
   const double every = one_time(options.every, "--every"), until = one_time(options.until, "--until");
   if (!(every > 0) || until < every)
     throw io::InputError(where, 0, "--every/--until", "expected one interval > 0 and a duration at least as long");
+  if (until / every > static_cast<double>(max_times))
+    throw io::InputError(where, 0, "--every/--until",
+                         fmt::format("{} readings per candidate (expected at most {}; take a longer --every)",
+                                     fmt::format("{:.3g}", until / every), max_times));
   if (options.candidates.empty()) throw io::InputError(where, 0, "CANDIDATE.toml", "expected at least one");
 
   const std::vector<GridPoint> grid = parameter_grid(base.material, ranges, points);

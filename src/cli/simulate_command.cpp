@@ -12,6 +12,7 @@
 #include "models/forward.hpp"
 #include "src/cli/exit_codes.hpp"
 #include "src/io/input_error.hpp"
+#include "src/io/plausible_ranges.hpp"
 #include "src/io/readings_csv.hpp"
 #include "src/io/units.hpp"
 
@@ -133,6 +134,12 @@ SimulationParameters parse_simulation_parameters(Law law, const std::vector<std:
     double value = 0;
     try {
       value = parse_value(value_text, spec->dimension, spec->range);
+      // A material no sauce or cream has (a viscosity of 1e-300 Pa.s) is refused, not simulated.
+      const io::PlausibleRange* range = name == "viscosity"      ? &io::plausible::viscosity
+                                        : name == "consistency"  ? &io::plausible::consistency
+                                        : name == "yield_stress" ? &io::plausible::yield_stress
+                                                                 : nullptr;
+      if (range) (void)io::check_plausible(value, *range, trim(value_text));
     } catch (const io::UnitError& e) {
       fail(field, std::string(e.what()));
     }
@@ -192,6 +199,12 @@ std::vector<double> parse_times(std::string_view list) {
       fail("--times", fmt::format("entry {}: '{}' is not after the entry before it, {} s (expected strictly "
                                   "increasing times)",
                                   entry, text, times.back()));
+    // Simulated times may run to the arrest (1e5 s and more), far past a reading's day, but not without bound.
+    if (t > max_simulated_time)
+      fail("--times", fmt::format("entry {}: '{}' is after {:g} s (expected a time of at most {:g} s)", entry,
+                                  io::shorten_for_message(text), max_simulated_time, max_simulated_time));
+    if (times.size() >= max_times)
+      fail("--times", fmt::format("more than {} times (expected at most {})", max_times, max_times));
     times.push_back(t);
     if (comma == std::string_view::npos) break;
     start = comma + 1;

@@ -22,6 +22,8 @@
 // description. A failed solve is reported on `err` and gives ExitCode::NumericalFailure with nothing on `out`.
 #pragma once
 
+#include <cstddef>
+
 #include <filesystem>
 #include <optional>
 #include <ostream>
@@ -53,6 +55,10 @@ struct SimulationParameters {
 
 /// The "file" InputErrors about options are located in.
 inline constexpr std::string_view command_line_source = "command line";
+/// Most times one --times list (or a plan candidate's --every/--until) may hold: bounds the work and the memory.
+inline constexpr std::size_t max_times = 5000;
+/// Latest simulated time [s], about four months: past any arrest the models reach (common practice, no source).
+inline constexpr double max_simulated_time = 1e7;
 
 /// The law a --model name denotes (exact, lower case). Throws io::InputError for 'auto' and unknown names, with
 /// the nearest valid name.

@@ -1,12 +1,14 @@
 #include "src/io/atomic_file.hpp"
 
 #include <fcntl.h>
+#include <signal.h>
 #include <sys/stat.h>
 #include <unistd.h>
 
 #include <atomic>
 #include <cerrno>
 #include <cstdio>
+#include <cstdlib>
 #include <string>
 #include <system_error>
 
@@ -29,6 +31,27 @@ std::atomic<unsigned long> temporary_counter{0};
 }
 
 std::string reason(int error) { return std::generic_category().message(error); }
+
+/// Removes the temporary files of `target` that a killed process left (".NAME.tmp-PID-N" whose PID no longer runs):
+/// a kill between creating and renaming is the one case the destructor below cannot clean up. Best effort.
+void remove_leftovers(const fs::path& target, const fs::path& folder) {
+  std::string prefix(1, '.');
+  prefix.append(target.filename().string()).append(".tmp-");
+  std::error_code ec;
+  for (fs::directory_iterator it(folder, ec), end; !ec && it != end; it.increment(ec)) {
+    const std::string name = it->path().filename().string();
+    if (name.rfind(prefix, 0) != 0) continue;
+    const std::size_t dash = name.find('-', prefix.size());
+    if (dash == std::string::npos) continue;
+    char* stop = nullptr;
+    const long pid = std::strtol(name.c_str() + prefix.size(), &stop, 10);
+    if (stop != name.c_str() + dash || pid <= 0 || pid == ::getpid()) continue;
+    if (::kill(static_cast<pid_t>(pid), 0) != 0 && errno == ESRCH) {
+      std::error_code ignored;
+      fs::remove(it->path(), ignored);
+    }
+  }
+}
 
 /// The temporary file: an open descriptor and a name, both released on destruction unless committed.
 class TemporaryFile {
@@ -128,6 +151,7 @@ void write_file_atomically(const fs::path& file, std::string_view contents) {
                    file.filename().string() + "')");
   if (fs::is_directory(fs::status(file, ec))) fail(file, "cannot write: it is a folder (expected a file name)");
 
+  remove_leftovers(file, folder);
   TemporaryFile temporary(file, folder);
   temporary.write_all(contents);
   struct stat old {};

@@ -5,7 +5,8 @@
 // How: the contents go to a hidden temporary file in the same folder (".NAME.tmp-PID-N"), which is flushed to the
 // disk and then renamed over NAME; rename within one file system replaces the name in one step (POSIX rename()).
 // A temporary file is removed on every error this code sees; only a process killed between creating and renaming
-// it can leave one behind, and it never carries the final name. POSIX systems only.
+// it can leave one behind, and it never carries the final name; the next write of the same file removes such
+// leftovers of processes that no longer run. POSIX systems only.
 #pragma once
 
 #include <filesystem>

@@ -8,19 +8,46 @@ namespace spreadfit::io {
 
 namespace {
 
+// Longest parts echoed whole: a file path, a field (a CSV header cell, an option as written), a message.
+constexpr std::size_t kFileLimit = 300;
+constexpr std::size_t kFieldLimit = 80;
+constexpr std::size_t kMessageLimit = 600;
+
+/// One printable line: line breaks become blanks, other control characters (NUL, ESC, DEL) \xNN.
+std::string printable(std::string_view text, std::size_t limit) {
+  std::string out;
+  std::size_t i = 0;
+  for (; i < text.size() && out.size() < limit; ++i) {
+    const unsigned char c = static_cast<unsigned char>(text[i]);
+    if (c == '\n' || c == '\r' || c == '\t')
+      out += ' ';
+    else if (c < 0x20 || c == 0x7F) {
+      static const char* const hex = "0123456789ABCDEF";
+      out += "\\x";
+      out += hex[c >> 4];
+      out += hex[c & 0xF];
+    } else
+      out += static_cast<char>(c);
+  }
+  if (i < text.size()) {
+    // Do not end inside a UTF-8 sequence: drop continuation bytes and the lead byte they belong to.
+    while (!out.empty() && (static_cast<unsigned char>(out.back()) & 0xC0) == 0x80) out.pop_back();
+    if (!out.empty() && (static_cast<unsigned char>(out.back()) & 0xC0) == 0xC0) out.pop_back();
+    out += "...";
+  }
+  return out;
+}
+
 std::string location_line(const std::string& file, int line, int column, const std::string& field,
                           const std::string& message) {
-  std::string out = file.empty() ? std::string("<input>") : file;
-  if (line > 0) {
+  std::string out = printable(file, kFileLimit);
+  if (!file.empty() && line > 0) {
     out += ':' + std::to_string(line);
     if (column > 0) out += ':' + std::to_string(column);
   }
-  out += ": ";
-  if (!field.empty()) out += field + ": ";
-  out += message;
-  // One line, whatever the message carried in (a TOML parser's description may hold a newline).
-  std::replace(out.begin(), out.end(), '\n', ' ');
-  std::replace(out.begin(), out.end(), '\r', ' ');
+  if (!out.empty()) out += ": ";
+  if (!field.empty()) out += printable(field, kFieldLimit) + ": ";
+  out += printable(message, kMessageLimit);
   return out;
 }
 
@@ -39,6 +66,23 @@ InputError::InputError(std::string file, int line, std::string field, std::strin
       column_(column),
       field_(std::move(field)),
       message_(std::move(message)) {}
+
+void print_input_error(std::ostream& out, const InputError& error, std::string_view prefix) {
+  out << prefix << ": " << error.what() << '\n';
+  for (const std::string& line : error.further()) out << prefix << ": " << line << '\n';
+  if (error.truncated())
+    out << prefix << ": " << (error.file().empty() ? std::string("input") : printable(error.file(), kFileLimit))
+        << ": stopped after " << InputError::max_reported << " errors; more may follow\n";
+}
+
+std::string shorten_for_message(std::string_view text, std::size_t limit) { return printable(text, limit); }
+
+std::string quote_for_message(std::string_view text, std::size_t limit) {
+  // Built by appending: GCC 12 gives a false -Wrestrict on "'" + std::string.
+  std::string out(1, '\'');
+  out.append(printable(text, limit)).push_back('\'');
+  return out;
+}
 
 std::size_t edit_distance(std::string_view a, std::string_view b) {
   const std::size_t n = a.size(), m = b.size();

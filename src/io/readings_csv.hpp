@@ -7,13 +7,17 @@
 //
 // Format (interface.md "Readings (CSV)", made precise here):
 // - Cells are separated by commas. A cell may be wrapped in double quotes (spreadsheets do), with "" for a quote
-//   inside. Blanks around a cell are ignored. Lines may end in LF or CRLF; a UTF-8 byte-order mark is skipped.
+//   inside. Blanks around a cell are ignored. Lines may end in LF, CRLF or CR; a UTF-8 byte-order mark is skipped.
 // - Blank lines and comment lines are skipped anywhere in the file.
 // - Exactly two columns: `time [unit]` first (s, ms, min, h), then one reading (front | radius | diameter | gap |
 //   slump) in a length unit (m, cm, mm, um, in). A third column is an error: replicates go in files of their own,
 //   listed with `files = [...]` in the test description, so each keeps its own times and line numbers.
 // - Every data row has both cells, each a finite decimal number with a '.' decimal point. Times are >= 0 and
-//   strictly increasing; readings are >= 0. At least one data row.
+//   strictly increasing; readings are >= 0. At least one data row, at most 5000; the file at most 16 MB.
+// - Column names compare without regard to case ("Time [s]"); unit symbols are case-sensitive (mPa is not MPa).
+// - Times above one day and readings above 10 m are refused; above one hour, above 1 m, or an interval 50 times the
+//   usual one are kept with a warning (io/plausible_ranges.hpp). UTF-16 files and NUL bytes are refused.
+// - Row errors do not stop the reading: up to InputError::max_reported of them are reported together.
 // Every error is an InputError located at file:line:column, with the column header as the field.
 #pragma once
 
@@ -36,6 +40,8 @@ struct ReadingSeries {
   std::vector<int> lines;       ///< 1-based line of each row in `source`, so later stages can cite it
   std::string time_unit;        ///< unit symbols as the header wrote them (for reports in the user's units)
   std::string value_unit;
+  /// Implausible but possible values (io/plausible_ranges.hpp), each a "FILE:LINE: FIELD: message" line.
+  std::vector<std::string> warnings;
 };
 
 /// Interface names of the readings, in the order of enum Reading: front, radius, diameter, gap, slump.

@@ -16,6 +16,7 @@
 #include "models/forward.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/test_time.hpp"
+#include "src/io/plausible_ranges.hpp"
 #include "src/io/units.hpp"
 
 namespace spreadfit::io {
@@ -28,6 +29,10 @@ constexpr double kDensityMax = 3000.0;   // kg/m^3
 constexpr double kCelsiusZero = 273.15;  // K (SI Brochure 9th ed., Table 4)
 constexpr double kTemperatureMin = kCelsiusZero - 50.0;
 constexpr double kTemperatureMax = kCelsiusZero + 150.0;
+// Longest sample id or product code: ids go into file names, tables and the history (common practice, no source).
+constexpr std::size_t kMaxIdLength = 64;
+// Largest test description read: a full one is under 2 kB.
+constexpr std::uintmax_t kMaxTomlBytes = 1u << 20;
 
 using Names = std::vector<std::string_view>;
 
@@ -115,6 +120,10 @@ class DescriptionReader {
   std::string name_in(const toml::node& node, const std::string& field, const Names& allowed,
                       std::string_view what) const;
   bool boolean(const toml::node& node, const std::string& field) const;
+  /// An id or code: text of at most kMaxIdLength characters, none of them a control character.
+  std::string identifier(const toml::node& node, const std::string& field) const;
+  /// Refuses `value` outside the possible range (exit 2), records a warning outside the usual one.
+  void plausible(double value, const toml::node& node, const std::string& field, const PlausibleRange& range) const;
   double quantity(const toml::node& node, const std::string& field, Dimension d, Range range) const;
   /// How a quantity node was written, for messages.
   std::string as_written(const toml::node& node) const;
@@ -127,6 +136,7 @@ class DescriptionReader {
   void read_fit(const toml::table& root, TestDescription& out) const;
   void read_capture(const toml::table& root, TestDescription& out) const;
   void check_possible(const TestDescription& out) const;
+  void check_final_reading(double value, const toml::node& node, const Rig& rig, Reading reading) const;
   void read_spec(const toml::table& root, TestDescription& out) const;
   void read_spec_table(const toml::table& spec, const std::string& section, std::vector<SpecLimit>& limits,
                        const Names& allowed = kSpecKeys) const;
@@ -136,6 +146,11 @@ class DescriptionReader {
 
  private:
   toml::table parse() const {
+    std::error_code ec;
+    const std::uintmax_t size = std::filesystem::file_size(file_, ec);
+    if (!ec && size > kMaxTomlBytes)
+      throw InputError(name_, 0, "", fmt::format("file is {} kB (expected a TOML file of at most {} kB)", size >> 10,
+                                                 kMaxTomlBytes >> 10));
     try {
       return toml::parse_file(name_);
     } catch (const toml::parse_error& e) {
@@ -147,7 +162,34 @@ class DescriptionReader {
   std::filesystem::path file_;
   std::string name_;
   LoadOptions options_;
+
+ public:
+  /// Warnings about implausible values, "FILE:LINE: FIELD: message" each, in the order found.
+  mutable std::vector<std::string> warnings_;
 };
+
+std::string DescriptionReader::identifier(const toml::node& node, const std::string& field) const {
+  const std::string value = text(node, field);
+  if (value.size() > kMaxIdLength)
+    fail(line_of(node), field,
+         fmt::format("'{}' is {} characters long (expected at most {})", shorten_for_message(value, 24), value.size(),
+                     kMaxIdLength));
+  for (char c : value)
+    if (static_cast<unsigned char>(c) < 0x20 || c == 0x7F)
+      fail(line_of(node), field,
+           quote_for_message(value) + " holds a control character (expected printable text)");
+  return value;
+}
+
+void DescriptionReader::plausible(double value, const toml::node& node, const std::string& field,
+                                  const PlausibleRange& range) const {
+  try {
+    if (auto warning = check_plausible(value, range, as_written(node)))
+      warnings_.push_back(InputError(name_, line_of(node), field, *warning).what());
+  } catch (const UnitError& e) {
+    fail(line_of(node), field, e.what());
+  }
+}
 
 const toml::table* DescriptionReader::table(const toml::table& root, std::string_view name) const {
   const toml::node* node = root.get(name);
@@ -275,8 +317,9 @@ void DescriptionReader::read_sample(const toml::table& root, TestDescription& ou
   if (!sample) fail(0, "sample", "missing table [sample] (expected at least id and density)");
   check_keys(*sample, "sample", kSampleKeys);
 
-  out.sample_id = text(required(*sample, "sample", "id", "the sample's id, such as \"TS12-0412\""), "sample.id");
-  if (const toml::node* p = sample->get("product")) out.product = text(*p, "sample.product");
+  out.sample_id =
+      identifier(required(*sample, "sample", "id", "the sample's id, such as \"TS12-0412\""), "sample.id");
+  if (const toml::node* p = sample->get("product")) out.product = identifier(*p, "sample.product");
   if (const toml::node* p = sample->get("site")) {
     out.site = text(*p, "sample.site");
     if (out.site.find_first_of("\r\n\t") != std::string::npos)
@@ -319,9 +362,12 @@ Rig DescriptionReader::read_rig(const toml::table& root) const {
       if (std::find(own->begin(), own->end(), k) == own->end()) others.push_back(k);
   check_keys(*rig, "rig", *own, others, kind);
 
-  auto length = [&](std::string_view key, const char* what) {
+  auto length = [&](std::string_view key, const char* what, const PlausibleRange& range) {
     const toml::node& node = required(*rig, "rig", key, expected_quantity(Dimension::Length) + ": " + what);
-    return quantity(node, "rig." + std::string(key), Dimension::Length, Range::Positive);
+    const std::string field = "rig." + std::string(key);
+    const double value = quantity(node, field, Dimension::Length, Range::Positive);
+    plausible(value, node, field, range);
+    return value;
   };
   // volume, or fill_height times the footprint
   auto volume_or_fill = [&](double footprint, const char* fill_meaning) {
@@ -329,8 +375,16 @@ Rig DescriptionReader::read_rig(const toml::table& root) const {
     const toml::node* fill = rig->get("fill_height");
     if (volume && fill)
       fail(line_of(*fill), "rig.fill_height", "give volume or fill_height, not both");
-    if (volume) return quantity(*volume, "rig.volume", Dimension::Volume, Range::Positive);
-    if (fill) return footprint * quantity(*fill, "rig.fill_height", Dimension::Length, Range::Positive);
+    if (volume) {
+      const double v = quantity(*volume, "rig.volume", Dimension::Volume, Range::Positive);
+      plausible(v, *volume, "rig.volume", plausible::sample_volume);
+      return v;
+    }
+    if (fill) {
+      const double h = quantity(*fill, "rig.fill_height", Dimension::Length, Range::Positive);
+      plausible(h, *fill, "rig.fill_height", plausible::fill_height);
+      return footprint * h;
+    }
     fail(line_of(*rig), "rig.volume",
          std::string("missing required key in [rig] (expected volume, such as \"100 mL\", or fill_height: ") +
              fill_meaning + ")");
@@ -338,40 +392,46 @@ Rig DescriptionReader::read_rig(const toml::table& root) const {
 
   if (kind == "channel") {
     ChannelRig c;
-    c.width = length("width", "the channel's width");
-    c.reservoir_length = length("reservoir_length", "the sample block's length behind the gate");
+    c.width = length("width", "the channel's width", plausible::channel_width);
+    c.reservoir_length =
+        length("reservoir_length", "the sample block's length behind the gate", plausible::reservoir_length);
     c.volume = volume_or_fill(c.width * c.reservoir_length, "the sample's depth behind the gate");
     if (const toml::node* drag = rig->get("side_wall_drag")) c.side_wall_drag = boolean(*drag, "rig.side_wall_drag");
     return c;
   }
   if (kind == "plate") {
     PlateRig p;
-    p.ring_radius = length("ring_radius", "the ring's inner radius");
+    p.ring_radius = length("ring_radius", "the ring's inner radius", plausible::ring_radius);
     p.volume = volume_or_fill(std::numbers::pi * p.ring_radius * p.ring_radius, "the sample's depth in the ring");
     return p;
   }
   if (kind == "squeeze") {
     SqueezeRig s;
-    s.volume = quantity(required(*rig, "rig", "volume", expected_quantity(Dimension::Volume)), "rig.volume",
-                        Dimension::Volume, Range::Positive);
+    const toml::node& volume = required(*rig, "rig", "volume", expected_quantity(Dimension::Volume));
+    s.volume = quantity(volume, "rig.volume", Dimension::Volume, Range::Positive);
+    plausible(s.volume, volume, "rig.volume", plausible::sample_volume);
     const toml::node* load = rig->get("load");
     const toml::node* force = rig->get("force");
     if (load && force) fail(line_of(*force), "rig.force", "give load (a mass) or force, not both");
-    if (load)
+    if (load) {
       s.force = standard_gravity * quantity(*load, "rig.load", Dimension::Mass, Range::Positive);
-    else if (force)
+      plausible(s.force, *load, "rig.load", plausible::squeeze_force);
+    } else if (force) {
       s.force = quantity(*force, "rig.force", Dimension::Force, Range::Positive);
-    else
+      plausible(s.force, *force, "rig.force", plausible::squeeze_force);
+    } else
       fail(line_of(*rig), "rig.load",
            "missing required key in [rig] (expected load, the mass on the sample including the top plate, such "
            "as \"250 g\", or force, such as \"2.5 N\")");
-    if (const toml::node* gap = rig->get("initial_gap"))
+    if (const toml::node* gap = rig->get("initial_gap")) {
       s.initial_gap = quantity(*gap, "rig.initial_gap", Dimension::Length, Range::Positive);
+      plausible(s.initial_gap, *gap, "rig.initial_gap", plausible::initial_gap);
+    }
     return s;
   }
   SlumpRig s;
-  s.radius = length("radius", "the cylinder's radius");
-  s.height = length("height", "the cylinder's height");
+  s.radius = length("radius", "the cylinder's radius", plausible::cylinder_radius);
+  s.height = length("height", "the cylinder's height", plausible::cylinder_height);
   return s;
 }
 
@@ -411,11 +471,15 @@ void DescriptionReader::read_readings(const toml::table& root, TestDescription& 
     out.setup.reading = *named;
   }
 
-  if (const toml::node* r = readings->get("resolution"))
+  if (const toml::node* r = readings->get("resolution")) {
     out.resolution = quantity(*r, "readings.resolution", Dimension::Length, Range::Positive);
+    plausible(*out.resolution, *r, "readings.resolution", plausible::resolution);
+  }
 
   if (final) {
     out.final_reading = quantity(*final, "readings.final", Dimension::Length, Range::NonNegative);
+    plausible(*out.final_reading, *final, "readings.final", plausible::spread_reading);
+    check_final_reading(*out.final_reading, *final, rig, out.setup.reading);
     if (const auto* slump = std::get_if<SlumpRig>(&rig); slump && *out.final_reading > slump->height)
       fail(line_of(*final), "readings.final",
            fmt::format("slump '{}' is more than the cylinder's height {} m (expected 0 to the height)",
@@ -459,10 +523,14 @@ void DescriptionReader::read_readings(const toml::table& root, TestDescription& 
     out.readings_files.push_back(resolved);
     if (!options_.read_readings_files) continue;
     std::error_code ec;
+    if (std::filesystem::is_directory(resolved, ec))
+      fail(line_of(*node), field,
+           "'" + written + "' is a folder (expected a readings CSV file; looked at '" + resolved.string() + "')");
     if (!std::filesystem::is_regular_file(resolved, ec))
       fail(line_of(*node), field,
            "readings file '" + written + "' not found (looked for '" + resolved.string() + "')");
     ReadingSeries series = read_readings_csv(resolved);
+    warnings_.insert(warnings_.end(), series.warnings.begin(), series.warnings.end());
     const std::string kind_name(reading_names()[static_cast<std::size_t>(series.kind)]);
     if (!rig_has_reading(rig, series.kind))
       fail(line_of(*node), field,
@@ -482,6 +550,32 @@ void DescriptionReader::read_readings(const toml::table& root, TestDescription& 
   if (!out.series.empty()) out.setup.reading = out.series.front().kind;
 }
 
+// A final reading the test cannot end at: the sample only spreads from where it started, so a plate reading at or
+// inside the ring, a squeeze disc no wider than it started, a zero gap, or no flow at all give no yield stress (the
+// plastic-limit relations divide by the spread).
+void DescriptionReader::check_final_reading(double value, const toml::node& node, const Rig& rig,
+                                            Reading reading) const {
+  const std::string shown = quote_for_message(as_written(node));
+  auto refuse = [&](const std::string& why) { fail(line_of(node), "readings.final", shown + " " + why); };
+  if (std::holds_alternative<ChannelRig>(rig) && !(value > 0))
+    refuse("is no flow past the gate: the yield stress is then only bounded from below (expected a front > 0)");
+  if (const auto* p = std::get_if<PlateRig>(&rig)) {
+    const double start = reading == Reading::Diameter ? 2.0 * p->ring_radius : p->ring_radius;
+    if (!(value > start))
+      refuse(fmt::format("is not beyond the ring's {} {:.4g} m: the sample starts there and only spreads (expected "
+                         "a {} > {:.4g} m)",
+                         reading == Reading::Diameter ? "diameter" : "radius", start,
+                         reading == Reading::Diameter ? "diameter" : "radius", start));
+  }
+  if (const auto* q = std::get_if<SqueezeRig>(&rig)) {
+    if (reading == Reading::Gap && !(value > 0)) refuse("is a closed gap (expected a gap > 0)");
+    if (reading != Reading::Gap && !(value > 0)) refuse("is no disc (expected a radius or diameter > 0)");
+    (void)q;
+  }
+  if (std::holds_alternative<SlumpRig>(rig) && !(value > 0))
+    refuse("is no slump: the yield stress is then only bounded from below (expected a slump > 0)");
+}
+
 void DescriptionReader::read_fit(const toml::table& root, TestDescription& out) const {
   const toml::table* fit = table(root, "fit");
   if (!fit) return;
@@ -494,6 +588,7 @@ void DescriptionReader::read_fit(const toml::table& root, TestDescription& out) 
     out.fit.fit_time_origin = name_in(*origin, "fit.time_origin", kTimeOrigins, "time_origin") == "fit";
   if (const toml::node* before = fit->get("ignore_before")) {
     out.fit.ignore_before = quantity(*before, "fit.ignore_before", Dimension::Time, Range::NonNegative);
+    plausible(out.fit.ignore_before, *before, "fit.ignore_before", plausible::reading_time);
     for (const ReadingSeries& s : out.series)
       if (s.times.back() < out.fit.ignore_before)
         fail(line_of(*before), "fit.ignore_before",
@@ -636,6 +731,9 @@ std::map<std::string, ProductSpec> DescriptionReader::read_catalogue() const {
   std::map<std::string, ProductSpec> catalogue;
   for (const toml::key* key : keys_in_file_order(root)) {
     const std::string product(key->str());
+    if (product.size() > kMaxIdLength)
+      fail(line_of(*key), shorten_for_message(product, 24),
+           fmt::format("product code of {} characters (expected at most {})", product.size(), kMaxIdLength));
     const toml::node& node = *root.get(key->str());
     if (!node.is_table())
       fail(line_of(*key), product,
@@ -644,14 +742,23 @@ std::map<std::string, ProductSpec> DescriptionReader::read_catalogue() const {
     const toml::table& table = *node.as_table();
     ProductSpec& spec = catalogue[product];
     read_spec_table(table, product, spec.limits, kCatalogueKeys);
-    if (const toml::node* t = table.get("reference_temperature"))
-      spec.reference_temperature = quantity(*t, product + ".reference_temperature", Dimension::Temperature,
-                                            Range::Positive);
-    if (const toml::node* e = table.get("activation_energy"))
-      spec.activation_energy = quantity(*e, product + ".activation_energy", Dimension::MolarEnergy, Range::NonNegative);
-    if (const toml::node* e = table.get("yield_stress_activation_energy"))
-      spec.yield_stress_activation_energy =
-          quantity(*e, product + ".yield_stress_activation_energy", Dimension::MolarEnergy, Range::NonNegative);
+    if (const toml::node* t = table.get("reference_temperature")) {
+      const std::string field = product + ".reference_temperature";
+      spec.reference_temperature = quantity(*t, field, Dimension::Temperature, Range::Positive);
+      if (*spec.reference_temperature < kTemperatureMin || *spec.reference_temperature > kTemperatureMax)
+        fail(line_of(*t), field,
+             fmt::format("'{}' is {} K, outside -50 to 150 degC (a bare number is in K; write a unit, such as "
+                         "\"20 degC\")",
+                         shorten_for_message(as_written(*t)), *spec.reference_temperature));
+    }
+    for (const auto& [energy_key, target] : {std::pair{"activation_energy", &spec.activation_energy},
+                                      std::pair{"yield_stress_activation_energy",
+                                                &spec.yield_stress_activation_energy}})
+      if (const toml::node* e = table.get(energy_key)) {
+        const std::string field = product + "." + energy_key;
+        *target = quantity(*e, field, Dimension::MolarEnergy, Range::NonNegative);
+        plausible(*target, *e, field, plausible::activation_energy);
+      }
     if (const toml::node* prior = table.get("flow_index_prior")) {
       // [typical, spread]: a normal prior on the flow index, from the formulation's earlier batches.
       const std::string field = product + ".flow_index_prior";
@@ -739,6 +846,7 @@ TestDescription DescriptionReader::read() {
 
   TestDescription out;
   out.path = file_;
+  warnings_.clear();
   read_sample(root, out);
   out.setup.rig = read_rig(root);
   out.setup.density = out.density;
@@ -747,6 +855,7 @@ TestDescription DescriptionReader::read() {
   read_fit(root, out);
   read_spec(root, out);
   if (options_.read_capture) read_capture(root, out);
+  out.warnings = warnings_;
   return out;
 }
 

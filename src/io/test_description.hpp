@@ -33,7 +33,11 @@
 //   plate fill_height h:   volume = h * pi * ring_radius^2
 //   squeeze load m:        force = m * 9.80665 m/s^2 (standard gravity, CGPM 1901)
 // Plausibility limits that catch a unit slip (common practice, no source): density 100 to 3000 kg/m^3 (a bare
-// 1.1 meant g/mL); temperature -50 degC to 150 degC (a bare 21.5 meant degC, not K).
+// 1.1 meant g/mL); temperature -50 degC to 150 degC (a bare 21.5 meant degC, not K). Rig sizes, volumes, loads,
+// resolution, times and activation energies have a possible range (outside: refused) and a usual range (outside:
+// kept, with a warning in TestDescription::warnings), listed in io/plausible_ranges.hpp. Ids and product codes are
+// at most 64 characters without control characters; a final reading must be a spread the rig can end at (a plate
+// beyond the ring, a channel front, slump or gap above 0).
 //
 // Every error is an InputError "FILE:LINE: FIELD: message" with the TOML line of the offending key or value
 // (the table's header line for a missing key). Unknown tables, keys and names suggest the nearest valid one.
@@ -106,6 +110,8 @@ struct TestDescription {
   std::optional<double> resolution;       ///< [m], reading standard uncertainty
   FitSettings fit;
   std::vector<SpecLimit> spec;            ///< in file order
+  /// Values kept but unusual (io/plausible_ranges.hpp), "FILE:LINE: FIELD: message" each, readings files' too.
+  std::vector<std::string> warnings;
 };
 
 /// Reads, converts and checks a test description and the readings files it names. Throws InputError.

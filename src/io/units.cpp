@@ -226,6 +226,9 @@ std::vector<std::string_view> unit_symbols(Dimension d) {
 
 const Unit& find_unit(std::string_view symbol_in, Dimension expected) {
   const std::string symbol = squeeze_blanks(trim(symbol_in));
+  if (symbol.size() > 16)
+    throw UnitError("unknown unit '" + shorten_for_message(symbol, 16) + "' (expected " + expected_units(expected) +
+                    ")");
   const Unit* other = nullptr;
   for (const auto& e : kUnits) {
     if (e.unit.symbol != symbol) continue;
@@ -252,12 +255,15 @@ double convert_to_si(double value, std::string_view symbol, Dimension expected) 
 
 double parse_number(std::string_view text_in) {
   const std::string_view text = trim(text_in);
-  const std::string shown(text);
+  const std::string shown = shorten_for_message(text);
   if (text.empty()) throw UnitError("empty value (expected a finite decimal number such as 2.9)");
   if (starts_with_nonfinite_word(text))
     throw UnitError("'" + shown + "' is not a finite number (expected a finite decimal number such as 2.9)");
   double value = 0;
   const std::size_t used = number_prefix(text, value);
+  if (used > 0 && used < text.size() && text[used] == ',' && used + 1 < text.size() && text[used + 1] >= '0' &&
+      text[used + 1] <= '9')
+    throw UnitError("'" + shown + "' has a decimal comma (expected a decimal point, such as 2.9)");
   if (used == 0 || used != text.size())
     throw UnitError("'" + shown + "' is not a number (expected a finite decimal number such as 2.9)");
   if (!std::isfinite(value))
@@ -267,7 +273,7 @@ double parse_number(std::string_view text_in) {
 
 double parse_quantity(std::string_view text_in, Dimension dimension, Range range) {
   const std::string_view text = trim(text_in);
-  const std::string shown(text);
+  const std::string shown = shorten_for_message(text);
   const std::string example(example_quantity(dimension));
   if (text.empty()) throw UnitError("empty quantity (expected a value and a unit, such as \"" + example + "\")");
   if (starts_with_nonfinite_word(text))
@@ -297,7 +303,7 @@ double parse_quantity(std::string_view text_in, Dimension dimension, Range range
 void check_range(double si, Dimension dimension, Range range, std::string_view as_written) {
   // Built by appending: GCC 12 gives a false -Wrestrict on "'" + std::string(...).
   std::string shown(1, '\'');
-  shown.append(as_written).push_back('\'');
+  shown.append(shorten_for_message(as_written)).push_back('\'');
   const std::string name(dimension_name(dimension));
   if (!std::isfinite(si)) throw UnitError(shown + " is not a finite number (expected a finite " + name + ")");
   if (dimension == D::Temperature) {

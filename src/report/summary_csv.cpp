@@ -2,6 +2,8 @@
 
 #include <fmt/format.h>
 
+#include <cmath>
+
 namespace spreadfit {
 
 namespace {
@@ -12,6 +14,10 @@ std::string cell(const std::string& text) {
   for (char c : text) q += c == '"' ? std::string("\"\"") : std::string(1, c);
   return q + "\"";
 }
+
+// A number cell; empty when not finite (a final-only result has no rmse), so that no "nan" or "inf" reaches a
+// spreadsheet as if it were a result.
+std::string number(double v) { return std::isfinite(v) ? fmt::format("{}", v) : std::string(); }
 
 struct Column {
   const char* name;
@@ -39,12 +45,13 @@ std::string summary_csv(const std::vector<FitOutcome>& outcomes) {
       if (r)
         for (const auto& p : r->parameters)
           if (p.name == c.name) found = &p;
-      s += found ? fmt::format(",{},{},{}", found->value, found->lower, found->upper) : std::string(",,,");
+      s += found ? fmt::format(",{},{},{}", number(found->value), number(found->lower), number(found->upper))
+                 : std::string(",,,");
     }
     std::string warnings;
     if (r)
       for (const auto& w : r->warnings) warnings += (warnings.empty() ? "" : "; ") + w;
-    s += r ? fmt::format(",{},{}", r->rmse * 1e3, r->points) : std::string(",,");
+    s += r ? fmt::format(",{},{}", number(r->rmse * 1e3), r->points) : std::string(",,");
     s += "," + std::string(verdict_status_name(o.verdict.status)) + "," + cell(warnings) + "\n";
   }
   return s;

@@ -55,7 +55,9 @@ TEST_CASE("every reading name maps to its kind") {
                                                    {"diameter", Reading::Diameter},
                                                    {"gap", Reading::Gap},
                                                    {"slump", Reading::Slump}};
-  for (const auto& [name, kind] : names) {
+  for (const auto& entry : names) {
+    const auto& name = entry.first;  // not a structured binding: clang 14 cannot capture one in INFO
+    const auto& kind = entry.second;
     INFO("reading: " << name);
     const auto s = parse_readings_csv(std::string("time [s],") + name + " [mm]\n1,2\n", "run.csv");
     CHECK(s.kind == kind);
@@ -189,7 +191,8 @@ TEST_CASE("data cells must be finite numbers, located by line and column") {
   }
   SUBCASE("a decimal comma makes a third cell") {
     CHECK(std::string(csv_error(header + "5,3,1\n").what()) ==
-          "run.csv:4:5: row has 3 cells (expected 2: time [s], front [cm])");
+          "run.csv:4:5: row has 3 cells (expected 2: time [s], front [cm]); a decimal comma? write numbers with a "
+            "decimal point, such as 2.9");
   }
   SUBCASE("a row with one cell") {
     CHECK(std::string(csv_error(header + "5\n").what()) ==

@@ -455,7 +455,9 @@ TEST_CASE("fit settings are checked against the readings") {
                                                   {"power-law", Law::PowerLaw},
                                                   {"bingham", Law::Bingham},
                                                   {"herschel-bulkley", Law::HerschelBulkley}};
-    for (const auto& [name, law] : models) {
+    for (const auto& entry : models) {
+      const auto& name = entry.first;  // not a structured binding: clang 14 cannot capture one in INFO
+      const auto& law = entry.second;
       INFO("model: " << name);
       const auto d =
           load_test_description(dir.write("test.toml", base + "[fit]\nmodel = \"" + std::string(name) + "\"\n"));
@@ -527,12 +529,13 @@ TEST_CASE("files that are not readable TOML") {
 }
 
 TEST_CASE("io: a reading larger than the sample's volume allows is refused with its line") {
-  // 100 mL in a 5 cm channel cannot run 50 m past the gate (the layer would average under 0.05 mm over 40 m).
+  // 50 mL on a plate cannot spread to a radius of 80 cm: a disc of 0.56 m radius is already 0.05 mm thick
+  // (V / (pi r^2), arithmetic).
   spreadfit::io::test::TempDir dir;
-  dir.write("run.csv", "time [s],front [cm]\n1,5.2\n2,5000\n");
+  dir.write("run.csv", "time [s],radius [cm]\n1,5.2\n2,80\n");
   const auto file = dir.write("t.toml",
-                              "[sample]\nid = \"X1\"\ndensity = \"1 g/mL\"\n[rig]\nkind = \"channel\"\nwidth = \"5 cm\"\n"
-                              "reservoir_length = \"5 cm\"\nvolume = \"100 mL\"\n[readings]\nfile = \"run.csv\"\n");
+                              "[sample]\nid = \"X1\"\ndensity = \"1 g/mL\"\n[rig]\nkind = \"plate\"\nring_radius = \"3 cm\"\n"
+                              "volume = \"50 mL\"\n[readings]\nfile = \"run.csv\"\n");
   try {
     spreadfit::io::load_test_description(file);
     FAIL("expected an InputError");

@@ -266,7 +266,7 @@ TEST_CASE("parse_number takes a whole finite decimal number and nothing else") {
   CHECK(spreadfit::io::parse_number("-1e-3") == -1e-3);
   CHECK(spreadfit::io::parse_number(".5") == 0.5);
   CHECK_THROWS_WITH_AS(spreadfit::io::parse_number("2,5"),
-                       "'2,5' is not a number (expected a finite decimal number such as 2.9)", UnitError);
+                       "'2,5' has a decimal comma (expected a decimal point, such as 2.9)", UnitError);
   CHECK_THROWS_WITH_AS(spreadfit::io::parse_number("1.2.3"),
                        "'1.2.3' is not a number (expected a finite decimal number such as 2.9)", UnitError);
   CHECK_THROWS_WITH_AS(spreadfit::io::parse_number("+-1"),
