@@ -27,6 +27,7 @@ SpreadingOptions spreading_options(const ForwardOptions& o) {
   s.rel_tol = o.rel_tol;
   s.max_steps = o.max_steps;
   s.jacobian_reuse = o.jacobian_reuse;
+  s.stepper = o.stepper;
   return s;
 }
 

@@ -8,6 +8,7 @@
 
 #include "models/rheology.hpp"
 #include "models/rig.hpp"
+#include "models/thin_film.hpp"
 
 namespace spreadfit {
 
@@ -16,7 +17,8 @@ struct ForwardOptions {
   int cells = 40;                ///< Lagrangian cells of the thin-film models (>= 8)
   double rel_tol = 1e-4;           ///< relative local error tolerance of the thin-film time stepper
   std::size_t max_steps = 200000;  ///< bound on accepted + rejected steps per solve
-  int jacobian_reuse = 4;          ///< thin-film stepper: accepted steps one Jacobian serves (SpreadingOptions)
+  int jacobian_reuse = 4;          ///< Ros2 stepper only: accepted steps one Jacobian serves (SpreadingOptions)
+  TimeStepper stepper = TimeStepper::Rodas;  ///< thin-film time stepper (SpreadingOptions)
 };
 
 enum class SolveStatus { Ok, StepLimit, Failed };

@@ -51,4 +51,18 @@ double film_flux(const Material& m, double stress_gradient, double h);
 /// Depth-averaged velocity q/h [m/s] of the same layer (0 where it does not yield).
 double film_velocity(const Material& m, double stress_gradient, double h);
 
+/// The depth-averaged velocity and its two partial derivatives, for an analytic Jacobian of the thin-film system.
+struct FilmVelocity {
+  double u = 0.0;      ///< q/h [m/s]
+  double du_dG = 0.0;  ///< d u / d G at fixed h [m^2/(Pa s)]
+  double du_dh = 0.0;  ///< d u / d h at fixed G [1/s]
+};
+
+/// u = q/h with its derivatives, from the flux above by the chain rule through Y = h - tau_y/G:
+///   dq/dY = n/(n+1) P [(1 + 1/n)(h - aY) - aY],  P = (G Y/K)^(1/n),  a = n/(2n+1),
+///   dq/dh = dq/dY + n/(n+1) Y P,   dq/dG = dq/dY tau_y/G^2 + q/(n G).
+/// All three are 0 where the layer does not yield (the flux is C1 there). At G = 0 the derivative in G is its limit:
+/// h^2/(3K) for a Newtonian layer, 0 for n < 1 or a yield stress, and 0 (in place of +infinity) for n > 1.
+FilmVelocity film_velocity_with_derivatives(const Material& m, double stress_gradient, double h);
+
 }  // namespace spreadfit

@@ -56,18 +56,46 @@ struct Table {
     }
   }
 };
+
+const Table& table() {
+  static const Table t;
+  return t;
+}
 }  // namespace
 
 double side_wall_flux_factor(double h_over_w) {
   if (!(h_over_w > 0)) return 1.0;
   if (h_over_w >= table_end) return side_wall_flux_factor_exact(h_over_w);
-  static const Table table;
-  const double u = h_over_w / table.step;
+  const Table& tab = table();
+  const double u = h_over_w / tab.step;
   const int i = std::min(int(u), table_size - 2);
-  const double t = u - i, h = table.step;
+  const double t = u - i, h = tab.step;
   const double t2 = t * t, t3 = t2 * t;
-  return (2 * t3 - 3 * t2 + 1) * table.f[i] + (t3 - 2 * t2 + t) * h * table.df[i] + (-2 * t3 + 3 * t2) * table.f[i + 1] +
-         (t3 - t2) * h * table.df[i + 1];
+  return (2 * t3 - 3 * t2 + 1) * tab.f[i] + (t3 - 2 * t2 + t) * h * tab.df[i] + (-2 * t3 + 3 * t2) * tab.f[i + 1] +
+         (t3 - t2) * h * tab.df[i + 1];
+}
+
+SideWallFactor side_wall_flux_factor_with_slope(double h_over_w) {
+  SideWallFactor out;
+  if (!(h_over_w > 0)) return out;
+  if (h_over_w >= table_end) {
+    const double e = 1e-6 * h_over_w;
+    out.f = side_wall_flux_factor_exact(h_over_w);
+    out.df = (side_wall_flux_factor_exact(h_over_w + e) - side_wall_flux_factor_exact(h_over_w - e)) / (2 * e);
+    return out;
+  }
+  const Table& tab = table();
+  const double u = h_over_w / tab.step;
+  const int i = std::min(int(u), table_size - 2);
+  const double t = u - i, h = tab.step;
+  const double t2 = t * t, t3 = t2 * t;
+  out.f = (2 * t3 - 3 * t2 + 1) * tab.f[i] + (t3 - 2 * t2 + t) * h * tab.df[i] + (-2 * t3 + 3 * t2) * tab.f[i + 1] +
+          (t3 - t2) * h * tab.df[i + 1];
+  // d/d(depth/width) = (d/dt) / step.
+  out.df = ((6 * t2 - 6 * t) * tab.f[i] + (3 * t2 - 4 * t + 1) * h * tab.df[i] + (-6 * t2 + 6 * t) * tab.f[i + 1] +
+            (3 * t2 - 2 * t) * h * tab.df[i + 1]) /
+           h;
+  return out;
 }
 
 }  // namespace spreadfit

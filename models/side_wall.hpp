@@ -11,6 +11,12 @@ namespace spreadfit {
 
 /// Flux factor f in (0, 1] of an open rectangular channel of width W at depth h (f -> 1 as h/W -> 0).
 double side_wall_flux_factor(double depth_over_width);
+/// The factor and its derivative in depth/width (from the same C1 interpolant), for analytic Jacobians.
+struct SideWallFactor {
+  double f = 1.0;
+  double df = 0.0;  ///< d f / d (depth/width)
+};
+SideWallFactor side_wall_flux_factor_with_slope(double depth_over_width);
 /// The same from the series itself (the fast version reads a table built from this).
 double side_wall_flux_factor_exact(double depth_over_width);
 

@@ -8,7 +8,9 @@
 #include <numbers>
 #include <stdexcept>
 
+#include "models/adaptive_dense_stepper.hpp"
 #include "models/side_wall.hpp"
+#include "models/tridiagonal_rodas.hpp"
 #include "models/tridiagonal_rosenbrock.hpp"
 
 namespace spreadfit {
@@ -33,6 +35,84 @@ double SpreadingSystem::cell_area(double left, double right) const {
   const double L = p_.initial_extent;
   if (p_.geometry == Geometry::Planar) return (right - left) * L;
   return 0.5 * (right - left) * (right + left) * L * L;
+}
+
+double SpreadingSystem::area_slope(double node) const {
+  const double L = p_.initial_extent;
+  return p_.geometry == Geometry::Planar ? L : node * L * L;
+}
+
+// Node velocity v = -sign(slope) U(rho g |slope|, depth), U = film velocity times the side-wall factor, with
+// dv/dslope = -rho g dU/dG and dv/ddepth = -sign(slope) dU/dh.
+SpreadingSystem::NodeVelocity SpreadingSystem::node_velocity(double slope, double depth) const {
+  const FilmVelocity fv = film_velocity_with_derivatives(p_.material, p_.rho_g * std::abs(slope), depth);
+  double U = fv.u, U_G = fv.du_dG, U_h = fv.du_dh;
+  if (p_.channel_width > 0) {
+    const double W = p_.channel_width;
+    const SideWallFactor sw = side_wall_flux_factor_with_slope(depth / W);
+    U_h = U_h * sw.f + U * sw.df / W;
+    U *= sw.f;
+    U_G *= sw.f;
+  }
+  const double sign = slope > 0 ? 1.0 : -1.0;
+  return {-sign * U, -p_.rho_g * U_G, -sign * U_h};
+}
+
+void SpreadingSystem::tridiagonal_jacobian(const Eigen::VectorXd& x, double /*t*/, Eigen::VectorXd& dxdt,
+                                           Eigen::VectorXd& lower, Eigen::VectorXd& diag,
+                                           Eigen::VectorXd& upper) const {
+  const Eigen::Index n = x.size();
+  const double L = p_.initial_extent;
+  dxdt.resize(n);
+  lower.setZero(n);
+  diag.setZero(n);
+  upper.setZero(n);
+  // Per cell j (between nodes j-1 and j, node -1 the wall or axis at 0): width, height and the height's
+  // derivatives in its two nodes, dh/dx_right = -h A'(x_right)/A, dh/dx_left = +h A'(x_left)/A.
+  thread_local Eigen::VectorXd w, h, dh_left, dh_right;
+  w.resize(n);
+  h.resize(n);
+  dh_left.resize(n);
+  dh_right.resize(n);
+  double left = 0.0;
+  for (Eigen::Index j = 0; j < n; ++j) {
+    w[j] = (x[j] - left) * L;
+    if (!(w[j] > 0)) {
+      dxdt.setConstant(std::numeric_limits<double>::quiet_NaN());
+      return;
+    }
+    const double area = cell_area(left, x[j]);
+    h[j] = mass_[j] / area;
+    dh_right[j] = -h[j] * area_slope(x[j]) / area;
+    dh_left[j] = h[j] * area_slope(left) / area;
+    left = x[j];
+  }
+  // Interior node i between cells i and i+1 (the operator() formulas), differentiated in hl, hr, wl, wr; the
+  // widths move with dw/dx_right = L, dw/dx_left = -L; dxdt = v/L.
+  for (Eigen::Index i = 0; i + 1 < n; ++i) {
+    const double wl = w[i], wr = w[i + 1], hl = h[i], hr = h[i + 1], sum = wl + wr;
+    const double depth = (hl * wr + hr * wl) / sum;
+    const double slope = 2.0 * (hr - hl) / sum;
+    const NodeVelocity nv = node_velocity(slope, depth);
+    const double a_hl = (nv.dv_dslope * -2.0 + nv.dv_ddepth * wr) / sum;
+    const double a_hr = (nv.dv_dslope * 2.0 + nv.dv_ddepth * wl) / sum;
+    const double a_wl = (-nv.dv_dslope * slope + nv.dv_ddepth * (hr - depth)) / sum;
+    const double a_wr = (-nv.dv_dslope * slope + nv.dv_ddepth * (hl - depth)) / sum;
+    dxdt[i] = nv.v / L;
+    if (i > 0) lower[i] = (a_hl * dh_left[i] - a_wl * L) / L;
+    diag[i] = (a_hl * dh_right[i] + a_wl * L + a_hr * dh_left[i + 1] - a_wr * L) / L;
+    upper[i] = (a_hr * dh_right[i + 1] + a_wr * L) / L;
+  }
+  // Front node: h_mid = F h, slope = -2 alpha h_mid / w of the last cell.
+  const Eigen::Index f = n - 1;
+  const double h_mid = front_height_factor_ * h[f];
+  const double slope = -2.0 * front_alpha_ * h_mid / w[f];
+  const NodeVelocity nv = node_velocity(slope, h_mid);
+  const double a_h = (nv.dv_dslope * slope / h_mid + nv.dv_ddepth) * front_height_factor_;
+  const double a_w = -nv.dv_dslope * slope / w[f];
+  dxdt[f] = nv.v / L;
+  if (f > 0) lower[f] = (a_h * dh_left[f] - a_w * L) / L;
+  diag[f] = (a_h * dh_right[f] + a_w * L) / L;
 }
 
 Eigen::VectorXd SpreadingSystem::heights(const Eigen::VectorXd& x) const {
@@ -122,17 +202,35 @@ SpreadingSolution solve_spreading(const SpreadingProblem& problem, const std::ve
   auto observer = [&](const Eigen::VectorXd& state, double) {
     if (seen++ > 0) out.fronts.push_back(state[state.size() - 1] * problem.initial_extent);
   };
-  TridiagonalRosenbrock2 stepper(options.abs_tol, options.rel_tol, options.jacobian_reuse);
+  const boost::numeric::odeint::max_step_checker checker(static_cast<int>(options.max_steps));
   try {
-    out.steps = boost::numeric::odeint::integrate_times(
-        std::ref(stepper), std::cref(system), x, obs_times.begin(), obs_times.end(), dt, observer,
-        boost::numeric::odeint::max_step_checker(static_cast<int>(options.max_steps)));
+    if (options.stepper == TimeStepper::Rodas) {
+      AdaptiveDenseStepper<TridiagonalRodas> stepper(
+          TridiagonalRodas{}, StepSizeController(options.abs_tol, options.rel_tol, TridiagonalRodas::error_order));
+      try {
+        out.steps = boost::numeric::odeint::integrate_times(std::ref(stepper), std::cref(system), x,
+                                                            obs_times.begin(), obs_times.end(), dt, observer, checker);
+      } catch (...) {
+        out.rhs_calls = stepper.method().rhs_calls();
+        throw;
+      }
+      out.rhs_calls = stepper.method().rhs_calls();
+    } else {
+      TridiagonalRosenbrock2 stepper(options.abs_tol, options.rel_tol, options.jacobian_reuse);
+      try {
+        out.steps = boost::numeric::odeint::integrate_times(std::ref(stepper), std::cref(system), x,
+                                                            obs_times.begin(), obs_times.end(), dt, observer, checker);
+      } catch (...) {
+        out.rhs_calls = stepper.rhs_calls();
+        throw;
+      }
+      out.rhs_calls = stepper.rhs_calls();
+    }
   } catch (const std::exception& e) {
     out.ok = false;
-    out.message = "thin-film solve stopped: more than " + std::to_string(options.max_steps) +
-                  " time steps between two readings (SpreadingOptions::max_steps) [" + e.what() + "]";
+    out.message = std::string("thin-film solve stopped: ") + e.what() + " (SpreadingOptions::max_steps allows " +
+                  std::to_string(options.max_steps) + " time steps between two readings)";
   }
-  out.rhs_calls = stepper.rhs_calls();
   if (out.ok && (!x.allFinite() || out.fronts.size() != times.size())) {
     out.ok = false;
     out.message = "thin-film solve produced a non-finite state";

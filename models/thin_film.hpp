@@ -34,14 +34,21 @@ struct SpreadingProblem {
   double channel_width = 0.0;  ///< > 0 applies the side-wall flux factor of that width (planar only) [m]
 };
 
+/// Time integrators of the method of lines.
+enum class TimeStepper {
+  Rodas,  ///< RODAS 4(3), analytic tridiagonal Jacobian every step, continuous output (tridiagonal_rodas.hpp)
+  Ros2,   ///< ROS2, finite-difference Jacobian kept for jacobian_reuse steps, steps end on every requested time
+};
+
 struct SpreadingOptions {
+  TimeStepper stepper = TimeStepper::Rodas;
   int cells = 40;                  ///< Lagrangian cells (>= 8)
   double grading = 3.0;            ///< initial node x_i = L0 (1 - (1 - i/N)^grading): > 1 refines the front
   double rel_tol = 1e-4;           ///< stepper tolerance (relative)
   double abs_tol = 1e-8;           ///< stepper tolerance, in units of the initial extent
   std::size_t max_steps = 200000;  ///< bound on steps between two requested times
-  int jacobian_reuse = 4;          ///< accepted steps one finite-difference Jacobian serves (tridiagonal_rosenbrock;
-                                   ///< 4 changes readings by < 5e-5 relative against 1, 1.6x faster)
+  int jacobian_reuse = 4;          ///< Ros2 only: accepted steps one finite-difference Jacobian serves
+                                   ///< (4 changes readings by < 5e-5 relative against 1, 1.6x faster)
 };
 
 struct SpreadingSolution {
@@ -58,6 +65,10 @@ class SpreadingSystem {
  public:
   SpreadingSystem(const SpreadingProblem& problem, int cells, double grading);
   void operator()(const Eigen::VectorXd& x, Eigen::VectorXd& dxdt, double t) const;
+  /// dxdt = f(x) and its tridiagonal Jacobian, analytic (chain rule through film_velocity_with_derivatives and the
+  /// side-wall factor's slope): lower[i] = df_i/dx_{i-1}, diag[i] = df_i/dx_i, upper[i] = df_i/dx_{i+1}.
+  void tridiagonal_jacobian(const Eigen::VectorXd& x, double t, Eigen::VectorXd& dxdt, Eigen::VectorXd& lower,
+                            Eigen::VectorXd& diag, Eigen::VectorXd& upper) const;
   const Eigen::VectorXd& initial_nodes() const { return initial_; }
   /// Cell-average heights [m] for nodes x (scaled by L0).
   Eigen::VectorXd heights(const Eigen::VectorXd& x) const;
@@ -66,6 +77,12 @@ class SpreadingSystem {
 
  private:
   double cell_area(double left, double right) const;  // integral of r^s dr over the cell [m^(s+1)], 2 pi omitted
+  // d cell_area / d right (scaled node), i.e. L or right L^2; minus the same at `left` for the left node.
+  double area_slope(double node) const;
+  struct NodeVelocity {
+    double v, dv_dslope, dv_ddepth;  // [m/s], [m^2/s], [1/s]
+  };
+  NodeVelocity node_velocity(double slope, double depth) const;
   SpreadingProblem p_;
   Eigen::VectorXd initial_;  // scaled node positions at release
   Eigen::VectorXd mass_;     // cell volume / (2 pi)^s, constant in time

@@ -167,9 +167,11 @@ TEST_CASE("keeping the stepper's Jacobian for several steps moves the readings f
   for (Geometry g : {Geometry::Planar, Geometry::Axisymmetric}) {
     for (const Material& m : materials) {
       const SpreadingProblem p = block(g, m);
-      SpreadingOptions every_step;
+      SpreadingOptions ros2;  // the ROS2 stepper keeps its Jacobian; the default RODAS stepper forms one every step
+      ros2.stepper = TimeStepper::Ros2;
+      SpreadingOptions every_step = ros2;
       every_step.jacobian_reuse = 1;
-      const SpreadingSolution kept = solve_spreading(p, times);
+      const SpreadingSolution kept = solve_spreading(p, times, ros2);
       const SpreadingSolution fresh = solve_spreading(p, times, every_step);
       REQUIRE(kept.ok);
       REQUIRE(fresh.ok);
