@@ -268,8 +268,11 @@ TEST_CASE("four processes writing one history at the same time lose nothing and 
       int inserted = 0;
       try {
         for (int k = 0; k < kEach; ++k) {
-          const std::string id = "W" + std::to_string(w) + "-" + std::to_string(k);
-          spreadfit::history::record(db, sample_result(id, "P" + std::to_string(w % 2), 20.0 + k));
+          // Appended rather than "W" + std::to_string(w): GCC 12 warns falsely (-Wrestrict) on that insert.
+          std::string id = "W", product = "P";
+          id += std::to_string(w) + "-" + std::to_string(k);
+          product += std::to_string(w % 2);
+          spreadfit::history::record(db, sample_result(id, product, 20.0 + k));
           if (k % (kEach / kShared) == 0)
             inserted += spreadfit::history::record(db, sample_result("COMMON", "P0", 30.0)) == WriteOutcome::Inserted;
         }
