@@ -14,6 +14,7 @@
 #include "src/io/input_error.hpp"
 #include "src/io/plausible_ranges.hpp"
 #include "src/io/readings_csv.hpp"
+#include "src/io/text.hpp"
 #include "src/io/units.hpp"
 
 namespace spreadfit::cli {
@@ -49,13 +50,6 @@ const ParameterSpec* find_parameter(std::string_view name) {
   return nullptr;
 }
 
-std::string_view trim(std::string_view s) {
-  const auto blank = [](char c) { return c == ' ' || c == '\t' || c == '\r' || c == '\n'; };
-  while (!s.empty() && blank(s.front())) s.remove_prefix(1);
-  while (!s.empty() && blank(s.back())) s.remove_suffix(1);
-  return s;
-}
-
 /// The parameters `law` takes on the command line: its own, then time_origin.
 std::vector<std::string_view> accepted_parameters(const std::vector<std::string>& own) {
   std::vector<std::string_view> names(own.begin(), own.end());
@@ -84,7 +78,7 @@ double parse_value(std::string_view text, Dimension dimension, Range range) {
     // Not a bare number: a quantity with a unit, whose parser explains what is wrong.
     return io::parse_quantity(text, dimension, range);
   }
-  io::check_range(value, dimension, range, trim(text));
+  io::check_range(value, dimension, range, io::trim(text));
   return value;
 }
 
@@ -112,10 +106,10 @@ SimulationParameters parse_simulation_parameters(Law law, const std::vector<std:
   for (const std::string& assignment : assignments) {
     const std::string field = "--set " + assignment;
     const std::size_t equals = assignment.find('=');
-    if (equals == std::string::npos || trim(std::string_view(assignment).substr(0, equals)).empty())
+    if (equals == std::string::npos || io::trim(std::string_view(assignment).substr(0, equals)).empty())
       fail(field, "expected PARAM=VALUE, such as viscosity=\"1.2 Pa.s\" (parameters of model " + model + ": " +
                       takes_text(own) + ")");
-    const std::string name(trim(std::string_view(assignment).substr(0, equals)));
+    const std::string name(io::trim(std::string_view(assignment).substr(0, equals)));
     const std::string_view value_text = std::string_view(assignment).substr(equals + 1);
 
     const ParameterSpec* spec = find_parameter(name);
@@ -139,7 +133,7 @@ SimulationParameters parse_simulation_parameters(Law law, const std::vector<std:
                                         : name == "consistency"  ? &io::plausible::consistency
                                         : name == "yield_stress" ? &io::plausible::yield_stress
                                                                  : nullptr;
-      if (range) (void)io::check_plausible(value, *range, trim(value_text));
+      if (range) (void)io::check_plausible(value, *range, io::trim(value_text));
     } catch (const io::UnitError& e) {
       fail(field, std::string(e.what()));
     }
@@ -186,7 +180,7 @@ std::vector<double> parse_times(std::string_view list) {
   std::size_t start = 0;
   for (int entry = 1;; ++entry) {
     const std::size_t comma = list.find(',', start);
-    const std::string_view text = trim(list.substr(start, comma == std::string_view::npos ? comma : comma - start));
+    const std::string_view text = io::trim(list.substr(start, comma == std::string_view::npos ? comma : comma - start));
     if (text.empty())
       fail("--times", fmt::format("entry {} is empty (expected times separated by commas, such as 0.5,1,2,5)", entry));
     double t = 0;

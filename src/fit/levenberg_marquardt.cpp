@@ -10,6 +10,30 @@
 
 namespace spreadfit {
 
+const char* lm_status_name(LmStatus status) {
+  switch (status) {
+    case LmStatus::NotRun:
+      return "not_run";
+    case LmStatus::CostTolerance:
+      return "cost_tolerance";
+    case LmStatus::StepTolerance:
+      return "step_tolerance";
+    case LmStatus::DecreaseTolerance:
+      return "decrease_tolerance";
+    case LmStatus::Stall:
+      return "stall";
+    case LmStatus::NoDecrease:
+      return "no_decrease";
+    case LmStatus::MaxIterations:
+      return "max_iterations";
+    case LmStatus::ModelFailedAtStart:
+      return "model_failed_at_start";
+    case LmStatus::ModelFailedDifferentiating:
+      return "model_failed_differentiating";
+  }
+  return "unknown";
+}
+
 bool finite_difference_jacobian(const ResidualFunction& f, const Eigen::VectorXd& x, const Eigen::VectorXd& r,
                                 const Eigen::VectorXd& upper, const Eigen::VectorXd& step, Eigen::MatrixXd& J) {
   J.resize(r.size(), x.size());
@@ -47,6 +71,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
   if (!f(out.x, out.r)) {
     out.message = "the model could not be evaluated at the starting point";
     out.model_failed = true;
+    out.status = LmStatus::ModelFailedAtStart;
     return out;
   }
   out.cost = 0.5 * out.r.squaredNorm();
@@ -68,6 +93,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
         !refresh()) {
       out.message = "the model failed while differentiating";
       out.model_failed = true;
+      out.status = LmStatus::ModelFailedDifferentiating;
       return out;
     }
     Eigen::MatrixXd JtJ = out.jacobian.transpose() * out.jacobian;
@@ -101,12 +127,14 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
           if (!refresh()) {
             out.message = "the model failed while differentiating";
             out.model_failed = true;
+            out.status = LmStatus::ModelFailedDifferentiating;
             return out;
           }
           --out.iterations;
           continue;
         }
         out.converged = true;
+        out.status = LmStatus::DecreaseTolerance;
         out.message = "predicted decrease below decrease_tolerance of the residual variance";
         return out;
       }
@@ -123,6 +151,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
       if (!(step > o.step_tolerance)) {
         if (!fresh) refresh();
         out.converged = true;
+        out.status = LmStatus::StepTolerance;
         out.message = "parameter change below step_tolerance";
         return out;
       }
@@ -149,6 +178,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
           accepted = true;
           if (decrease < o.cost_tolerance || stalls >= 3) {
             out.converged = true;
+            out.status = stalls >= 3 ? LmStatus::Stall : LmStatus::CostTolerance;
             out.message = stalls >= 3 ? "cost stationary within the residual variance (stall_tolerance)"
                                       : "relative cost decrease below cost_tolerance";
             // Keep the Jacobian at the final point for the covariance.
@@ -164,6 +194,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
       if (!refresh()) {
         out.message = "the model failed while differentiating";
         out.model_failed = true;
+        out.status = LmStatus::ModelFailedDifferentiating;
         return out;
       }
       continue;
@@ -171,10 +202,12 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
     if (!accepted) {
       // No damped step improves the cost: at a (numerical) minimum for this model's smoothness.
       out.converged = true;
+      out.status = LmStatus::NoDecrease;
       out.message = "no further decrease possible";
       return out;
     }
   }
+  out.status = LmStatus::MaxIterations;
   out.message = "stopped after max_iterations (" + std::to_string(o.max_iterations) + ")";
   finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
   return out;

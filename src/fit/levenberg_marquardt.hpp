@@ -22,6 +22,23 @@ struct LmOptions {
   Eigen::VectorXd fd_step;       ///< finite-difference step per parameter (required)
 };
 
+/// Why the search ended; one value per return path of levenberg_marquardt. The first five are convergence
+/// (`converged` true), MaxIterations is not, the ModelFailed ones set `model_failed`.
+enum class LmStatus {
+  NotRun,                      ///< a result that no search has filled in
+  CostTolerance,               ///< relative cost decrease of an accepted step below cost_tolerance
+  StepTolerance,               ///< largest parameter change below step_tolerance
+  DecreaseTolerance,           ///< Gauss-Newton predicted decrease below decrease_tolerance x residual variance
+  Stall,                       ///< three accepted steps in a row below stall_tolerance x residual variance
+  NoDecrease,                  ///< no damped step lowers the cost (a numerical minimum)
+  MaxIterations,               ///< max_iterations reached without meeting a tolerance
+  ModelFailedAtStart,          ///< the residual function failed at the (projected) start
+  ModelFailedDifferentiating,  ///< the residual function failed on every side of a finite-difference step
+};
+
+/// Short fixed name of a status (for logs and test messages), e.g. "cost_tolerance".
+const char* lm_status_name(LmStatus status);
+
 struct LmResult {
   Eigen::VectorXd x;        ///< best parameters
   Eigen::VectorXd r;        ///< residuals at x
@@ -30,6 +47,7 @@ struct LmResult {
   int iterations = 0;
   bool converged = false;
   bool model_failed = false; ///< stopped because the residual function failed (the point is not an optimum)
+  LmStatus status = LmStatus::NotRun;  ///< why it stopped, as a value (message says it in words)
   std::string message;      ///< why it stopped
 };
 

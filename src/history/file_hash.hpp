@@ -1,15 +1,17 @@
 // Content hashes of a test's inputs, so the batch history can tell a re-run of the same test (same bytes) from a
 // new batch.
 //
-// The hash is SHA-256 (NIST FIPS 180-4, "Secure Hash Standard", 2015), written here because no library the
-// project links provides it; it is checked against the FIPS 180-4 example messages. A 256-bit hash makes an
-// accidental collision between two different tests practically impossible, which a 64-bit hash over years of
-// batches would not quite promise.
+// The hash is SHA-256 (NIST FIPS 180-4, "Secure Hash Standard", 2015), computed by GNU Nettle (Debian's
+// nettle-dev); tests check it against the FIPS 180-4 example messages. A 256-bit hash makes an accidental
+// collision between two different tests practically impossible, which a 64-bit hash over years of batches would
+// not quite promise.
 //
 // What is hashed (input_hash): for each file in order, its length in bytes (8 bytes, big-endian) and then its
 // bytes. The length prefix makes the boundaries part of the hash, so moving a byte from the TOML file into the
 // readings file changes it. Only contents count, not names: the same test copied to another folder hashes the same.
 #pragma once
+
+#include <nettle/sha2.h>
 
 #include <array>
 #include <cstddef>
@@ -23,8 +25,8 @@
 
 namespace spreadfit::history {
 
-/// Incremental SHA-256 (FIPS 180-4, section 6.2). Feed bytes with update() in any pieces, then call digest()
-/// once; the result does not depend on how the bytes were split.
+/// Incremental SHA-256 (FIPS 180-4, section 6.2; Nettle's sha256_ctx). Feed bytes with update() in any pieces, then
+/// call digest() once; the result does not depend on how the bytes were split.
 class Sha256 {
  public:
   Sha256();
@@ -34,11 +36,7 @@ class Sha256 {
   std::array<std::uint8_t, 32> digest();
 
  private:
-  void compress(const std::uint8_t* block);
-  std::array<std::uint32_t, 8> state_;
-  std::array<std::uint8_t, 64> buffer_{};
-  std::size_t buffered_ = 0;
-  std::uint64_t length_ = 0;  ///< message length so far [bytes]
+  sha256_ctx context_{};
   bool finished_ = false;
 };
 
@@ -62,11 +60,5 @@ std::string input_hash(const io::TestDescription& test);
 /// The hash of several tests fitted together (one material): with one test, that test's hash; with more, the
 /// SHA-256 of their hashes sorted, so the order the tests were named in does not matter.
 std::string input_hash(const std::vector<io::TestDescription>& tests);
-
-namespace detail {
-/// The SHA-256 constants as this file holds them, for the test that derives them again from their definition.
-const std::array<std::uint32_t, 64>& sha256_round_constants();  ///< FIPS 180-4 section 4.2.2
-const std::array<std::uint32_t, 8>& sha256_initial_hash();      ///< FIPS 180-4 section 5.3.3
-}  // namespace detail
 
 }  // namespace spreadfit::history

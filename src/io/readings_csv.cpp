@@ -11,6 +11,7 @@
 
 #include "src/io/input_error.hpp"
 #include "src/io/plausible_ranges.hpp"
+#include "src/io/text.hpp"
 #include "src/io/units.hpp"
 
 namespace spreadfit::io {
@@ -31,11 +32,8 @@ struct Cell {
 
 bool is_blank(char c) { return c == ' ' || c == '\t'; }
 
-std::string_view trim(std::string_view s) {
-  while (!s.empty() && is_blank(s.front())) s.remove_prefix(1);
-  while (!s.empty() && is_blank(s.back())) s.remove_suffix(1);
-  return s;
-}
+/// Blanks around a cell: space and tab (a line's CR is removed where the line is read).
+constexpr std::string_view kCellBlanks = " \t";
 
 /// Reads one CSV input: holds the source name and the current line for errors.
 class CsvReader {
@@ -113,11 +111,11 @@ std::vector<Cell> CsvReader::split(std::string_view line, int line_number) const
       if (i < n && line[i] != ',')
         fail(line_number, static_cast<int>(i) + 1, "",
              std::string("unexpected '") + line[i] + "' after a closing quote (expected ',' or the end of the line)");
-      cell.text = std::string(trim(cell.text));
+      cell.text = std::string(trim(cell.text, kCellBlanks));
     } else {
       const std::size_t start = i;
       while (i < n && line[i] != ',') ++i;
-      cell.text = std::string(trim(line.substr(start, i - start)));
+      cell.text = std::string(trim(line.substr(start, i - start), kCellBlanks));
     }
     cells.push_back(std::move(cell));
     if (i >= n) break;
@@ -163,14 +161,14 @@ void CsvReader::read_header(std::string_view line, int line_number) {
     if (open == std::string::npos || close == std::string::npos || close < open)
       fail(line_number, cell.column, cell.text,
            "column header has no unit in brackets (expected 'name [unit]', such as 'time [s]' or 'front [cm]')");
-    if (!trim(std::string_view(cell.text).substr(close + 1)).empty())
+    if (!trim(std::string_view(cell.text).substr(close + 1), kCellBlanks).empty())
       fail(line_number, cell.column + static_cast<int>(close) + 1, cell.text,
            "text after the unit's closing ']' (expected 'name [unit]')");
     Parsed p;
     // Names compare without regard to ASCII case ("Time [s]", "FRONT [mm]"); units keep their case (mPa, MPa).
-    p.name = std::string(trim(std::string_view(cell.text).substr(0, open)));
+    p.name = std::string(trim(std::string_view(cell.text).substr(0, open), kCellBlanks));
     for (char& c : p.name) c = static_cast<char>(std::tolower(static_cast<unsigned char>(c)));
-    p.unit = std::string(trim(std::string_view(cell.text).substr(open + 1, close - open - 1)));
+    p.unit = std::string(trim(std::string_view(cell.text).substr(open + 1, close - open - 1), kCellBlanks));
     p.unit_column = cell.column + static_cast<int>(open) + 1;
     if (p.unit.empty())
       fail(line_number, p.unit_column, cell.text, "empty unit in brackets (expected a unit, such as [s] or [cm])");
@@ -305,7 +303,7 @@ ReadingSeries CsvReader::read() {
                      "NUL byte in the file: it is UTF-16 or binary (expected a text CSV saved as UTF-8 or ASCII)",
                      column);
   }
-  if (trim(rest).find_first_not_of("\r\n") == std::string_view::npos)
+  if (trim(rest, kCellBlanks).find_first_not_of("\r\n") == std::string_view::npos)
     fail(0, 0, "", "file is empty (expected a header row such as 'time [s],front [cm]' and rows of readings)");
 
   int line_number = 0;

@@ -7,6 +7,7 @@
 #include <system_error>
 
 #include "src/io/input_error.hpp"
+#include "src/io/text.hpp"
 
 namespace spreadfit::io {
 
@@ -106,13 +107,6 @@ const std::array kUnits{
     UnitEntry{{"1", D::Dimensionless, 1.0}, true},
     UnitEntry{{"-", D::Dimensionless, 1.0}, false},
 };
-
-std::string_view trim(std::string_view s) {
-  const auto blank = [](char c) { return c == ' ' || c == '\t' || c == '\r' || c == '\n'; };
-  while (!s.empty() && blank(s.front())) s.remove_prefix(1);
-  while (!s.empty() && blank(s.back())) s.remove_suffix(1);
-  return s;
-}
 
 /// Runs of blanks inside a unit count as one space ("Pa  s" is "Pa s").
 std::string squeeze_blanks(std::string_view s) {

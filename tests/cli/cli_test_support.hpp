@@ -16,13 +16,13 @@ namespace {
 
 using spreadfit::io::test::TempDir;
 
-std::string read_text(const std::filesystem::path& file) {
+inline std::string read_text(const std::filesystem::path& file) {
   std::ifstream in(file, std::ios::binary);
   return {std::istreambuf_iterator<char>(in), std::istreambuf_iterator<char>()};
 }
 
 /// A shell word: the text in single quotes (the scratch paths and arguments here hold no single quote).
-std::string quoted(const std::string& text) {
+inline std::string quoted(const std::string& text) {
   REQUIRE(text.find('\'') == std::string::npos);
   return "'" + text + "'";
 }
@@ -35,7 +35,7 @@ struct Run {
 };
 
 /// Runs `spreadfit ARGUMENTS` (already quoted for the shell) with stdout and stderr captured in `dir`.
-Run run_spreadfit(const TempDir& dir, const std::string& arguments) {
+inline Run run_spreadfit(const TempDir& dir, const std::string& arguments) {
   const auto out = dir.path() / "stdout.txt";
   const auto err = dir.path() / "stderr.txt";
   const std::string command =
