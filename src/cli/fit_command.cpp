@@ -58,7 +58,15 @@ void check_fittable(const std::vector<io::TestDescription>& tests) {
 std::vector<BatchFlowIndex> earlier_flow_indices(const std::string& db, const std::string& product) {
   std::vector<BatchFlowIndex> out;
   if (product.empty() || (!history::is_server_uri(db) && !std::filesystem::exists(db))) return out;
-  for (const history::StoredResult& r : history::load(db, product)) {
+  std::vector<history::StoredResult> earlier;
+  try {
+    earlier = history::load(db, product);
+  } catch (const io::InputError&) {
+    // A server database whose schema the first writer has not created yet (or one that cannot be read): no
+    // earlier batches to learn from; recording the result reports any real problem with the history.
+    return out;
+  }
+  for (const history::StoredResult& r : earlier) {
     const nlohmann::json j = nlohmann::json::parse(r.result_json, nullptr, false);
     if (j.is_discarded() || !j.is_object()) continue;
     BatchFlowIndex b;
