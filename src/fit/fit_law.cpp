@@ -672,7 +672,11 @@ ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& opt
   const int newtonian_index = index_of(Law::Newtonian);
   const bool liquid = choice.best_description == newtonian_index;
   const int reported = liquid ? newtonian_index : index_of(Law::HerschelBulkley);
-  FitResult general = fit_law(series, choice.candidates[std::size_t(reported)].law, options,
+  // The candidate of that law has already been through the global stage and the polish: start from it (and its
+  // relatives) instead of searching the box again.
+  FitOptions refit = options;
+  if (choice.candidates[std::size_t(reported)].converged()) refit.global_evaluations = 0;
+  FitResult general = fit_law(series, choice.candidates[std::size_t(reported)].law, refit,
                               liquid ? std::vector<FitResult>{newtonian} : std::vector<FitResult>{hb, bingham, power});
   // The general fit's solves include its own only; a caller adds the candidates' (fit.evaluations in the JSON).
   general.evaluations += choice.candidates[std::size_t(reported)].evaluations;

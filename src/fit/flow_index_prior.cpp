@@ -90,6 +90,7 @@ FitResult fit_with_prior(const std::vector<FitSeries>& series, const FitResult& 
   // The prior's residual is in units of the residual standard deviation (FitProblem::residuals).
   const FitProblem scale(series, without.law, options);
   with.prior_scale = without.sigma / scale.weight_sigma(0);
+  with.global_evaluations = 0;  // the fit without the prior is the start: no second search of the box
   FitResult r = fit_law(series, without.law, with, {without});
   if (!r.converged()) {
     out.prior_note = fmt::format("prior not applied: the fit with it failed ({})", r.reason);
