@@ -3,7 +3,7 @@
 // is half of a closed duct of height b = 2h): Q = (b^3 W G / 12 mu) [1 - (192 b / (pi^5 W)) sum_{k odd}
 // tanh(k pi W / (2 b)) / k^5] (e.g. White, Viscous Fluid Flow, duct flow series, from memory). The planar film
 // flux per unit width is G h^3 / (3 mu), so the wall factor is the bracket. Values: 0.873 at h/W = 0.1 and
-// 0.747 at h/W = 0.2 (design notes: about 0.87 and 0.75).
+// 0.747 at h/W = 0.2 (about 0.87 and 0.75, DEVELOPERS.md "Gravity spreading").
 // For non-Newtonian materials the same factor is applied as an approximation: exact for Newtonian flow only.
 #pragma once
 

@@ -2,7 +2,7 @@
 // the upper one pressed by a constant force F. The gap h(t) follows a one-state ODE (lubrication limit: the disc
 // is wide compared with the gap).
 //
-// Model (design.md section 2; Engmann, Servais & Burbidge 2005, J. Non-Newt. Fluid Mech. 132, review):
+// Model (DEVELOPERS.md, "Gravity spreading"; Engmann, Servais & Burbidge 2005, J. Non-Newt. Fluid Mech. 132, review):
 //   disc radius R = sqrt(V / (pi h)); the radial flux per unit circumference at radius r is r (-dh/dt) / 2;
 //   a slit of full gap h under the pressure gradient G carries 2 film_flux(m, G, h/2) per unit width
 //   (the film flux of models/rheology.hpp on the half gap, doubled: the mid-plane is a plane of symmetry);

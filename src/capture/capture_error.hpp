@@ -1,6 +1,6 @@
 // What a video can fail to show: the board, the sample, the release. These are not bad input (the test
 // description and the video file are fine) but things not found in the video, so the command line maps them to
-// exit code 3 (interface.md, "Exit codes") with the one-line message, and no readings file is written.
+// exit code 3 (README, "Exit codes") with the one-line message, and no readings file is written.
 #pragma once
 
 #include <stdexcept>

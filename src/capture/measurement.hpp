@@ -1,6 +1,6 @@
 // Readings from a sample's outline on the plate plane.
 //
-// plate: the equivalent-area diameter D = 2 sqrt(A / pi) of the outline (interface.md), A in mm^2 on the plane:
+// plate: the equivalent-area diameter D = 2 sqrt(A / pi) of the outline (README), A in mm^2 on the plane:
 //   every pixel counts with its own area there (PlaneMap::pixel_area), whole inside the outline and by its sample
 //   fraction on the outline's edge (segmentation.hpp). The roundness check fits an ellipse to the outline on the
 //   plane (cv::fitEllipse, least squares; Fitzgibbon & Fisher 1995) and reports 1 - b/a.

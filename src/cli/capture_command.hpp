@@ -1,4 +1,4 @@
-// `spreadfit capture`: readings from a video of the test (interface.md).
+// `spreadfit capture`: readings from a video of the test (README).
 //
 //   spreadfit capture TEST.toml [--video FILE] [--out FILE.csv] [--check DIR]
 //

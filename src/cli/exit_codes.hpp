@@ -1,4 +1,4 @@
-// The exit codes of the spreadfit command (interface.md, "Exit codes"). Scripts and makefiles test these numbers;
+// The exit codes of the spreadfit command (README, "Exit codes"). Scripts and makefiles test these numbers;
 // change them only by adding new ones.
 #pragma once
 

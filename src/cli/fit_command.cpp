@@ -210,7 +210,7 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
     }
   }
   // Read and check every input before fitting anything: each bad file is reported, and then the run stops with
-  // exit 2 and writes no output file (interface.md), so a batch list is never left half-written.
+  // exit 2 and writes no output file (README), so a batch list is never left half-written.
   bool bad_input = false;
   std::map<std::string, std::vector<io::TestDescription>> by_sample;
   std::vector<std::string> order;

@@ -1,4 +1,4 @@
-// `spreadfit fit`: fit thin-film models to the readings of one or more bench tests (interface.md).
+// `spreadfit fit`: fit thin-film models to the readings of one or more bench tests (README).
 // main parses the command line into FitCommandOptions and calls run_fit_command.
 #pragma once
 
@@ -23,7 +23,7 @@ struct FitCommandOptions {
   bool require_spec = false;                     ///< --require-spec: a material with no limits is bad input
 };
 
-/// Runs the fit subcommand; returns the exit code (interface.md). Throws io::InputError for bad input.
+/// Runs the fit subcommand; returns the exit code (README). Throws io::InputError for bad input.
 int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::ostream& err);
 
 }  // namespace spreadfit::cli

@@ -1,5 +1,5 @@
 // The spreadfit command: parses the command line (CLI11), runs a subcommand, and is the one place where
-// exceptions become messages and exit codes (interface.md, "Exit codes"):
+// exceptions become messages and exit codes (README, "Exit codes"):
 //   io::InputError, std::invalid_argument, usage errors   -> "spreadfit: <message>" on stderr, exit 2
 //   any other exception, or stdout that cannot be written -> "spreadfit: <message>" on stderr, exit 3
 #include <fmt/format.h>

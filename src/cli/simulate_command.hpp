@@ -1,4 +1,4 @@
-// `spreadfit simulate`: the forward model alone (interface.md). Reads a test description for the rig, the
+// `spreadfit simulate`: the forward model alone (README). Reads a test description for the rig, the
 // sample's density and the reading, takes the material from the command line, and writes the predicted readings
 // as CSV:
 //

@@ -56,7 +56,7 @@ FitProblem::FitProblem(const std::vector<FitSeries>& series, Law law, const FitO
       const double span = t.back() - first;
       // Reading times are counted from the release (the interface's contract), so the virtual release lies within
       // a few seconds of 0: at most 5 s before (a clock started late, an inertial start) and 2 s after (a
-      // stopwatch started early; the inertial start is a fraction of a second, design notes section 3): common
+      // stopwatch started early; the inertial start is a fraction of a second, DEVELOPERS.md, "Numerics"): common
       // practice, no source. A release far from 0 opens false valleys: a late one lets a fast, strongly
       // shear-thinning flow mimic a sample coming to rest, an early one lets a flow without yield stress mimic
       // slow spreading. Readings whose clock starts elsewhere are the exception the wide range below keeps.

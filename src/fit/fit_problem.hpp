@@ -1,7 +1,7 @@
 // The least-squares problem of one law against one or more series: parameter vector layout, bounds and the
 // weighted residuals. Material parameters are fitted as logarithms (they span decades and must stay positive);
 // each series may add its own virtual release time t0 (linear), because the gate or ring is never lifted at
-// exactly t = 0 and the first instants are inertial, not thin-film (design notes, section 3).
+// exactly t = 0 and the first instants are inertial, not thin-film (DEVELOPERS.md, "Numerics").
 #pragma once
 
 #include <Eigen/Core>

@@ -1,5 +1,5 @@
 // Is the fitted curve a fair description of the readings? Three checks on the residuals of a converged fit, each
-// with a plain warning that says what to look at (design notes, section 4: "residuals far above the stated
+// with a plain warning that says what to look at (DEVELOPERS.md, "The inverse problem": "residuals far above the stated
 // resolution, a single outlying reading, runs of one residual sign: each is reported, never passed silently").
 //  - AboveResolution: with a stated reading uncertainty sigma, chi^2 = sum (r/sigma)^2 above its 0.999 quantile
 //    on n - p degrees of freedom and the rmse above 1.5 sigma (the readings scatter more than the rig reads).

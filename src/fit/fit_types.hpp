@@ -25,7 +25,7 @@ struct FitSeries {
 };
 
 /// What is known of a product's flow index before this batch (a spec catalogue entry, or learned from the
-/// product's earlier batches): a normal prior, typical value and standard deviation (design notes, section 4).
+/// product's earlier batches): a normal prior, typical value and standard deviation (DEVELOPERS.md, "The inverse problem").
 struct FlowIndexPrior {
   double typical = 0;        ///< [-]
   double spread = 0;         ///< standard deviation [-], > 0

@@ -1,5 +1,5 @@
 // Product knowledge on the flow index: a formulation's n changes little from batch to batch, while one short
-// test often cannot separate n from the consistency (design notes, section 4). A prior (typical value and
+// test often cannot separate n from the consistency (DEVELOPERS.md, "The inverse problem"). A prior (typical value and
 // batch-to-batch spread) enters the fit as one more observation of n, so the posterior mode and the profile
 // likelihood intervals are those of the penalised least squares (a normal prior; Gelman et al. 2013, Bayesian
 // Data Analysis, section 14.8).

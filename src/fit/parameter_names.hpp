@@ -1,4 +1,4 @@
-// The material parameters by their interface names (interface.md): yield_stress [Pa], viscosity [Pa.s],
+// The material parameters by their interface names (README, "Using it"): yield_stress [Pa], viscosity [Pa.s],
 // consistency [Pa.s^n], flow_index [-]; time_origin [s] is the release time, not a material property.
 #pragma once
 

@@ -1,6 +1,6 @@
 // Writing an output file all at once: readers (and a crash) see either the file as it was or the whole new one,
 // never a part. Every file spreadfit writes (results, plots, tables) goes through here, so that a failed run leaves
-// no half-written result for a plant system to pick up (interface.md, exit code 2: "no output file written").
+// no half-written result for a plant system to pick up (README, "Exit codes", 2: "no output file written").
 //
 // How: the contents go to a hidden temporary file in the same folder (".NAME.tmp-PID-N"), which is flushed to the
 // disk and then renamed over NAME; rename within one file system replaces the name in one step (POSIX rename()).

@@ -5,7 +5,7 @@
 //   0,0
 //   5,3.1
 //
-// Format (interface.md "Readings (CSV)", made precise here):
+// Format (README "Readings CSV", made precise here):
 // - Cells are separated by commas. A cell may be wrapped in double quotes (spreadsheets do), with "" for a quote
 //   inside. Blanks around a cell are ignored. Lines may end in LF, CRLF or CR; a UTF-8 byte-order mark is skipped.
 // - Blank lines and comment lines are skipped anywhere in the file.

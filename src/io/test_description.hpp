@@ -1,4 +1,4 @@
-// Test description: one TOML file per bench test (interface.md "Test description"), read into SI units and
+// Test description: one TOML file per bench test (README "Test description"), read into SI units and
 // checked before any physics runs.
 //
 //   [sample]   id (required), product, density (required), temperature, site (the lab or plant, for a shared

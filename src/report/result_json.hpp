@@ -1,4 +1,4 @@
-// The machine-readable result of one fitted material (interface.md, "Result (JSON, one object per test)").
+// The machine-readable result of one fitted material (README, "Result JSON").
 #pragma once
 
 #include <nlohmann/json.hpp>

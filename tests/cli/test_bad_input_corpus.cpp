@@ -1,6 +1,6 @@
 // The bad-input corpus: each case is a small set of files and a command line that must end with exit 2, a message
 // naming the file (or option) and the field at fault, and no output file written. Cases come from the input
-// contract (interface.md: "Test description", "Readings (CSV)", exit code 2) and from the plausible ranges of
+// contract (README: "Test description", "Readings (CSV)", exit code 2) and from the plausible ranges of
 // src/io/plausible_ranges.hpp; the rigs are invented. A case that crashed or exited 0/3 before the hardening is
 // marked "was: ...".
 #include <doctest/doctest.h>

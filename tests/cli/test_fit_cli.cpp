@@ -1,5 +1,5 @@
 // `spreadfit fit` end to end: readings simulated by the binary itself from a material, fitted back, with the
-// result JSON, verdicts and exit codes of interface.md checked. Sample ids and rigs are invented.
+// result JSON, verdicts and exit codes of the README checked. Sample ids and rigs are invented.
 #include <doctest/doctest.h>
 
 #include <cmath>
@@ -118,7 +118,7 @@ TEST_CASE("fit: bad input exits 2 naming the field") {
     CHECK(run.exit_code == 2);
     CHECK(run.err.find("nope.toml") != std::string::npos);
   }
-  SUBCASE("one bad file among several: every bad one named, nothing fitted, no output file (interface.md)") {
+  SUBCASE("one bad file among several: every bad one named, nothing fitted, no output file (README)") {
     const auto json_file = dir.path() / "both.json";
     const auto out_dir = dir.path() / "out";
     std::filesystem::create_directory(out_dir);

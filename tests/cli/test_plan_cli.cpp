@@ -129,7 +129,7 @@ TEST_CASE("plan --check: refits of simulated readings agree with the planned yie
 }
 
 TEST_CASE("plan: bad --vary, --points and --check input exits 2 naming the option") {
-  // interface.md, exit codes: bad input is 2 with a message naming the field; nothing on stdout.
+  // README, exit codes: bad input is 2 with a message naming the field; nothing on stdout.
   TempDir dir;
   const auto test = dir.write("p.toml", std::string(plate_head) + "[readings]\nresolution = \"0.5 mm\"\n");
   const std::string base = "plan " + quoted(test.string()) + " --model bingham ";

@@ -1,5 +1,5 @@
 // The spreadfit command end to end: the binary is run on test descriptions written to a scratch folder, and its
-// output, messages and exit codes are checked against interface.md and against published closed forms.
+// output, messages and exit codes are checked against the README and against published closed forms.
 // Sample ids and rigs are invented.
 //
 // References:

@@ -1,4 +1,4 @@
-// Monte Carlo coverage of the 95% intervals (design notes, section 4: "the 95% intervals must cover the truth in
+// Monte Carlo coverage of the 95% intervals (DEVELOPERS.md, "The inverse problem": "the 95% intervals must cover the truth in
 // about 95% of Monte Carlo trials"). Heavy (about 1.5 minutes on two cores):
 // its name starts with "montecarlo" so `spreadfit_tests -tce="montecarlo*"` skips it during development; the
 // README's test command runs it.

@@ -1,4 +1,4 @@
-// Monte Carlo coverage over a population of shear-thinning yield-stress materials (design notes, section 4: "the
+// Monte Carlo coverage over a population of shear-thinning yield-stress materials (DEVELOPERS.md, "The inverse problem": "the
 // 95% intervals must cover the truth in about 95% of Monte Carlo trials over a population of realistic
 // materials, not one material"). The population spans what QC labs test, ketchup-like sauces to creams and
 // lotions: yield stress 5-60 Pa, consistency 2-25 Pa.s^n, flow index 0.25-0.65, log-uniform (common practice,

@@ -1,6 +1,6 @@
 // Readers under input that once passed, crashed or gave a baffling message: the readings CSV's limits and
 // spreadsheet quirks, several row errors at once, and messages safe to print. Expected behaviour is the input
-// contract (interface.md "Readings (CSV)", exit code 2) and src/io/plausible_ranges.hpp.
+// contract (README "Readings CSV", exit code 2) and src/io/plausible_ranges.hpp.
 #include <doctest/doctest.h>
 
 #include <sstream>

@@ -159,7 +159,7 @@ TEST_CASE("the conversion test covers every unit listed in messages") {
       CHECK(tested.count(std::string(symbol)) == 1);
     }
   INFO("listed units: " << listed);
-  CHECK(listed >= 20);  // interface.md names at least 20 symbols
+  CHECK(listed >= 20);  // the README names at least 20 symbols
 }
 
 TEST_CASE("every dimension's SI unit is among its listed units and converts with factor 1") {

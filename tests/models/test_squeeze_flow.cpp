@@ -178,7 +178,7 @@ TEST_CASE("squeeze: the load function equals the direct integral of s^2 g over t
 
 TEST_CASE("squeeze: the yield-stress rate balances the load of a direct slit-flux integration") {
   // Independent of the scaling: the rate returned must make F = integral_0^R pi r^2 G(r) dr equal the load, with G
-  // from inverting 2 film_flux(m, G, h/2) = r (-dh/dt)/2 at each r (design.md section 2).
+  // from inverting 2 film_flux(m, G, h/2) = r (-dh/dt)/2 at each r (DEVELOPERS.md, "Gravity spreading").
   const SqueezeRig rig = bench_rig();
   for (const Material& m : {Material{50.0, 100.0, 1.0}, Material{20.0, 150.0, 0.45}, Material{5.0, 60.0, 1.6}}) {
     const double h_a = closed_form::squeeze_arrest_gap(m.yield_stress, rig.force, rig.volume);

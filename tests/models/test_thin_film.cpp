@@ -36,7 +36,7 @@ TEST_CASE("similarity front constants reproduce the published prefactors") {
   CHECK(std::pow(3.0 * closed_form::planar_front_constant(1.0), 0.2) == doctest::Approx(1.411).epsilon(5e-4));
   CHECK(std::pow(3.0 * closed_form::axisymmetric_front_constant(1.0), 0.125) == doctest::Approx(0.894).epsilon(5e-4));
   // Power-law constants P_p(n), P_a(n) (Gratton, Minotti & Mahajan 1999; Di Federico et al. 2006), as tabulated in
-  // the project's design notes from the similarity solution.
+  // DEVELOPERS.md ("Gravity spreading") from the similarity solution.
   const double n[] = {0.2, 0.3, 0.4, 0.5, 0.6, 0.8, 1.0};
   const double Pp[] = {1.3451, 1.4365, 1.5181, 1.5913, 1.6573, 1.7712, 1.8659};
   const double Pa[] = {0.18241, 0.18026, 0.17626, 0.17094, 0.16471, 0.15069, 0.13591};
@@ -220,7 +220,7 @@ TEST_CASE("the predicted reading is a smooth function of the parameters") {
 
 TEST_CASE("side-wall flux factor of an open rectangular channel") {
   // Laminar rectangular-duct flow (free surface as a symmetry plane): about 0.87 at depth/width 0.1 and 0.75 at 0.2
-  // (design notes; duct series e.g. White, Viscous Fluid Flow, from memory).
+  // (DEVELOPERS.md; duct series e.g. White, Viscous Fluid Flow, from memory).
   CHECK(side_wall_flux_factor(0.1) == doctest::Approx(0.873).epsilon(2e-3));
   CHECK(side_wall_flux_factor(0.2) == doctest::Approx(0.747).epsilon(2e-3));
   CHECK(side_wall_flux_factor(1e-4) == doctest::Approx(1.0).epsilon(1e-3));
