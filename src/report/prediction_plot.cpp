@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <filesystem>
+#include <vector>
 
 #include "src/fit/parameter_names.hpp"
 #include "src/report/fit_outcome.hpp"
@@ -55,20 +56,33 @@ std::string rig_text(const io::TestDescription& rig) {
   return fmt::format("Rig: {} ({}); density {:.4g} kg/m\u00b3", geometry, where, rig.setup.density);
 }
 
-// Each material parameter with its 95% range under the log-space normal approximation the band samples from.
+// Each material parameter with the 2.5-97.5% range of the draws the band is solved from (the fit's likelihood
+// draws, src/fit/likelihood_draws.hpp; without them, the log-space normal approximation predict samples instead).
 std::string material_text(const FitResult& fit, const std::string& source) {
   std::string text =
       fmt::format("Material: {} from {}", law_name(fit.law), std::filesystem::path(source).filename().string());
   for (std::size_t i = 0; i < fit.names.size(); ++i) {
     const auto k = Eigen::Index(i);
-    const double centre = fit.estimate[k], se = std::sqrt(fit.covariance(k, k));
     std::string name = fit.names[i];
     std::replace(name.begin(), name.end(), '_', ' ');
     const std::string unit = parameter_unit(fit.names[i]) == "-" ? "" : " " + parameter_unit(fit.names[i]);
-    text += fmt::format("{} {} {:.4g}{}", i == 0 ? ": " : "; ", name, std::exp(centre), unit);
-    if (finite(se))
-      text +=
-          fmt::format(" (95% of draws: {:.3g} to {:.3g})", std::exp(centre - 1.96 * se), std::exp(centre + 1.96 * se));
+    text += fmt::format("{} {} {:.4g}{}", i == 0 ? ": " : "; ", name, std::exp(fit.estimate[k]), unit);
+    double low = NAN, high = NAN;
+    if (!fit.draws.empty()) {
+      std::vector<double> values;
+      values.reserve(fit.draws.size());
+      for (const Eigen::VectorXd& d : fit.draws) values.push_back(d[k]);
+      std::sort(values.begin(), values.end());
+      const auto at = [&](double q) { return values[std::size_t(std::lround(q * double(values.size() - 1)))]; };
+      low = at(0.025);
+      high = at(0.975);
+    } else {
+      const double se = std::sqrt(fit.covariance(k, k));
+      low = fit.estimate[k] - 1.96 * se;
+      high = fit.estimate[k] + 1.96 * se;
+    }
+    if (finite(low) && finite(high))
+      text += fmt::format(" (95% of draws: {:.3g} to {:.3g})", std::exp(low), std::exp(high));
     else
       text += " (interval undetermined)";
   }

@@ -2,10 +2,14 @@
 // result JSON, verdicts and exit codes of the README checked. Sample ids and rigs are invented.
 #include <doctest/doctest.h>
 
+#include <fmt/format.h>
+
+#include <algorithm>
 #include <cmath>
 #include <nlohmann/json.hpp>
 #include <sstream>
 #include <string>
+#include <vector>
 
 #include "tests/cli/cli_test_support.hpp"
 #include "tests/report/svg_test_support.hpp"
@@ -252,6 +256,25 @@ TEST_CASE("predict --plot: the channel readings of the true material lie in the 
   CHECK(spreadfit::svg_test::with_class(xml, "band").size() == 1);
   CHECK(svg.find("6 of 6 within the band") != std::string::npos);
   CHECK(svg.find("nan") == std::string::npos);
+  {
+    // The header's "95% of draws" range of each parameter is the 2.5-97.5% range of the draws stored in the
+    // result (the draws the band is solved from), so it stays inside the fit's box: definition of the statement.
+    const auto result = nlohmann::json::parse(read_text(json_file));
+    const auto& log_space = result.at("fit").at("log_space");
+    const auto& draws = log_space.at("draws");
+    REQUIRE(draws.size() > 10);
+    const std::size_t parameter = 0;  // yield_stress, the first material parameter of the layout
+    REQUIRE(log_space.at("parameters").at(parameter) == "yield_stress");
+    std::vector<double> values;
+    for (const auto& d : draws) values.push_back(d.at(parameter).get<double>());
+    std::sort(values.begin(), values.end());
+    const auto at = [&](double q) { return values[std::size_t(std::lround(q * double(values.size() - 1)))]; };
+    const std::string stated = fmt::format("yield stress {:.4g} Pa (95% of draws: {:.3g} to {:.3g})",
+                                           std::exp(log_space.at("estimate").at(parameter).get<double>()),
+                                           std::exp(at(0.025)), std::exp(at(0.975)));
+    INFO(stated);
+    CHECK(svg.find(stated) != std::string::npos);
+  }
   spreadfit::svg_test::check_renders(svg, 900, "prediction");
   SUBCASE("an unwritable plot path is bad input and leaves no CSV") {
     const Run bad = run_spreadfit(dir, "predict " + quoted(json_file.string()) + " --rig " +
