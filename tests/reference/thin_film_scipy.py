@@ -236,30 +236,35 @@ class FiniteVolumeSpreading:
         Mahajan 1999), p = 2 at an arrested yield-stress front (static balance rho g h h_x = tau_y, the plastic
         limit of Roussel & Coussot 2005), in between while a yield-stress front slows down. The last two wet cells
         are distorted by the dry/wet switch of the fixed grid, so the cells before them are used: without a yield
-        stress a straight line through h^(n+2) of four cells; with one, p from three cells (h^p collinear) and the
-        line through them. Either line extrapolated to h^p = 0 gives the front."""
+        stress a straight line through h^(n+2) of four cells; with one, the p that makes h^p of five cells most
+        nearly straight, and that line. Either line extrapolated to h^p = 0 gives the front."""
         wet = np.flatnonzero(h > 1e-9 * self.rig.height)
         if wet.size == 0:
             raise RuntimeError("no wet cell")
         k = wet[-1]
         if k + 2 >= self.cells or k < 6:
             raise RuntimeError("the front reached the end of the computational domain")
-        h3 = np.maximum(h[k - 4:k - 1], 0.0) / self.rig.height  # three cells, front-most last
-        if not (h3[0] > h3[1] > h3[2] > 0):
-            raise RuntimeError("no front profile to read")
         if self.tau == 0.0:
             # no yield stress: p = n + 2 exactly; a straight line through four cells averages the cell-scale ripple
             cells = np.arange(k - 5, k - 1)
             slope, intercept = np.polyfit(self.centres[cells], np.maximum(h[cells], 0.0) ** (self.n + 2.0), 1)
             return -intercept / slope
-        curvature = lambda p: h3[0] ** p - 2.0 * h3[1] ** p + h3[2] ** p
-        lo, hi = 1.2, self.n + 3.0
-        if curvature(lo) * curvature(hi) < 0:
-            p = scipy.optimize.brentq(curvature, lo, hi, xtol=1e-10)
-        else:
-            p = self.n + 2.0
-        y = h3 ** p
-        return self.centres[k - 2] + self.dx * y[2] / (y[1] - y[2])
+        # with a yield stress: the exponent p in [2, n + 2] (plastic to power-law tip) that makes h^p of five cells
+        # most nearly a straight line (least squares, residual relative to the line's span)
+        cells = np.arange(k - 6, k - 1)
+        x = self.centres[cells] - self.centres[k - 2]
+        hn = np.maximum(h[cells], 0.0) / self.rig.height
+
+        def misfit(p):
+            y = hn ** p
+            coef, res, *_ = np.polyfit(x, y, 1, full=True)
+            return (res[0] if res.size else 0.0) / (y[0] - y[-1]) ** 2
+
+        lo, hi = min(2.0, self.n + 2.0), max(2.0, self.n + 2.0)
+        p = scipy.optimize.minimize_scalar(misfit, bounds=(lo, hi), method="bounded",
+                                           options={"xatol": 1e-6}).x if hi > lo else lo
+        slope, intercept = np.polyfit(x, hn ** p, 1)
+        return self.centres[k - 2] - intercept / slope
 
 
 def solve(rig, material, times, cell_size, domain, rtol=1e-6, atol_scale=1e-9):
