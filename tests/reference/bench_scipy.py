@@ -52,7 +52,7 @@ def main():
     print("\nSciPy peer (tests/reference/thin_film_scipy.py: finite volumes on a fixed 0.4 mm grid, solve_ivp BDF with "
           "the analytic\ntridiagonal Jacobian, one core), the same 120 s test with 30 readings, one run each"
           + ("" if quick else "; error = change at 0.2 mm cells"))
-    print(f"{'rig':9s} {'law':17s} {'SciPy [ms]':>11s} {'steps':>6s} {'error':>8s} {'spreadfit [ms]':>15s} "
+    print(f"{'rig':9s} {'law':17s} {'SciPy [ms]':>11s} {'f evals':>7s} {'error':>8s} {'spreadfit [ms]':>15s} "
           f"{'error':>8s} {'ratio':>9s}")
     for rig_name, rig, domain in RIGS:
         for law, material in LAWS:
@@ -65,7 +65,7 @@ def main():
                 err = f"{100 * np.max(np.abs(readings / fine - 1)):.3f}%"
             ours = forward.get((rig_name, law))
             ratio = f"{ms / ours[0]:8.0f}x" if ours else "-"
-            print(f"{rig_name:9s} {law:17s} {ms:11.0f} {info['nfev']:6d} {err:>8s} "
+            print(f"{rig_name:9s} {law:17s} {ms:11.0f} {info['nfev']:7d} {err:>8s} "
                   f"{(f'{ours[0]:.3f}' if ours else '-'):>15s} {(ours[1] if ours else '-'):>8s} {ratio:>9s}",
                   flush=True)
 
