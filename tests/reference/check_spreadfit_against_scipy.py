@@ -30,6 +30,7 @@ import time
 
 import numpy as np
 
+sys.dont_write_bytecode = True  # no __pycache__ in the source tree
 sys.path.insert(0, os.path.dirname(os.path.abspath(__file__)))
 import thin_film_scipy as ref  # noqa: E402
 

@@ -19,10 +19,10 @@ the way one would script them with general-purpose tools, and sharing no code or
 Numerics (independent of spreadfit's Lagrangian method of lines): conservative finite volumes on a fixed uniform
 Eulerian grid over a dry bed, face depth the mean of the two cells, face slope the difference of the cell values;
 time integration by scipy.integrate.solve_ivp(method="BDF") with the analytic tridiagonal Jacobian as a sparse
-matrix. The front is the dry/wet boundary, located inside the last wet cell by matching the two last cell averages
-to the local front profile h ~ d^(1/(n+2)) of a spreading power-law film (Gratton, Minotti & Mahajan 1999): this
-sub-cell reading only removes the grid's staircase; halving the cell size shows the reading converged
-(check_spreadfit_against_scipy.py prints it).
+matrix. The front is the dry/wet boundary, read inside the grid by extrapolating the local front profile
+h^p ~ d of the cells just behind it (FiniteVolumeSpreading.front); halving the cell size shows the reading
+converged (check_spreadfit_against_scipy.py prints it). The scheme is first order at the front, and the fixed grid
+leaves a ripple of a few hundredths of a percent in the readings as the front crosses cells.
 
 Only python3, numpy and scipy (Debian's python3-numpy, python3-scipy) are used.
 """
