@@ -177,8 +177,13 @@ int main(int argc, char** argv) {
   constexpr unsigned seeds = 8;
   for (const Rig_& r : {rigs[0], rigs[1]}) {
     const Material truth = {20, 10.0, 0.4};
-    double hb_ms = 0, auto_ms = 0;
-    int hb_solves = 0, auto_solves = 0;
+    double hb_ms = 0, auto_ms = 0, point_ms = 0;
+    int hb_solves = 0, auto_solves = 0, point_solves = 0;
+    // The point fit (quadratic intervals, no profiles, no likelihood draws): like for like with a plain
+    // least-squares fit (tests/reference/bench_scipy.py prints the SciPy peer beside it).
+    FitOptions point;
+    point.profile_intervals = false;
+    point.likelihood_draws = 0;
     for (unsigned seed = 1; seed <= seeds; ++seed) {
       FitSeries s;
       s.setup = r.setup;
@@ -191,6 +196,7 @@ int main(int argc, char** argv) {
       for (double& v : s.values) v += noise(rng);
       s.sigma = 5e-4;
       hb_ms += median_ms([&] { hb_solves += fit_law({s}, Law::HerschelBulkley).evaluations; }, 1);
+      point_ms += median_ms([&] { point_solves += fit_law({s}, Law::HerschelBulkley, point).evaluations; }, 1);
       ModelChoice c;
       auto_ms += median_ms([&] { c = fit_auto({s}); }, 1);
       for (const auto& f : c.candidates) auto_solves += f.evaluations;
@@ -199,6 +205,8 @@ int main(int argc, char** argv) {
     }
     std::printf("%-9s %-17s %-8s %10.1f %8.1f\n", r.name, "herschel-bulkley", "HB", hb_ms / seeds,
                 double(hb_solves) / seeds);
+    std::printf("%-9s %-17s %-8s %10.1f %8.1f\n", r.name, "herschel-bulkley", "HB-point", point_ms / seeds,
+                double(point_solves) / seeds);
     std::printf("%-9s %-17s %-8s %10.1f %8.1f\n", r.name, "herschel-bulkley", "auto", auto_ms / seeds,
                 double(auto_solves) / seeds);
   }
