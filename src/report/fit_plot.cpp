@@ -85,7 +85,7 @@ double per_metre(const std::string& unit) {
   if (unit.empty()) return 0;
   try {
     return 1.0 / io::convert_to_si(1.0, unit, io::Dimension::Length);
-  } catch (const std::exception&) {
+  } catch (const io::UnitError&) {  // not a length unit
     return 0;
   }
 }
@@ -108,7 +108,7 @@ PredictionBand band_or_failure(const FitResult& fit, const TestSetup& setup, con
                                std::size_t index, int draws) {
   try {
     return prediction_band(fit, setup, times, index, draws);
-  } catch (const std::exception&) {  // an invalid material or rig: no curve, said in the legend
+  } catch (const std::invalid_argument&) {  // an invalid material or rig: no curve, said in the legend
     PredictionBand failed;
     failed.ok = false;
     return failed;
