@@ -107,8 +107,9 @@ Eigen::VectorXd global_start(const FitProblem& problem, int evaluations) {
       opt.optimize(x, value);
     } catch (const std::runtime_error&) {
       // NLopt's ways of stopping early (nlopt::forced_stop and nlopt::roundoff_limited derive from
-      // std::runtime_error, as does its generic failure): the best point seen is kept either way. Invalid
-      // arguments (std::invalid_argument) and out of memory are not caught here.
+      // std::runtime_error, as does its generic failure): the best point seen is kept either way.
+    } catch (const std::invalid_argument&) {
+      // NLopt refuses a start that rounding put a hair outside the box ("bounds ... fail"): the start is kept.
     }
     if (error) std::rethrow_exception(error);
   };
