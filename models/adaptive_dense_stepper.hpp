@@ -9,6 +9,7 @@
 
 #include <Eigen/Core>
 #include <boost/numeric/odeint/stepper/stepper_categories.hpp>
+#include <boost/numeric/odeint/util/odeint_error.hpp>
 #include <cstddef>
 #include <limits>
 #include <stdexcept>
@@ -31,7 +32,8 @@ class AdaptiveDenseStepper {
   using order_type = unsigned short;
   using stepper_category = boost::numeric::odeint::dense_output_stepper_tag;
 
-  /// max_rejections: rejected tries in a row before do_step gives up (std::runtime_error naming the bound).
+  /// max_rejections: rejected tries in a row before do_step gives up (odeint's step_adjustment_error, naming the
+  /// bound, as odeint's own controlled steppers throw).
   AdaptiveDenseStepper(Method method, StepSizeController controller, int max_rejections = 60)
       : method_(std::move(method)), controller_(controller), max_rejections_(max_rejections) {}
 
@@ -51,7 +53,7 @@ class AdaptiveDenseStepper {
     const auto& sys = static_cast<const std::unwrap_reference_t<std::decay_t<System>>&>(system);
     for (int tries = 0;; ++tries) {
       if (tries >= max_rejections_)
-        throw std::runtime_error(std::to_string(max_rejections_) + " rejected steps in a row at t = " +
+        throw boost::numeric::odeint::step_adjustment_error(std::to_string(max_rejections_) + " rejected steps in a row at t = " +
                                  std::to_string(t_) + " s (AdaptiveDenseStepper max_rejections)");
       const double dt = dt_;
       double err = std::numeric_limits<double>::quiet_NaN();

@@ -33,8 +33,8 @@ SpreadingOptions spreading_options(const ForwardOptions& o) {
 
 void copy_solution(const SpreadingSolution& s, double offset, double scale, ForwardResult& out) {
   out.steps = s.steps;
-  if (!s.ok) {
-    out.status = SolveStatus::StepLimit;
+  if (!s.ok()) {
+    out.status = s.status;
     out.message = s.message;
     return;
   }
@@ -86,8 +86,8 @@ ForwardResult squeeze(const SqueezeRig& rig, const TestSetup& setup, const Mater
   const SqueezeSolution s = solve_squeeze(rig, m, times, so);
   ForwardResult out;
   out.steps = s.steps;
-  if (!s.ok) {
-    out.status = SolveStatus::Failed;
+  if (!s.ok()) {
+    out.status = s.status;
     out.message = s.message;
     return out;
   }

@@ -8,6 +8,7 @@
 
 #include "models/rheology.hpp"
 #include "models/rig.hpp"
+#include "models/solve_status.hpp"
 #include "models/thin_film.hpp"
 
 namespace spreadfit {
@@ -16,17 +17,15 @@ namespace spreadfit {
 struct ForwardOptions {
   int cells = 40;                ///< Lagrangian cells of the thin-film models (>= 8)
   double rel_tol = 1e-4;           ///< relative local error tolerance of the thin-film time stepper
-  std::size_t max_steps = 200000;  ///< bound on accepted + rejected steps per solve
+  std::size_t max_steps = 200000;  ///< bound on time steps per solve (SpreadingOptions, SqueezeOptions::max_steps)
   int jacobian_reuse = 4;          ///< Ros2 stepper only: accepted steps one Jacobian serves (SpreadingOptions)
   TimeStepper stepper = TimeStepper::Rodas;  ///< thin-film time stepper (SpreadingOptions)
 };
 
-enum class SolveStatus { Ok, StepLimit, Failed };
-
 struct ForwardResult {
   std::vector<double> readings;       ///< one per requested time, in the rig's reading [m]
   SolveStatus status = SolveStatus::Ok;
-  std::string message;                ///< why a solve failed (empty when Ok)
+  std::string message;                ///< why a solve failed, naming the bound (empty when Ok)
   std::vector<std::string> notes;     ///< plain-words remarks on model validity (e.g. slump regime)
   std::size_t steps = 0;              ///< time steps taken
   bool ok() const { return status == SolveStatus::Ok; }

@@ -203,13 +203,19 @@ class YieldSqueeze {
 /// measured at y0, makes y linear in tau: exact for Stefan and Scott (a = (3n+5)/(2n)), and the approach to arrest
 /// (e ~ t^-n, a -> 1/n) is again linear in tau. The stepper then takes steps of nearly constant size in tau instead
 /// of ever-growing ones in t.
-/// Writes y at each time through out(i, y). Returns an empty string on success, else what failed.
+/// How integrate_log_state ended: Ok with an empty message, else the status and what failed (naming the bound).
+struct Ended {
+  SolveStatus status = SolveStatus::Ok;
+  std::string message;
+};
+
+/// Writes y at each time through out(i, y).
 template <class Rhs, class Out>
-std::string integrate_log_state(const Rhs& f, double y0, const std::vector<double>& times, const SqueezeOptions& o,
+Ended integrate_log_state(const Rhs& f, double y0, const std::vector<double>& times, const SqueezeOptions& o,
                                 std::size_t& steps, Out out) {
   namespace odeint = boost::numeric::odeint;
   const double f0 = f(y0);
-  if (!std::isfinite(f0)) return "the initial rate is not finite";
+  if (!std::isfinite(f0)) return {SolveStatus::NonFiniteState, "the initial rate is not finite"};
   if (f0 == 0) {  // nothing moves (cannot happen above the arrest gap, kept for safety)
     for (std::size_t i = 0; i < times.size(); ++i) out(i, y0);
     return {};
@@ -231,18 +237,20 @@ std::string integrate_log_state(const Rhs& f, double y0, const std::vector<doubl
       const double tau = std::log1p(times[i] / t_c);
       while (stepper.current_time() < tau) {
         if (steps >= o.max_steps)
-          return "max_steps = " + std::to_string(o.max_steps) + " reached before t = " + number(times[i]) + " s";
+          return {SolveStatus::StepLimit, "SqueezeOptions::max_steps = " + std::to_string(o.max_steps) +
+                                              " time steps per solve reached before t = " + number(times[i]) + " s"};
         stepper.do_step(system);
         ++steps;
         if (!std::isfinite(stepper.current_state()))
-          return "the state became non-finite at t = " + number(t_c * std::expm1(stepper.current_time())) + " s";
+          return {SolveStatus::NonFiniteState, "the state became non-finite at t = " +
+                                                   number(t_c * std::expm1(stepper.current_time())) + " s"};
       }
       double y = 0;
       stepper.calc_state(tau, y);
       out(i, y);
     }
-  } catch (const std::exception& ex) {  // odeint's step-size adjustment limit
-    return std::string("time stepper failed: ") + ex.what();
+  } catch (const odeint::step_adjustment_error& ex) {  // odeint's bound on rejected steps in a row
+    return {SolveStatus::StepSizeUnderflow, std::string("no acceptable time step: ") + ex.what()};
   }
   return {};
 }
@@ -281,6 +289,7 @@ SqueezeSolution solve_squeeze(const SqueezeRig& rig, const Material& m, const st
   SqueezeSolution sol;
   const double h0 = squeeze_initial_gap(rig);
   sol.gaps.assign(times.size(), h0);
+  Ended ended;
 
   if (m.yield_stress > 0) sol.arrest_gap = closed_form::squeeze_arrest_gap(m.yield_stress, rig.force, rig.volume);
   if (m.yield_stress == 0 || (h0 > sol.arrest_gap && yield_stress_negligible(h0, sol.arrest_gap))) {
@@ -290,7 +299,7 @@ SqueezeSolution solve_squeeze(const SqueezeRig& rig, const Material& m, const st
       return -power_law_rate(rig.volume, rig.force, m, h) / h;
     };
     auto out = [&](std::size_t i, double y) { sol.gaps[i] = std::exp(y); };
-    sol.message = integrate_log_state(f, std::log(h0), times, options, sol.steps, out);
+    ended = integrate_log_state(f, std::log(h0), times, options, sol.steps, out);
   } else {
     const YieldSqueeze model(rig, m);
     if (h0 <= sol.arrest_gap) {
@@ -301,14 +310,15 @@ SqueezeSolution solve_squeeze(const SqueezeRig& rig, const Material& m, const st
     // State y = ln e (e = g_w - 1, see the derivation at the top).
     auto f = [&](double y) { return model.log_excess_rate(std::exp(y)); };
     auto out = [&](std::size_t i, double y) { sol.gaps[i] = model.gap(std::exp(y)); };
-    sol.message = integrate_log_state(f, std::log(model.excess_at_gap(h0)), times, options, sol.steps, out);
-    if (sol.message.empty() && !times.empty())
+    ended = integrate_log_state(f, std::log(model.excess_at_gap(h0)), times, options, sol.steps, out);
+    if (ended.status == SolveStatus::Ok && !times.empty())
       sol.arrested = sol.gaps.back() - sol.arrest_gap <= options.arrest_tolerance * sol.arrest_gap;
   }
   // The load is applied at h0 exactly (the log state round-trips it only to rounding).
   for (std::size_t i = 0; i < times.size() && times[i] == 0; ++i) sol.gaps[i] = h0;
-  if (!sol.message.empty()) {
-    sol.ok = false;
+  if (ended.status != SolveStatus::Ok) {
+    sol.status = ended.status;
+    sol.message = ended.message;
     sol.gaps.clear();
   }
   return sol;

@@ -26,6 +26,7 @@
 
 #include "models/rheology.hpp"
 #include "models/rig.hpp"
+#include "models/solve_status.hpp"
 
 namespace spreadfit {
 
@@ -33,7 +34,7 @@ namespace spreadfit {
 struct SqueezeOptions {
   /// Local error tolerance of the time stepper on the log of the gap excess (so relative on the gap), > 0.
   double rel_tol = 1e-9;
-  /// Bound on accepted time steps per solve (>= 1); the solve reports ok = false naming it when hit.
+  /// Bound on accepted time steps per solve (>= 1); reaching it ends the solve with SolveStatus::StepLimit.
   std::size_t max_steps = 100000;
   /// A yield-stress sample counts as arrested when (h - arrest_gap) <= arrest_tolerance * arrest_gap at the last
   /// time (in (0, 1)). 1e-3 is 1 um on a 1 mm gap, below a bench gauge's resolution.
@@ -42,12 +43,13 @@ struct SqueezeOptions {
 
 /// Gap history of a squeeze test.
 struct SqueezeSolution {
-  std::vector<double> gaps;  ///< full gap h [m] at each requested time (empty when ok = false)
-  bool ok = true;
-  std::string message;    ///< which bound was hit / what failed (empty when ok and nothing to say)
+  std::vector<double> gaps;  ///< full gap h [m] at each requested time (empty unless Ok)
+  SolveStatus status = SolveStatus::Ok;
+  std::string message;    ///< which bound was hit / what failed (empty when Ok and nothing to say)
   bool arrested = false;  ///< the load is carried by the yield stress before the last time
   double arrest_gap = 0;  ///< plastic-limit gap [m] (0 when no yield stress)
   std::size_t steps = 0;  ///< accepted time steps
+  bool ok() const { return status == SolveStatus::Ok; }
 };
 
 /// Gap of a squeeze test at the given times [s].

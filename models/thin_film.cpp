@@ -1,11 +1,13 @@
 #include "models/thin_film.hpp"
 
 #include <boost/numeric/odeint/integrate/integrate_times.hpp>
-#include <boost/numeric/odeint/integrate/max_step_checker.hpp>
+#include <boost/numeric/odeint/util/odeint_error.hpp>
 #include <cmath>
 #include <functional>
 #include <limits>
 #include <numbers>
+#include <string>
+#include <utility>
 #include <stdexcept>
 
 #include "models/adaptive_dense_stepper.hpp"
@@ -14,6 +16,33 @@
 #include "models/tridiagonal_rosenbrock.hpp"
 
 namespace spreadfit {
+
+namespace {
+
+struct StepLimitReached {};
+struct NonFiniteStateReached {
+  double time;  // [s], the requested time whose state was not finite
+};
+
+/// The bound on time steps of one solve, in odeint's step-checker form. odeint's max_step_checker is reset at every
+/// requested time, which would make max_steps a bound between two readings; this one is never reset, so
+/// SpreadingOptions::max_steps bounds the whole solve, as documented.
+class SolveStepBudget {
+ public:
+  explicit SolveStepBudget(std::size_t max_steps) : max_steps_(max_steps) {}
+  void operator()() {
+    if (steps_ >= max_steps_) throw StepLimitReached{};
+    ++steps_;
+  }
+  void reset() {}  // called by odeint at every requested time: the budget is per solve
+  std::size_t steps() const { return steps_; }
+
+ private:
+  std::size_t max_steps_;
+  std::size_t steps_ = 0;
+};
+
+}  // namespace
 
 SpreadingSystem::SpreadingSystem(const SpreadingProblem& problem, int cells, double grading) : p_(problem) {
   initial_.resize(cells);
@@ -193,47 +222,66 @@ SpreadingSolution solve_spreading(const SpreadingProblem& problem, const std::ve
   const double last_width = x[x.size() - 1] - x[x.size() - 2];
   double dt = v0.cwiseAbs().maxCoeff() > 0 ? 1e-3 * last_width / v0.cwiseAbs().maxCoeff() : 1.0;
 
+  if (!v0.allFinite()) {
+    out.status = SolveStatus::NonFiniteState;
+    out.message = "thin-film solve: the initial rate is not finite (the material's flux overflows at release)";
+    out.final_nodes = x * problem.initial_extent;
+    return out;
+  }
+
   std::vector<double> obs_times;
   obs_times.reserve(times.size() + 1);
   obs_times.push_back(0.0);
   obs_times.insert(obs_times.end(), times.begin(), times.end());
   out.fronts.reserve(times.size());
   std::size_t seen = 0;
-  auto observer = [&](const Eigen::VectorXd& state, double) {
+  auto observer = [&](const Eigen::VectorXd& state, double t) {
+    if (!state.allFinite()) throw NonFiniteStateReached{t};
     if (seen++ > 0) out.fronts.push_back(state[state.size() - 1] * problem.initial_extent);
   };
-  const boost::numeric::odeint::max_step_checker checker(static_cast<int>(options.max_steps));
-  try {
-    if (options.stepper == TimeStepper::Rodas) {
-      AdaptiveDenseStepper<TridiagonalRodas> stepper(
-          TridiagonalRodas{}, StepSizeController(options.abs_tol, options.rel_tol, TridiagonalRodas::error_order));
-      try {
-        out.steps = boost::numeric::odeint::integrate_times(std::ref(stepper), std::cref(system), x,
-                                                            obs_times.begin(), obs_times.end(), dt, observer, checker);
-      } catch (...) {
-        out.rhs_calls = stepper.method().rhs_calls();
-        throw;
+  SolveStepBudget budget(options.max_steps);
+  // One integration with either stepper; `current` gives the stepper's latest state and time (for the report of a
+  // failed step-size adjustment: a non-finite rate there is a non-finite state, not a small step).
+  auto integrate = [&](auto& stepper, auto current) {
+    try {
+      out.steps = boost::numeric::odeint::integrate_times(std::ref(stepper), std::cref(system), x, obs_times.begin(),
+                                                          obs_times.end(), dt, observer, std::ref(budget));
+    } catch (const StepLimitReached&) {
+      out.status = SolveStatus::StepLimit;
+      out.steps = budget.steps();
+      out.message = "thin-film solve stopped: SpreadingOptions::max_steps = " + std::to_string(options.max_steps) +
+                    " time steps per solve reached at t = " + std::to_string(current().second) + " s";
+    } catch (const boost::numeric::odeint::step_adjustment_error& e) {
+      out.steps = budget.steps();
+      const auto [state, t] = current();
+      Eigen::VectorXd rate;
+      system(state, rate, t);
+      if (!state.allFinite() || !rate.allFinite()) {
+        out.status = SolveStatus::NonFiniteState;
+        out.message = "thin-film solve: the rate became non-finite at t = " + std::to_string(t) + " s";
+      } else {
+        out.status = SolveStatus::StepSizeUnderflow;
+        out.message = std::string("thin-film solve stopped: no acceptable time step: ") + e.what();
       }
-      out.rhs_calls = stepper.method().rhs_calls();
-    } else {
-      TridiagonalRosenbrock2 stepper(options.abs_tol, options.rel_tol, options.jacobian_reuse);
-      try {
-        out.steps = boost::numeric::odeint::integrate_times(std::ref(stepper), std::cref(system), x,
-                                                            obs_times.begin(), obs_times.end(), dt, observer, checker);
-      } catch (...) {
-        out.rhs_calls = stepper.rhs_calls();
-        throw;
-      }
-      out.rhs_calls = stepper.rhs_calls();
+    } catch (const NonFiniteStateReached& e) {
+      out.status = SolveStatus::NonFiniteState;
+      out.steps = budget.steps();
+      out.message = "thin-film solve: the state became non-finite by t = " + std::to_string(e.time) + " s";
     }
-  } catch (const std::exception& e) {
-    out.ok = false;
-    out.message = std::string("thin-film solve stopped: ") + e.what() + " (SpreadingOptions::max_steps allows " +
-                  std::to_string(options.max_steps) + " time steps between two readings)";
-  }
-  if (out.ok && (!x.allFinite() || out.fronts.size() != times.size())) {
-    out.ok = false;
-    out.message = "thin-film solve produced a non-finite state";
+  };
+  if (options.stepper == TimeStepper::Rodas) {
+    AdaptiveDenseStepper<TridiagonalRodas> stepper(
+        TridiagonalRodas{}, StepSizeController(options.abs_tol, options.rel_tol, TridiagonalRodas::error_order));
+    integrate(stepper, [&] {
+      return std::pair<Eigen::VectorXd, double>(stepper.current_state(), stepper.current_time());
+    });
+    out.rhs_calls = stepper.method().rhs_calls();
+  } else {
+    TridiagonalRosenbrock2 stepper(options.abs_tol, options.rel_tol, options.jacobian_reuse);
+    // The controlled stepper advances x itself; the time reached is the last requested one it passed.
+    integrate(stepper,
+              [&] { return std::pair<Eigen::VectorXd, double>(x, seen > 0 ? obs_times[seen - 1] : 0.0); });
+    out.rhs_calls = stepper.rhs_calls();
   }
   out.final_nodes = x * problem.initial_extent;
   return out;

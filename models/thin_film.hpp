@@ -20,6 +20,7 @@
 #include <Eigen/Core>
 
 #include "models/rheology.hpp"
+#include "models/solve_status.hpp"
 
 namespace spreadfit {
 
@@ -46,18 +47,21 @@ struct SpreadingOptions {
   double grading = 3.0;            ///< initial node x_i = L0 (1 - (1 - i/N)^grading): > 1 refines the front
   double rel_tol = 1e-4;           ///< stepper tolerance (relative)
   double abs_tol = 1e-8;           ///< stepper tolerance, in units of the initial extent
-  std::size_t max_steps = 200000;  ///< bound on steps between two requested times
+  /// Bound on time steps per solve, over all requested times (RODAS: accepted steps; Ros2: tries, accepted or
+  /// rejected); reaching it ends the solve with SolveStatus::StepLimit.
+  std::size_t max_steps = 200000;
   int jacobian_reuse = 4;          ///< Ros2 only: accepted steps one finite-difference Jacobian serves
                                    ///< (4 changes readings by < 5e-5 relative against 1, 1.6x faster)
 };
 
 struct SpreadingSolution {
   std::vector<double> fronts;   ///< front position (from x = 0 or the axis) [m] at each requested time
-  bool ok = true;
-  std::string message;          ///< which bound was hit or what failed
-  std::size_t steps = 0;
+  SolveStatus status = SolveStatus::Ok;
+  std::string message;          ///< which bound was hit or what failed, with its value (empty when Ok)
+  std::size_t steps = 0;        ///< time steps taken (on failure: up to where the solve stopped)
   std::size_t rhs_calls = 0;
   Eigen::VectorXd final_nodes;  ///< node positions at the last time [m], node 0 (at 0) excluded
+  bool ok() const { return status == SolveStatus::Ok; }
 };
 
 /// The method-of-lines system in odeint's form: sys(x, dxdt, t), x the node positions divided by L0.

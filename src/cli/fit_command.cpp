@@ -5,6 +5,8 @@
 #include <cctype>
 #include <unistd.h>
 #include <map>
+#include <mutex>
+#include <optional>
 
 #include "models/temperature.hpp"
 #include "src/cli/exit_codes.hpp"
@@ -18,6 +20,7 @@
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/test_description.hpp"
+#include "src/parallel_for.hpp"
 #include "src/qc/verdict.hpp"
 #include "src/report/fit_plot.hpp"
 #include "src/report/result_json.hpp"
@@ -107,6 +110,14 @@ std::optional<FlowIndexPrior> prior_for(const io::ProductSpec* product, const st
   if (!learned && !product_code.empty()) note = "no flow-index prior: " + why_not;
   return learned;
 }
+
+// One material's fit and what it has to say, kept until the materials before it are reported.
+struct MaterialRun {
+  FitOutcome outcome;
+  std::string where;                       // the first test file, for messages
+  std::string notes;                       // lines for stderr (catalogue notes)
+  std::optional<std::string> input_error;  // the message of a bad input found while fitting
+};
 
 // Fits one material: all tests of one sample id.
 FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optional<Law>& forced,
@@ -305,34 +316,62 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
   int plotted = 0;
   // Progress on stderr only for a person watching (a terminal), never in logs or pipes a plant system reads.
   const bool show_progress = ::isatty(STDERR_FILENO) == 1 && order.size() > 1;
-  std::size_t done = 0;
-  for (const std::string& id : order) {
-    if (show_progress) err << fmt::format("[{}/{}] fitting {}\n", ++done, order.size(), id) << std::flush;
-    std::vector<io::TestDescription> tests = std::move(by_sample[id]);
-    const std::string where = tests.front().path.string();
-    FitOutcome o;
+  std::size_t started = 0;
+  std::mutex progress_lock;
+  // The catalogue of each material, looked up here once (the fits below only read the catalogues).
+  std::vector<const std::map<std::string, io::ProductSpec>*> catalogue_of;
+  for (const std::string& id : order) catalogue_of.push_back(catalogue_for(by_sample.at(id).front()));
+  // Fitting one material: what it prints goes into its own MaterialRun, written out in input order below.
+  auto fit_one = [&](std::size_t index) {
+    const std::string& id = order[index];
+    if (show_progress) {
+      const std::lock_guard<std::mutex> hold(progress_lock);
+      err << fmt::format("[{}/{}] fitting {}\n", ++started, order.size(), id) << std::flush;
+    }
+    MaterialRun run;
+    std::vector<io::TestDescription> tests = std::move(by_sample.at(id));
+    run.where = tests.front().path.string();
     try {
       const io::ProductSpec* from_catalogue = nullptr;
       const std::string& product = tests.front().product;
-      if (const auto* catalogue = catalogue_for(tests.front())) {
+      if (const auto* catalogue = catalogue_of[index]) {
         const auto found = catalogue->find(product);
         if (found != catalogue->end()) from_catalogue = &found->second;
         else if (options.specs)
-          err << fmt::format("spreadfit: note: {}: no limits for product '{}' in {}\n", where,
-                             product.empty() ? std::string("(none given)") : product, options.specs->string());
+          run.notes += fmt::format("spreadfit: note: {}: no limits for product '{}' in {}\n", run.where,
+                                   product.empty() ? std::string("(none given)") : product, options.specs->string());
       }
       std::string prior_absent;
       const std::optional<FlowIndexPrior> prior = prior_for(from_catalogue, product, options, prior_absent);
-      o = fit_material(std::move(tests), forced, from_catalogue, prior, prior_absent);
+      run.outcome = fit_material(std::move(tests), forced, from_catalogue, prior, prior_absent);
       // Unusual input values travel with the result, so the JSON and the table carry them too.
+      FitOutcome& o = run.outcome;
       if (o.result())
         for (const io::TestDescription& t : o.tests)
           for (const std::string& w : t.warnings) o.candidates[std::size_t(o.chosen)].warnings.push_back(w);
     } catch (const io::InputError& e) {
-      err << "spreadfit: " << e.what() << "\n";
+      run.input_error = e.what();
+    }
+    return run;
+  };
+  // Without --db the materials are independent: they are fitted on every core at once (each fit is deterministic
+  // and the results are reported in input order below, so the output equals a run of one material after another).
+  // With --db a material's flow-index prior learns from the batches recorded before it in the same run, so each is
+  // fitted and recorded in turn.
+  std::vector<std::optional<MaterialRun>> runs(order.size());
+  if (!options.db) parallel_for(order.size(), [&](std::size_t i) { runs[i] = fit_one(i); });
+  for (std::size_t index = 0; index < order.size(); ++index) {
+    const std::string& id = order[index];
+    if (!runs[index]) runs[index] = fit_one(index);
+    MaterialRun& run = *runs[index];
+    err << run.notes;
+    if (run.input_error) {
+      err << "spreadfit: " << *run.input_error << "\n";
       bad_input = true;
       continue;
     }
+    const std::string& where = run.where;
+    FitOutcome o = std::move(run.outcome);
     out << summary_table(o) << "\n";
     if (!o.result()) {
       failed = true;

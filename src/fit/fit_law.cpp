@@ -105,8 +105,11 @@ Eigen::VectorXd global_start(const FitProblem& problem, int evaluations) {
     double value = 0;
     try {
       opt.optimize(x, value);
-    } catch (const std::exception&) {
-      // forced_stop, or a budget-exhausted signal in some builds: the best point seen is kept either way.
+    } catch (const std::runtime_error&) {
+      // NLopt's ways of stopping early (nlopt::forced_stop and nlopt::roundoff_limited derive from
+      // std::runtime_error, as does its generic failure): the best point seen is kept either way.
+    } catch (const std::invalid_argument&) {
+      // NLopt refuses a start that rounding put a hair outside the box ("bounds ... fail"): the start is kept.
     }
     if (error) std::rethrow_exception(error);
   };

@@ -1,6 +1,7 @@
 #include "src/qc/spec_translation.hpp"
 
 #include <algorithm>
+#include <boost/math/policies/error_handling.hpp>
 #include <boost/math/tools/toms748_solve.hpp>
 #include <cmath>
 #include <cstdint>
@@ -27,6 +28,11 @@ struct Piece {
   double lo, hi;  // in the search coordinate u in [0, 1]
 };
 
+// A forward solve inside the scan failed: the scan of that combination stops and says so.
+struct ForwardSolveFailed : std::runtime_error {
+  ForwardSolveFailed() : std::runtime_error("the forward model failed") {}
+};
+
 // The in-limits set of one combination, as pieces of the search coordinate.
 struct Scan {
   std::vector<Piece> pieces;
@@ -41,7 +47,7 @@ Scan scan(const TestSetup& setup, double time, const Material& other, const Sear
   const auto reading = [&](double u) {
     ++out.solves;
     const auto r = reading_at(setup, with_parameter(other, search.parameter, value_at(u)), time);
-    if (!r) throw std::runtime_error("the forward model failed");
+    if (!r) throw ForwardSolveFailed();
     return *r;
   };
   try {
@@ -86,7 +92,9 @@ Scan scan(const TestSetup& setup, double time, const Material& other, const Sear
       if (end_state != 0 && start >= 0) out.pieces.push_back({start, u[k + 1]}), start = -1;
     }
     if (start >= 0) out.pieces.push_back({start, 1.0});
-  } catch (const std::exception& e) {
+  } catch (const ForwardSolveFailed& e) {
+    out.failure = e.what();
+  } catch (const boost::math::evaluation_error& e) {  // TOMS 748 found no root in a bracketing interval
     out.failure = e.what();
   }
   return out;

@@ -141,22 +141,53 @@ void left_out_marker(Document& doc, double x, double y, const std::string& toolt
               tooltip);
 }
 
-}  // namespace
+// The words and units the chart writes: the parameter in plain words, its unit, the heading.
+struct ChartNames {
+  std::string unit_symbol;  // the unit as SVG text
+  std::string unit;         // " unit", or empty for a dimensionless value
+  std::string parameter;    // yield_stress -> yield stress
+  std::string heading;
+};
 
-std::string control_chart_svg(const ControlChart& chart, const std::string& title) {
+ChartNames chart_names(const ControlChart& chart, const std::string& title) {
+  ChartNames names;
+  names.unit_symbol = svg::unit_text(chart.unit);
+  names.unit = chart.unit.empty() || chart.unit == "-" ? std::string() : " " + names.unit_symbol;
+  names.parameter = chart.parameter.empty() ? std::string("value") : chart.parameter;
+  std::replace(names.parameter.begin(), names.parameter.end(), '_', ' ');
+  names.heading = title.empty() ? "Control chart of " + names.parameter : title;
+  return names;
+}
+
+// How many charted values are shown, beyond a limit, in a run, or neither.
+struct ChartCounts {
+  std::size_t shown = 0, beyond = 0, in_run = 0, plain = 0;
+};
+
+bool flag(const std::vector<bool>& flags, std::size_t i) { return i < flags.size() && flags[i]; }
+
+ChartCounts chart_counts(const ControlChart& chart) {
+  const std::size_t n = chart.values.size();
+  ChartCounts c;
+  std::size_t &shown = c.shown, &beyond = c.beyond, &in_run = c.in_run, &plain = c.plain;
+  for (std::size_t i = 0; i < n; ++i) {
+    if (!std::isfinite(chart.values[i])) continue;
+    ++shown;
+    beyond += flag(chart.beyond_limits, i);
+    in_run += flag(chart.in_run, i);
+    plain += !flag(chart.beyond_limits, i) && !flag(chart.in_run, i);
+  }
+  return c;
+}
+
+// --- header: title, the chart's summary in words, the left-out batches --------------------------------------------
+double chart_header(Document& doc, const ControlChart& chart, const ChartNames& names, const ChartCounts& counts) {
   const std::size_t n = chart.values.size(), batches = chart.batches();
-  auto flag = [](const std::vector<bool>& flags, std::size_t i) { return i < flags.size() && flags[i]; };
-  auto label_of = [&](std::size_t i) { return i < chart.labels.size() ? chart.labels[i] : fmt::format("#{}", i + 1); };
-  const std::string unit_symbol = svg::unit_text(chart.unit);
-  const std::string unit = chart.unit.empty() || chart.unit == "-" ? std::string() : " " + unit_symbol;
-  std::string parameter = chart.parameter.empty() ? std::string("value") : chart.parameter;
-  std::replace(parameter.begin(), parameter.end(), '_', ' ');  // yield_stress -> yield stress
-  const std::string heading = title.empty() ? "Control chart of " + parameter : title;
-
-  Document doc(page_width, heading);
-  doc.add("rect", {{"x", 0.0}, {"y", 0.0}, {"width", "100%"}, {"height", "100%"}, {"fill", "#ffffff"}});
-
-  // --- header ---------------------------------------------------------------------------------------------------
+  const std::string& heading = names.heading;
+  const std::string& unit_symbol = names.unit_symbol;
+  const std::string& unit = names.unit;
+  const std::string& parameter = names.parameter;
+  const std::size_t shown = counts.shown;
   const double text_width = page_width - 2 * page_margin;
   double y = 34;
   for (const auto& line : svg::wrap(heading, text_width, 19)) {
@@ -165,14 +196,6 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
         {{"class", "title"}, {"x", page_margin}, {"y", y}, {"font-size", 19.0}, {"font-weight", "bold"}, {"fill", ink}},
         line);
     y += 26;
-  }
-  std::size_t shown = 0, beyond = 0, in_run = 0, plain = 0;
-  for (std::size_t i = 0; i < n; ++i) {
-    if (!std::isfinite(chart.values[i])) continue;
-    ++shown;
-    beyond += flag(chart.beyond_limits, i);
-    in_run += flag(chart.in_run, i);
-    plain += !flag(chart.beyond_limits, i) && !flag(chart.in_run, i);
   }
   const std::string limits_rule =
       chart.log_scale
@@ -209,8 +232,12 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
       y += 17;
     }
   }
+  return y;
+}
 
-  // --- legend ---------------------------------------------------------------------------------------------------
+// --- legend ---------------------------------------------------------------------------------------------------
+double chart_legend(Document& doc, const ControlChart& chart, const ChartCounts& counts, double y) {
+  const std::size_t beyond = counts.beyond, in_run = counts.in_run, plain = counts.plain;
   {
     struct Entry {
       int kind;  // 0 normal, 1 beyond, 2 run, 3 centre line, 4 limits, 5 spec, 6 left out
@@ -254,7 +281,16 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
     }
     y += 34;
   }
+  return y;
+}
 
+// --- chart: batch labels, value axis, shading, levels, the values and their markers, the left-out batches ---------
+double chart_panel(Document& doc, const ControlChart& chart, const ChartNames& names, double y) {
+  const std::size_t n = chart.values.size(), batches = chart.batches();
+  auto label_of = [&](std::size_t i) { return i < chart.labels.size() ? chart.labels[i] : fmt::format("#{}", i + 1); };
+  const std::string& unit_symbol = names.unit_symbol;
+  const std::string& unit = names.unit;
+  const std::string& parameter = names.parameter;
   // --- chart ----------------------------------------------------------------------------------------------------
   std::vector<std::string> all_labels(batches);
   for (std::size_t i = 0; i < n; ++i)
@@ -410,6 +446,19 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
   y += 24;
 
   // --- footer ---------------------------------------------------------------------------------------------------
+  return y;
+}
+
+}  // namespace
+
+std::string control_chart_svg(const ControlChart& chart, const std::string& title) {
+  const ChartNames names = chart_names(chart, title);
+  const ChartCounts counts = chart_counts(chart);
+  Document doc(page_width, names.heading);
+  doc.add("rect", {{"x", 0.0}, {"y", 0.0}, {"width", "100%"}, {"height", "100%"}, {"fill", "#ffffff"}});
+  double y = chart_header(doc, chart, names, counts);
+  y = chart_legend(doc, chart, counts, y);
+  y = chart_panel(doc, chart, names, y);
   return svg::finish_with_caution(doc, bench_caution, y, page_width, page_margin, muted);
 }
 

@@ -85,7 +85,7 @@ double per_metre(const std::string& unit) {
   if (unit.empty()) return 0;
   try {
     return 1.0 / io::convert_to_si(1.0, unit, io::Dimension::Length);
-  } catch (const std::exception&) {
+  } catch (const io::UnitError&) {  // not a length unit
     return 0;
   }
 }
@@ -108,7 +108,7 @@ PredictionBand band_or_failure(const FitResult& fit, const TestSetup& setup, con
                                std::size_t index, int draws) {
   try {
     return prediction_band(fit, setup, times, index, draws);
-  } catch (const std::exception&) {  // an invalid material or rig: no curve, said in the legend
+  } catch (const std::invalid_argument&) {  // an invalid material or rig: no curve, said in the legend
     PredictionBand failed;
     failed.ok = false;
     return failed;
@@ -254,14 +254,8 @@ double final_reading_panels(Document& doc, const FitOutcome& outcome, double y) 
   return y;
 }
 
-}  // namespace
-
-std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>& series) {
-  const FitResult* r = outcome.result();
-  const std::string sample_id = outcome.tests.empty() ? std::string("(no sample id)") : outcome.tests.front().sample_id;
-  const std::string product = outcome.tests.empty() ? std::string() : outcome.tests.front().product;
-
-  // --- data: what each series shows -------------------------------------------------------------------------
+// --- data: what each series shows -------------------------------------------------------------------------
+std::vector<View> series_views(const FitOutcome& outcome, const std::vector<FitSeries>& series, const FitResult* r) {
   std::vector<View> views;
   for (std::size_t i = 0; i < series.size(); ++i) {
     const FitSeries& s = series[i];
@@ -291,6 +285,11 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
     }
     views.push_back(std::move(v));
   }
+  return views;
+}
+
+// --- layout: one panel per rig and reading, its unit and its time range -----------------------------------------
+std::vector<Panel> reading_panels(const std::vector<View>& views) {
   std::vector<Panel> panels;
   for (std::size_t k = 0; k < views.size(); ++k) {
     const Reading reading = views[k].series->setup.reading;
@@ -321,11 +320,12 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
     if (!(p.t_hi > p.t_lo)) p.t_hi = p.t_lo + 1;
     if (p.t_lo < 0) p.t_lo -= 0.015 * (p.t_hi - p.t_lo);  // the curve's start clear of the frame
   }
+  return panels;
+}
 
-  Document doc(page_width, fmt::format("spreadfit: sample {}", sample_id));
-  doc.add("rect", {{"x", 0.0}, {"y", 0.0}, {"width", "100%"}, {"height", "100%"}, {"fill", "#ffffff"}});
-
-  // --- header -------------------------------------------------------------------------------------------------
+// --- header: sample, model, parameters, fit summary (or why there is no result), and the verdict badge -----------
+double header(Document& doc, const FitOutcome& outcome, const std::vector<View>& views, const FitResult* r,
+              const std::string& sample_id, const std::string& product) {
   const double text_width = page_width - 2 * page_margin - badge_width - 24;
   std::string title = "Sample " + sample_id;
   if (!product.empty()) title += "  \u00b7  product " + product;
@@ -372,8 +372,11 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
   verdict_badge(doc, outcome.verdict, 14);
   const double badge_bottom = 14 + 62 + double(outcome.verdict.checks.size() + 1) * 13.0;
   y = std::max(y, badge_bottom);
+  return y;
+}
 
-  // --- legend ---------------------------------------------------------------------------------------------------
+// --- legend ---------------------------------------------------------------------------------------------------
+double legend(Document& doc, const std::vector<View>& views, const FitResult* r, double y) {
   struct Entry {
     enum Kind { Marker, Line, Band } kind;
     Look look;
@@ -435,192 +438,200 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
     }
     y += 30;
   }
+  return y;
+}
 
-  // --- one reading panel per rig and reading, each over its own time axis, its residuals under it -------------
-  if (!r && !panels.empty()) {  // a banner above the readings, where it cannot hide any of them
-    doc.add("rect", {{"x", plot_left},
-                     {"y", y - 8},
-                     {"width", plot_right - plot_left},
-                     {"height", 26.0},
-                     {"rx", 3.0},
-                     {"fill", "#fdecea"},
-                     {"stroke", alarm}});
+// A banner above the readings of a failed fit, where it cannot hide any of them.
+double no_result_banner(Document& doc, double y) {
+  doc.add("rect", {{"x", plot_left},
+                   {"y", y - 8},
+                   {"width", plot_right - plot_left},
+                   {"height", 26.0},
+                   {"rx", 3.0},
+                   {"fill", "#fdecea"},
+                   {"stroke", alarm}});
+  doc.add_text("text",
+               {{"class", "no-result"},
+                {"x", plot_left + 12},
+                {"y", y + 10},
+                {"font-size", 13.0},
+                {"font-weight", "bold"},
+                {"fill", alarm}},
+               "NO RESULT \u2014 readings only: the fit failed (reasons above)");
+  y += 32;
+  return y;
+}
+
+// The readings of one panel: bands, fitted curves (clipped to the panel), the clock's start, readings with bars.
+double reading_panel(Document& doc, const Panel& p, std::size_t pi, std::size_t panel_count,
+                     const std::vector<View>& views, const FitResult* r, const LinearScale& time, double y) {
+  if (panel_count > 1) {
     doc.add_text("text",
-                 {{"class", "no-result"},
-                  {"x", plot_left + 12},
-                  {"y", y + 10},
+                 {{"class", "panel-title"},
+                  {"x", plot_left},
+                  {"y", y},
                   {"font-size", 13.0},
                   {"font-weight", "bold"},
-                  {"fill", alarm}},
-                 "NO RESULT \u2014 readings only: the fit failed (reasons above)");
-    y += 32;
+                  {"fill", ink}},
+                 panel_title(p));
+    y += 12;
   }
-  for (std::size_t pi = 0; pi < panels.size(); ++pi) {
-    const Panel& p = panels[pi];
-    // From the clock's zero, or from the release when that came first (not widened there to a round tick).
-    const LinearScale widened(std::max(p.t_lo, 0.0), p.t_hi, plot_left, plot_right, 9);
-    const LinearScale time(p.t_lo < 0 ? p.t_lo : widened.lo(), widened.hi(), plot_left, plot_right, 9, p.t_lo >= 0);
-    if (panels.size() > 1) {
-      doc.add_text("text",
-                   {{"class", "panel-title"},
-                    {"x", plot_left},
-                    {"y", y},
-                    {"font-size", 13.0},
-                    {"font-weight", "bold"},
-                    {"fill", ink}},
-                   panel_title(p));
-      y += 12;
-    }
-    const double top = y, bottom = y + reading_panel_height;
-    // The value axis spans the readings with their bars and the fit over the readings' times: the curve from the
-    // release may start far below (a channel's front at the gate), and is clipped to the panel there.
-    double lo = INFINITY, hi = -INFINITY;
-    auto include = [&](double v) {
-      if (finite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
-    };
-    for (std::size_t k : p.views) {
-      const View& v = views[k];
-      for (double value : v.series->values) include((value - v.sigma) * p.scale), include((value + v.sigma) * p.scale);
-      if (v.has_curve)
-        for (std::size_t i = 0; i < v.curve.times.size(); ++i) {
-          if (v.curve.times[i] < v.series->times.front()) continue;
-          include(v.curve.reading[i] * p.scale);
-          if (v.has_band) include(v.curve.lower[i] * p.scale), include(v.curve.upper[i] * p.scale);
-        }
-    }
-    const double pad = 0.06 * (hi - lo);
-    // Readings are lengths: no axis below zero unless the data go there.
-    const LinearScale value(lo >= 0 ? std::max(lo - pad, 0.0) : lo - pad, hi + pad, bottom, top, 6);
-    svg::vertical_grid(doc, time, top, bottom);
-    svg::y_axis(doc, value, plot_left, plot_right, fmt::format("{} [{}]", reading_name(p.reading), p.unit));
-    svg::open_clipped_group(doc, fmt::format("panel-{}", pi + 1), plot_left, top, plot_right, bottom);
-    for (std::size_t k : p.views) {  // bands first, under everything else
-      const View& v = views[k];
-      if (!v.has_band) continue;
-      std::vector<std::pair<double, double>> outline;
-      for (std::size_t i = 0; i < v.curve.times.size(); ++i)
-        if (finite(v.curve.upper[i])) outline.emplace_back(time(v.curve.times[i]), value(v.curve.upper[i] * p.scale));
-      for (std::size_t i = v.curve.times.size(); i-- > 0;)
-        if (finite(v.curve.lower[i])) outline.emplace_back(time(v.curve.times[i]), value(v.curve.lower[i] * p.scale));
-      doc.add("polygon", {{"class", "band"},
-                          {"points", svg::points(outline)},
-                          {"fill", v.look.colour},
-                          {"fill-opacity", 0.16},
-                          {"stroke", "none"}});
-    }
-    for (std::size_t k : p.views) {
-      const View& v = views[k];
-      if (!v.has_curve) continue;
-      std::vector<std::pair<double, double>> line;
-      for (std::size_t i = 0; i < v.curve.times.size(); ++i)
-        if (finite(v.curve.reading[i])) line.emplace_back(time(v.curve.times[i]), value(v.curve.reading[i] * p.scale));
-      doc.add("polyline", {{"class", "fit"},
-                           {"points", svg::points(line)},
-                           {"fill", "none"},
-                           {"stroke", v.look.colour},
-                           {"stroke-width", 2.2},
-                           {"stroke-linejoin", "round"}});
-    }
-    doc.close();          // the clipped group
-    if (r && p.t_lo < 0)  // the clock started after the release: mark where it started
-      doc.add("line", {{"class", "clock-start"},
-                       {"x1", time(0)},
-                       {"y1", top},
-                       {"x2", time(0)},
-                       {"y2", bottom},
-                       {"stroke", "#8d949c"},
-                       {"stroke-width", 1.0},
-                       {"stroke-dasharray", "2 3"}});
-    for (std::size_t k : p.views) {
-      const View& v = views[k];
-      const FitSeries& s = *v.series;
-      for (std::size_t i = 0; i < s.times.size(); ++i) {
-        const double x = time(s.times[i]), yv = value(s.values[i] * p.scale);
-        if (v.sigma > 0) {
-          const double y1 = value((s.values[i] - v.sigma) * p.scale), y2 = value((s.values[i] + v.sigma) * p.scale);
-          const std::string d = fmt::format("M{0} {1}V{2}M{3} {1}H{4}M{3} {2}H{4}", svg::number(x), svg::number(y1),
-                                            svg::number(y2), svg::number(x - 3), svg::number(x + 3));
-          doc.add(
-              "path",
-              {{"class", "error-bar"}, {"d", d}, {"stroke", v.look.colour}, {"stroke-width", 1.1}, {"fill", "none"}});
-        }
-        std::string tip = fmt::format("{}: t = {:.4g} s, {} {:.4g} {}", v.name, s.times[i],
-                                      reading_name(s.setup.reading), s.values[i] * p.scale, p.unit);
-        if (!v.fitted.empty()) tip += fmt::format(" (fit {:.4g} {})", v.fitted[i] * p.scale, p.unit);
-        svg::marker(doc, v.look.shape, x, yv, 3.4,
-                    {{"class", "reading"}, {"fill", "#ffffff"}, {"stroke", v.look.colour}, {"stroke-width", 1.6}}, tip);
+  const double top = y, bottom = y + reading_panel_height;
+  // The value axis spans the readings with their bars and the fit over the readings' times: the curve from the
+  // release may start far below (a channel's front at the gate), and is clipped to the panel there.
+  double lo = INFINITY, hi = -INFINITY;
+  auto include = [&](double v) {
+    if (finite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
+  };
+  for (std::size_t k : p.views) {
+    const View& v = views[k];
+    for (double value : v.series->values) include((value - v.sigma) * p.scale), include((value + v.sigma) * p.scale);
+    if (v.has_curve)
+      for (std::size_t i = 0; i < v.curve.times.size(); ++i) {
+        if (v.curve.times[i] < v.series->times.front()) continue;
+        include(v.curve.reading[i] * p.scale);
+        if (v.has_band) include(v.curve.lower[i] * p.scale), include(v.curve.upper[i] * p.scale);
       }
+  }
+  const double pad = 0.06 * (hi - lo);
+  // Readings are lengths: no axis below zero unless the data go there.
+  const LinearScale value(lo >= 0 ? std::max(lo - pad, 0.0) : lo - pad, hi + pad, bottom, top, 6);
+  svg::vertical_grid(doc, time, top, bottom);
+  svg::y_axis(doc, value, plot_left, plot_right, fmt::format("{} [{}]", reading_name(p.reading), p.unit));
+  svg::open_clipped_group(doc, fmt::format("panel-{}", pi + 1), plot_left, top, plot_right, bottom);
+  for (std::size_t k : p.views) {  // bands first, under everything else
+    const View& v = views[k];
+    if (!v.has_band) continue;
+    std::vector<std::pair<double, double>> outline;
+    for (std::size_t i = 0; i < v.curve.times.size(); ++i)
+      if (finite(v.curve.upper[i])) outline.emplace_back(time(v.curve.times[i]), value(v.curve.upper[i] * p.scale));
+    for (std::size_t i = v.curve.times.size(); i-- > 0;)
+      if (finite(v.curve.lower[i])) outline.emplace_back(time(v.curve.times[i]), value(v.curve.lower[i] * p.scale));
+    doc.add("polygon", {{"class", "band"},
+                        {"points", svg::points(outline)},
+                        {"fill", v.look.colour},
+                        {"fill-opacity", 0.16},
+                        {"stroke", "none"}});
+  }
+  for (std::size_t k : p.views) {
+    const View& v = views[k];
+    if (!v.has_curve) continue;
+    std::vector<std::pair<double, double>> line;
+    for (std::size_t i = 0; i < v.curve.times.size(); ++i)
+      if (finite(v.curve.reading[i])) line.emplace_back(time(v.curve.times[i]), value(v.curve.reading[i] * p.scale));
+    doc.add("polyline", {{"class", "fit"},
+                         {"points", svg::points(line)},
+                         {"fill", "none"},
+                         {"stroke", v.look.colour},
+                         {"stroke-width", 2.2},
+                         {"stroke-linejoin", "round"}});
+  }
+  doc.close();          // the clipped group
+  if (r && p.t_lo < 0)  // the clock started after the release: mark where it started
+    doc.add("line", {{"class", "clock-start"},
+                     {"x1", time(0)},
+                     {"y1", top},
+                     {"x2", time(0)},
+                     {"y2", bottom},
+                     {"stroke", "#8d949c"},
+                     {"stroke-width", 1.0},
+                     {"stroke-dasharray", "2 3"}});
+  for (std::size_t k : p.views) {
+    const View& v = views[k];
+    const FitSeries& s = *v.series;
+    for (std::size_t i = 0; i < s.times.size(); ++i) {
+      const double x = time(s.times[i]), yv = value(s.values[i] * p.scale);
+      if (v.sigma > 0) {
+        const double y1 = value((s.values[i] - v.sigma) * p.scale), y2 = value((s.values[i] + v.sigma) * p.scale);
+        const std::string d = fmt::format("M{0} {1}V{2}M{3} {1}H{4}M{3} {2}H{4}", svg::number(x), svg::number(y1),
+                                          svg::number(y2), svg::number(x - 3), svg::number(x + 3));
+        doc.add(
+            "path",
+            {{"class", "error-bar"}, {"d", d}, {"stroke", v.look.colour}, {"stroke-width", 1.1}, {"fill", "none"}});
+      }
+      std::string tip = fmt::format("{}: t = {:.4g} s, {} {:.4g} {}", v.name, s.times[i],
+                                    reading_name(s.setup.reading), s.values[i] * p.scale, p.unit);
+      if (!v.fitted.empty()) tip += fmt::format(" (fit {:.4g} {})", v.fitted[i] * p.scale, p.unit);
+      svg::marker(doc, v.look.shape, x, yv, 3.4,
+                  {{"class", "reading"}, {"fill", "#ffffff"}, {"stroke", v.look.colour}, {"stroke-width", 1.6}}, tip);
     }
-    svg::plot_frame(doc, plot_left, top, plot_right, bottom);
-    svg::x_ticks(doc, time, bottom);
-    y = bottom + 30;
+  }
+  svg::plot_frame(doc, plot_left, top, plot_right, bottom);
+  svg::x_ticks(doc, time, bottom);
+  y = bottom + 30;
+  return y;
+}
 
-    // Residuals of this panel's series, on the same time axis.
-    const bool any_residuals =
-        r && std::any_of(p.views.begin(), p.views.end(), [&](std::size_t k) { return !views[k].fitted.empty(); });
-    if (any_residuals) {
-      const double rtop = y, rbottom = y + residual_panel_height;
-      const double two_sigma = 2 * r->sigma * 1e3;
-      double extent = finite(two_sigma) ? two_sigma : 0;
-      for (std::size_t k : p.views) {
-        const View& v = views[k];
-        for (std::size_t i = 0; i < v.fitted.size(); ++i) {
-          const double e = (v.series->values[i] - v.fitted[i]) * 1e3;
-          if (finite(e)) extent = std::max(extent, std::abs(e));
-        }
+// Residuals of one panel's series, on the same time axis (or a note why there are none).
+double residual_panel(Document& doc, const Panel& p, const std::vector<View>& views, const FitResult* r,
+                      const LinearScale& time, double y) {
+  // Residuals of this panel's series, on the same time axis.
+  const bool any_residuals =
+      r && std::any_of(p.views.begin(), p.views.end(), [&](std::size_t k) { return !views[k].fitted.empty(); });
+  if (any_residuals) {
+    const double rtop = y, rbottom = y + residual_panel_height;
+    const double two_sigma = 2 * r->sigma * 1e3;
+    double extent = finite(two_sigma) ? two_sigma : 0;
+    for (std::size_t k : p.views) {
+      const View& v = views[k];
+      for (std::size_t i = 0; i < v.fitted.size(); ++i) {
+        const double e = (v.series->values[i] - v.fitted[i]) * 1e3;
+        if (finite(e)) extent = std::max(extent, std::abs(e));
       }
-      if (!(extent > 0)) extent = 1;
-      const LinearScale res(-1.1 * extent, 1.1 * extent, rbottom, rtop, 4);
-      svg::vertical_grid(doc, time, rtop, rbottom);
-      svg::y_axis(doc, res, plot_left, plot_right, "reading \u2212 fit [mm]");
-      doc.add("line", {{"x1", plot_left},
-                       {"y1", res(0)},
-                       {"x2", plot_right},
-                       {"y2", res(0)},
-                       {"stroke", "#4a5058"},
-                       {"stroke-width", 1.2}});
-      if (two_sigma > 0 && finite(two_sigma)) {
-        for (double level : {two_sigma, -two_sigma}) {
-          doc.add("line", {{"x1", plot_left},
-                           {"y1", res(level)},
-                           {"x2", plot_right},
-                           {"y2", res(level)},
-                           {"stroke", "#8d949c"},
-                           {"stroke-dasharray", "5 4"}});
-          doc.add_text("text",
-                       {{"class", "sigma-label"},
-                        {"x", plot_right + 4},
-                        {"y", res(level) + 3.5},
-                        {"font-size", 10.0},
-                        {"fill", muted}},
-                       level > 0 ? "+2\u03c3" : "\u22122\u03c3");
-        }
-      }
-      for (std::size_t k : p.views) {
-        const View& v = views[k];
-        for (std::size_t i = 0; i < v.fitted.size(); ++i) {
-          const double e = (v.series->values[i] - v.fitted[i]) * 1e3;
-          if (!finite(e)) continue;
-          svg::marker(doc, v.look.shape, time(v.series->times[i]), res(e), 2.8,
-                      {{"class", "residual"}, {"fill", v.look.colour}, {"stroke", v.look.colour}},
-                      fmt::format("{}: t = {:.4g} s, residual {:.3g} mm", v.name, v.series->times[i], e));
-        }
-      }
-      svg::plot_frame(doc, plot_left, rtop, plot_right, rbottom);
-      svg::x_ticks(doc, time, rbottom);
-      y = rbottom + 30;
-    } else if (r) {
-      doc.add_text("text", {{"x", page_margin}, {"y", y + 22}, {"font-size", 12.0}, {"fill", muted}},
-                   "No residuals: the fitted curve could not be computed at the reading times.");
-      y += 14;
     }
-    svg::x_axis_name(doc, plot_left, plot_right, y + 6, "time [s]");
-    y += 30;
+    if (!(extent > 0)) extent = 1;
+    const LinearScale res(-1.1 * extent, 1.1 * extent, rbottom, rtop, 4);
+    svg::vertical_grid(doc, time, rtop, rbottom);
+    svg::y_axis(doc, res, plot_left, plot_right, "reading \u2212 fit [mm]");
+    doc.add("line", {{"x1", plot_left},
+                     {"y1", res(0)},
+                     {"x2", plot_right},
+                     {"y2", res(0)},
+                     {"stroke", "#4a5058"},
+                     {"stroke-width", 1.2}});
+    if (two_sigma > 0 && finite(two_sigma)) {
+      for (double level : {two_sigma, -two_sigma}) {
+        doc.add("line", {{"x1", plot_left},
+                         {"y1", res(level)},
+                         {"x2", plot_right},
+                         {"y2", res(level)},
+                         {"stroke", "#8d949c"},
+                         {"stroke-dasharray", "5 4"}});
+        doc.add_text("text",
+                     {{"class", "sigma-label"},
+                      {"x", plot_right + 4},
+                      {"y", res(level) + 3.5},
+                      {"font-size", 10.0},
+                      {"fill", muted}},
+                     level > 0 ? "+2\u03c3" : "\u22122\u03c3");
+      }
+    }
+    for (std::size_t k : p.views) {
+      const View& v = views[k];
+      for (std::size_t i = 0; i < v.fitted.size(); ++i) {
+        const double e = (v.series->values[i] - v.fitted[i]) * 1e3;
+        if (!finite(e)) continue;
+        svg::marker(doc, v.look.shape, time(v.series->times[i]), res(e), 2.8,
+                    {{"class", "residual"}, {"fill", v.look.colour}, {"stroke", v.look.colour}},
+                    fmt::format("{}: t = {:.4g} s, residual {:.3g} mm", v.name, v.series->times[i], e));
+      }
+    }
+    svg::plot_frame(doc, plot_left, rtop, plot_right, rbottom);
+    svg::x_ticks(doc, time, rbottom);
+    y = rbottom + 30;
+  } else if (r) {
+    doc.add_text("text", {{"x", page_margin}, {"y", y + 22}, {"font-size", 12.0}, {"fill", muted}},
+                 "No residuals: the fitted curve could not be computed at the reading times.");
+    y += 14;
   }
-  y = final_reading_panels(doc, outcome, y);
+  return y;
+}
+
+// Notes where there is nothing to plot.
+double nothing_to_plot_notes(Document& doc, const FitOutcome& outcome, const FitResult* r, bool no_panels, double y) {
   const bool any_final = std::any_of(outcome.tests.begin(), outcome.tests.end(),
                                      [](const auto& t) { return t.final_reading.has_value(); });
-  if (panels.empty() && !any_final) {
+  if (no_panels && !any_final) {
     const std::string note =
         r ? "No reading series to plot: see the parameters above." : "NO RESULT \u2014 and no reading series to plot.";
     doc.add_text("text",
@@ -631,19 +642,53 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
                   {"fill", r ? ink : alarm}},
                  note);
     y += 34;
-  } else if (panels.empty() && !r) {
+  } else if (no_panels && !r) {
     doc.add_text("text",
                  {{"class", "no-result"}, {"x", page_margin}, {"y", y + 4}, {"font-size", 13.0}, {"fill", alarm}},
                  "NO RESULT \u2014 the fit failed (reasons above).");
     y += 24;
   }
+  return y;
+}
 
-  // --- footer ---------------------------------------------------------------------------------------------------
+// --- footer: the result's warnings ------------------------------------------------------------------------------
+double warnings_footer(Document& doc, const FitResult* r, double y) {
   const double footer_width = page_width - 2 * page_margin;
   if (r)
     for (const auto& w : r->warnings)
       y = svg::text_lines(doc, svg::wrap("Warning: " + w, footer_width, 12), page_margin, y + 4, 12, amber) - 4;
   y += 6;
+  return y;
+}
+
+}  // namespace
+
+std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>& series) {
+  const FitResult* r = outcome.result();
+  const std::string sample_id = outcome.tests.empty() ? std::string("(no sample id)") : outcome.tests.front().sample_id;
+  const std::string product = outcome.tests.empty() ? std::string() : outcome.tests.front().product;
+  const std::vector<View> views = series_views(outcome, series, r);
+  const std::vector<Panel> panels = reading_panels(views);
+
+  Document doc(page_width, fmt::format("spreadfit: sample {}", sample_id));
+  doc.add("rect", {{"x", 0.0}, {"y", 0.0}, {"width", "100%"}, {"height", "100%"}, {"fill", "#ffffff"}});
+  double y = header(doc, outcome, views, r, sample_id, product);
+  y = legend(doc, views, r, y);
+  // --- one reading panel per rig and reading, each over its own time axis, its residuals under it -------------
+  if (!r && !panels.empty()) y = no_result_banner(doc, y);
+  for (std::size_t pi = 0; pi < panels.size(); ++pi) {
+    const Panel& p = panels[pi];
+    // From the clock's zero, or from the release when that came first (not widened there to a round tick).
+    const LinearScale widened(std::max(p.t_lo, 0.0), p.t_hi, plot_left, plot_right, 9);
+    const LinearScale time(p.t_lo < 0 ? p.t_lo : widened.lo(), widened.hi(), plot_left, plot_right, 9, p.t_lo >= 0);
+    y = reading_panel(doc, p, pi, panels.size(), views, r, time, y);
+    y = residual_panel(doc, p, views, r, time, y);
+    svg::x_axis_name(doc, plot_left, plot_right, y + 6, "time [s]");
+    y += 30;
+  }
+  y = final_reading_panels(doc, outcome, y);
+  y = nothing_to_plot_notes(doc, outcome, r, panels.empty(), y);
+  y = warnings_footer(doc, r, y);
   return svg::finish_with_caution(doc, bench_caution, y, page_width, page_margin, muted);
 }
 

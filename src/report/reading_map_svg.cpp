@@ -197,24 +197,38 @@ void label_chain(Document& doc, const std::vector<std::pair<double, double>>& li
   }
 }
 
-}  // namespace
+// Two readings equal to rounding (a round contour level on a limit).
+bool near(double a, double b) { return std::abs(a - b) <= 1e-9 * std::max(std::abs(a), std::abs(b)); }
 
-std::string reading_map_svg(const ReadingMap& map) {
-  check_map(map);
-  const std::size_t nx = map.x.size(), ny = map.y.size();
-  const std::string name = map.reading_name.empty() ? std::string("reading") : map.reading_name;
-  const auto [lo, hi] = contour::finite_range(map.reading);
-  const bool any_finite = std::isfinite(lo);
-  const double scale = any_finite && std::max(std::abs(lo), std::abs(hi)) >= 0.03 ? 100 : 1000;
-  const std::string unit = scale == 100 ? "cm" : "mm";
+// --- layout: the reading's range and unit, the failed points, the contour and limit levels ----------------------
+struct MapLevels {
+  std::size_t nx = 0, ny = 0;
+  std::string name;  // the reading's name
+  double lo = 0, hi = 0;
+  bool any_finite = false;
+  double scale = 1000;  // display units per metre
+  std::string unit;
   std::size_t failed_points = 0;
+  std::vector<double> levels;        // round contour levels
+  std::vector<double> limit_levels;  // the limits inside the range (drawn bold)
+};
+
+MapLevels map_levels(const ReadingMap& map) {
+  MapLevels L;
+  L.nx = map.x.size(), L.ny = map.y.size();
+  L.name = map.reading_name.empty() ? std::string("reading") : map.reading_name;
+  std::tie(L.lo, L.hi) = contour::finite_range(map.reading);
+  const double lo = L.lo, hi = L.hi;
+  const bool any_finite = L.any_finite = std::isfinite(lo);
+  L.scale = any_finite && std::max(std::abs(lo), std::abs(hi)) >= 0.03 ? 100 : 1000;
+  L.unit = L.scale == 100 ? "cm" : "mm";
+  std::size_t& failed_points = L.failed_points;
   for (const auto& row : map.reading)
     for (double v : row) failed_points += !std::isfinite(v);
 
   // Round levels, less any that coincides with a limit (the bold line is drawn there instead).
-  std::vector<double> levels = contour::round_levels(lo, hi, 7);
-  const auto near = [&](double a, double b) { return std::abs(a - b) <= 1e-9 * std::max(std::abs(a), std::abs(b)); };
-  std::vector<double> limit_levels;
+  std::vector<double>& levels = L.levels = contour::round_levels(lo, hi, 7);
+  std::vector<double>& limit_levels = L.limit_levels;
   if (map.reading_limits) {
     for (double v : {map.reading_limits->first, map.reading_limits->second})
       if (any_finite && v > lo && v < hi && (limit_levels.empty() || !near(limit_levels.back(), v)))
@@ -224,11 +238,19 @@ std::string reading_map_svg(const ReadingMap& map) {
     });
   }
 
-  const std::string heading = map.title.empty() ? "Reading map" : map.title;
-  Document doc(page_width, heading);
-  doc.add("rect", {{"x", 0.0}, {"y", 0.0}, {"width", "100%"}, {"height", "100%"}, {"fill", "#ffffff"}});
+  return L;
+}
 
-  // --- header ---------------------------------------------------------------------------------------------------
+// --- header: title, notes, summary of the range, failed points ----------------------------------------------------
+double map_header(Document& doc, const ReadingMap& map, const MapLevels& L, const std::string& heading) {
+  const std::size_t nx = L.nx, ny = L.ny;
+  const std::string& name = L.name;
+  const double lo = L.lo, hi = L.hi, scale = L.scale;
+  const bool any_finite = L.any_finite;
+  const std::string& unit = L.unit;
+  const std::size_t failed_points = L.failed_points;
+  const std::vector<double>& levels = L.levels;
+  const std::vector<double>& limit_levels = L.limit_levels;
   const double text_width = page_width - 2 * page_margin;
   double y = svg::text_lines(doc, svg::wrap(heading, text_width, 19), page_margin, 34, 19, ink, "bold", "title");
   y += 2;
@@ -251,12 +273,22 @@ std::string reading_map_svg(const ReadingMap& map) {
                   text_width, 12),
         page_margin, y, 12, muted, "normal", "failed-note");
 
-  // --- geometry -----------------------------------------------------------------------------------------------
-  const double legend_top = y + 4;
-  struct Entry {
-    enum Kind { Contour, Limit, Shade, Box, Failed } kind;
-    std::string text;
-  };
+  return y;
+}
+
+struct MapLegendEntry {
+  enum Kind { Contour, Limit, Shade, Box, Failed } kind;
+  std::string text;
+};
+
+std::vector<MapLegendEntry> map_legend_entries(const ReadingMap& map, const MapLevels& L) {
+  using Entry = MapLegendEntry;
+  const std::string& name = L.name;
+  const double scale = L.scale;
+  const std::string& unit = L.unit;
+  const std::size_t failed_points = L.failed_points;
+  const std::vector<double>& levels = L.levels;
+  const std::vector<double>& limit_levels = L.limit_levels;
   std::vector<Entry> entries;
   if (!levels.empty()) {
     const double step = levels.size() > 1 ? levels[1] - levels[0] : 0;
@@ -282,6 +314,11 @@ std::string reading_map_svg(const ReadingMap& map) {
   if (failed_points > 0)
     entries.push_back({Entry::Failed, fmt::format("model failed ({} grid points)", failed_points)});
 
+  return entries;
+}
+
+// The hatching of cells with a failed grid point, defined once for the legend and the plot.
+void hatch_pattern(Document& doc) {
   doc.open("defs", {});
   doc.open("pattern", {{"id", hatch_id},
                        {"patternUnits", "userSpaceOnUse"},
@@ -293,7 +330,11 @@ std::string reading_map_svg(const ReadingMap& map) {
   doc.close();
   doc.close();
 
-  y = legend_top;
+}
+
+// --- legend -----------------------------------------------------------------------------------------------------
+double map_legend(Document& doc, const std::vector<MapLegendEntry>& entries, double y) {
+  using Entry = MapLegendEntry;
   {
     double x = page_margin;
     for (const Entry& e : entries) {
@@ -330,7 +371,19 @@ std::string reading_map_svg(const ReadingMap& map) {
     if (!entries.empty()) y += 34;
   }
 
-  // --- plot -----------------------------------------------------------------------------------------------------
+  return y;
+}
+
+// --- plot frame: room for the y tick labels, the two axes, the grid in axis coordinates ----------------------------
+struct MapFrame {
+  double widest = 0;  // widest y tick label [px]
+  double plot_left = 0, top = 0, bottom = 0;
+  Axis ax, ay;
+  std::vector<double> u, v;  // grid in axis coordinates
+  std::pair<double, double> px(const contour::Point& p) const { return {ax.pixel(p.x), ay.pixel(p.y)}; }
+};
+
+MapFrame map_frame(const ReadingMap& map, std::size_t nx, std::size_t ny, double y) {
   double widest = 0;
   const Axis probe = make_axis(map.y, map.y_log, 0, 1);
   for (const auto& l : probe.labels) widest = std::max(widest, svg::text_width(l, tick_font));
@@ -341,8 +394,22 @@ std::string reading_map_svg(const ReadingMap& map) {
   std::vector<double> u(nx), v(ny);  // grid in axis coordinates
   for (std::size_t i = 0; i < nx; ++i) u[i] = ax.coordinate(map.x[i]);
   for (std::size_t j = 0; j < ny; ++j) v[j] = ay.coordinate(map.y[j]);
-  const auto px = [&](const contour::Point& p) { return std::pair<double, double>{ax.pixel(p.x), ay.pixel(p.y)}; };
 
+  return MapFrame{widest, plot_left, top, bottom, ax, ay, u, v};
+}
+
+// Inside the clipped plot: the in-limits shading, the hatching of failed cells, the grid lines. Leaves the clipped
+// group open for the contour lines.
+void map_shading_and_grid(Document& doc, const ReadingMap& map, const MapLevels& L, const MapFrame& F) {
+  const double plot_left = F.plot_left, top = F.top, bottom = F.bottom;
+  const Axis& ax = F.ax;
+  const Axis& ay = F.ay;
+  const std::size_t nx = L.nx, ny = L.ny;
+  const bool any_finite = L.any_finite;
+  const std::size_t failed_points = L.failed_points;
+  const std::vector<double>& u = F.u;
+  const std::vector<double>& v = F.v;
+  const auto px = [&](const contour::Point& p) { return F.px(p); };
   doc.open("clipPath", {{"id", clip_id}});
   doc.add("rect", {{"x", plot_left}, {"y", top}, {"width", plot_right - plot_left}, {"height", plot_height}});
   doc.close();
@@ -386,12 +453,26 @@ std::string reading_map_svg(const ReadingMap& map) {
         {{"x1", plot_left}, {"y1", p}, {"x2", plot_right}, {"y2", p}, {"stroke", grid_colour}, {"stroke-width", 1.0}});
   }
 
-  // Contour chains in pixels, per level: limits first so that their labels have the first choice of place.
-  struct Drawn {
-    double level;
-    bool limit;
-    std::vector<std::vector<std::pair<double, double>>> lines;
-  };
+}
+
+// Contour chains in pixels, per level, and whether the level is a limit.
+struct Drawn {
+  double level;
+  bool limit;
+  std::vector<std::vector<std::pair<double, double>>> lines;
+};
+
+// The contour and limit lines and the parameter box, then the clipped group closed.
+std::vector<Drawn> map_contours(Document& doc, const ReadingMap& map, const MapLevels& L, const MapFrame& F) {
+  const double plot_left = F.plot_left, top = F.top, bottom = F.bottom;
+  const Axis& ax = F.ax;
+  const Axis& ay = F.ay;
+  const std::vector<double>& levels = L.levels;
+  const std::vector<double>& limit_levels = L.limit_levels;
+  const std::vector<double>& u = F.u;
+  const std::vector<double>& v = F.v;
+  const auto px = [&](const contour::Point& p) { return F.px(p); };
+  // Limits are traced last, so that their labels (placed from the last level back) have the first choice of place.
   std::vector<Drawn> drawn;
   const auto trace = [&](double level, bool limit) {
     Drawn dr{level, limit, {}};
@@ -430,6 +511,12 @@ std::string reading_map_svg(const ReadingMap& map) {
   }
   doc.close();  // the clipped group
 
+  return drawn;
+}
+
+// Level labels along the lines: limits first, contour labels kept clear of the limit lines.
+void map_contour_labels(Document& doc, const std::vector<Drawn>& drawn, double scale, const MapFrame& F) {
+  const double plot_left = F.plot_left, top = F.top, bottom = F.bottom;
   std::vector<Placed> placed;
   std::vector<std::vector<std::pair<double, double>>> limit_lines;  // contour labels keep clear of these
   for (const Drawn& dr : drawn)
@@ -441,6 +528,14 @@ std::string reading_map_svg(const ReadingMap& map) {
                   it->limit ? limit_colour : contour_colour, it->limit ? "bold" : "normal", plot_left, top, plot_right,
                   bottom, placed, it->limit ? none : limit_lines);
 
+}
+
+// --- axes: the frame, ticks, tick labels and axis names -----------------------------------------------------------
+void map_axes(Document& doc, const ReadingMap& map, const MapFrame& F) {
+  const double plot_left = F.plot_left, top = F.top, bottom = F.bottom;
+  const Axis& ax = F.ax;
+  const Axis& ay = F.ay;
+  const double widest = F.widest;
   doc.add("rect", {{"x", plot_left},
                    {"y", top},
                    {"width", plot_right - plot_left},
@@ -491,7 +586,27 @@ std::string reading_map_svg(const ReadingMap& map) {
                 {"fill", ink}},
                map.x_name);
 
-  return svg::finish_with_caution(doc, bench_caution, bottom + 56, page_width, page_margin, muted);
+}
+
+}  // namespace
+
+std::string reading_map_svg(const ReadingMap& map) {
+  check_map(map);
+  const MapLevels L = map_levels(map);
+  const std::string heading = map.title.empty() ? "Reading map" : map.title;
+  Document doc(page_width, heading);
+  doc.add("rect", {{"x", 0.0}, {"y", 0.0}, {"width", "100%"}, {"height", "100%"}, {"fill", "#ffffff"}});
+  double y = map_header(doc, map, L, heading);
+  const double legend_top = y + 4;
+  const std::vector<MapLegendEntry> entries = map_legend_entries(map, L);
+  hatch_pattern(doc);
+  y = map_legend(doc, entries, legend_top);
+  const MapFrame F = map_frame(map, L.nx, L.ny, y);
+  map_shading_and_grid(doc, map, L, F);
+  const std::vector<Drawn> drawn = map_contours(doc, map, L, F);
+  map_contour_labels(doc, drawn, L.scale, F);
+  map_axes(doc, map, F);
+  return svg::finish_with_caution(doc, bench_caution, F.bottom + 56, page_width, page_margin, muted);
 }
 
 }  // namespace spreadfit

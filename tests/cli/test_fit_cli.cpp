@@ -6,6 +6,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <filesystem>
 #include <nlohmann/json.hpp>
 #include <sstream>
 #include <string>
@@ -74,6 +75,50 @@ TEST_CASE("fit: out of spec gives exit code 1 and still writes the result") {
   const auto j = nlohmann::json::parse(read_text(out_dir / "LT9-0002.json"));
   CHECK(j["verdict"]["status"] == "fail");
   CHECK(j["verdict"]["checks"][0]["pass"] == false);
+}
+
+TEST_CASE("fit: a batch list reports each material exactly as a fit of that material alone, in input order") {
+  // The materials of a batch list are fitted at the same time; the reference is the same binary fitting each test
+  // file on its own (one material, nothing to run beside it): results, table and report files must not differ by a
+  // byte, and the batch keeps the order of the command line (README, "Using it"). Materials invented.
+  TempDir dir;
+  const char* fit_bingham = "[fit]\nmodel = \"bingham\"\n\n[spec]\nyield_stress = [\"5 Pa\", \"40 Pa\"]\n";
+  const std::vector<std::filesystem::path> tests{
+      plate_test(dir, "LT9-0031", "--model bingham --set yield_stress=22 --set viscosity=4 --set time_origin=0",
+                 fit_bingham),
+      plate_test(dir, "LT9-0032", "--model bingham --set yield_stress=9 --set viscosity=7 --set time_origin=0",
+                 fit_bingham),
+      plate_test(dir, "LT9-0033", "--model bingham --set yield_stress=15 --set viscosity=3 --set time_origin=0",
+                 fit_bingham)};
+  std::string list, alone_out;
+  std::vector<nlohmann::json> alone;
+  for (const auto& t : tests) {
+    list += " " + quoted(t.string());
+    const auto folder = dir.path() / ("alone-" + t.stem().string());
+    std::filesystem::create_directory(folder);
+    const Run one = run_spreadfit(dir, "fit " + quoted(t.string()) + " --out-dir " + quoted(folder.string()));
+    INFO(one.out << one.err);
+    REQUIRE(one.exit_code == 0);
+    alone_out += one.out;
+    alone.push_back(nlohmann::json::parse(read_text(folder / (t.stem().string() + ".json"))));
+  }
+  const auto batch = dir.path() / "batch";
+  std::filesystem::create_directory(batch);
+  const auto all_json = dir.path() / "all.json";
+  const Run run = run_spreadfit(
+      dir, "fit" + list + " --out-dir " + quoted(batch.string()) + " --json " + quoted(all_json.string()));
+  INFO(run.out << run.err);
+  REQUIRE(run.exit_code == 0);
+  CHECK(run.out == alone_out);
+  const auto all = nlohmann::json::parse(read_text(all_json));
+  REQUIRE(all.size() == tests.size());
+  for (std::size_t i = 0; i < tests.size(); ++i) {
+    const std::string stem = tests[i].stem().string();
+    INFO(stem);
+    CHECK(all[i] == alone[i]);
+    CHECK(read_text(batch / (stem + ".json")) == read_text(dir.path() / ("alone-" + stem) / (stem + ".json")));
+    CHECK(read_text(batch / (stem + ".svg")) == read_text(dir.path() / ("alone-" + stem) / (stem + ".svg")));
+  }
 }
 
 TEST_CASE("fit: a final-only plate reading gives the Roussel & Coussot yield stress") {

@@ -59,7 +59,7 @@ TEST_CASE("the low-order front stays within 15% of the method of lines over typi
       const std::vector<double> times{10.0, 60.0, 120.0};
       const auto lo = solve_low_order(p, times);
       const auto full = solve_spreading(p, times);
-      REQUIRE(full.ok);
+      REQUIRE(full.ok());
       for (std::size_t i = 0; i < times.size(); ++i) {
         INFO("geometry " << int(g) << " tau " << m.yield_stress << " n " << m.flow_index << " t " << times[i]);
         CHECK(std::abs(lo.fronts[i] / full.fronts[i] - 1.0) < 0.15);

@@ -99,7 +99,7 @@ TEST_CASE("the thin-film system's analytic Jacobian matches central differences"
       p.material = m;
       p.channel_width = g == Geometry::Planar ? 0.05 : 0.0;
       const SpreadingSolution s = solve_spreading(p, {5.0}, {});
-      REQUIRE(s.ok);
+      REQUIRE(s.ok());
       const Eigen::VectorXd x = s.final_nodes / p.initial_extent;
       Eigen::VectorXd f, lo, d, up;
       SpreadingOptions o;

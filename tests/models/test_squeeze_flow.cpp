@@ -62,7 +62,7 @@ TEST_CASE("squeeze: a Newtonian sample follows Stefan's law at constant volume")
   const Material paste{0.0, 1000.0, 1.0};
   const auto times = bench_times();
   const auto sol = solve_squeeze(rig, paste, times);
-  REQUIRE(sol.ok);
+  REQUIRE(sol.ok());
   INFO("steps: " << sol.steps);
   REQUIRE(sol.gaps.size() == times.size());
   CHECK_FALSE(sol.arrested);
@@ -95,7 +95,7 @@ TEST_CASE("squeeze: a power-law sample follows Scott (1931) for several flow ind
     SUBCASE(("n = " + std::to_string(n)).c_str()) {
       const Material m{0.0, 200.0, n};
       const auto sol = solve_squeeze(rig, m, times);
-      REQUIRE(sol.ok);
+      REQUIRE(sol.ok());
       double worst = 0;
       for (std::size_t i = 0; i < times.size(); ++i) {
         const double exact = closed_form::scott_gap(m.consistency, n, rig.force, rig.volume, rig.initial_gap, times[i]);
@@ -202,7 +202,7 @@ TEST_CASE("squeeze: Bingham and Herschel-Bulkley samples stop at the plastic-lim
   for (const Material& m : {Material{50.0, 100.0, 1.0}, Material{20.0, 150.0, 0.6}, Material{10.0, 30.0, 1.4}}) {
     SUBCASE(("tau_y = " + std::to_string(m.yield_stress) + ", n = " + std::to_string(m.flow_index)).c_str()) {
       const auto sol = solve_squeeze(rig, m, times);
-      REQUIRE(sol.ok);
+      REQUIRE(sol.ok());
       const double h_a = closed_form::squeeze_arrest_gap(m.yield_stress, rig.force, rig.volume);
       CHECK(sol.arrest_gap == doctest::Approx(h_a).epsilon(1e-14));
       // The plastic-limit force law written out: the load at h_a is carried exactly by the yield stress.
@@ -232,8 +232,8 @@ TEST_CASE("squeeze: a Herschel-Bulkley sample with a tiny yield stress approache
     const Material power_law{0.0, 200.0, n};
     const auto a = solve_squeeze(rig, tiny, times);
     const auto b = solve_squeeze(rig, power_law, times);
-    REQUIRE(a.ok);
-    REQUIRE(b.ok);
+    REQUIRE(a.ok());
+    REQUIRE(b.ok());
     CHECK_FALSE(a.arrested);
     double worst = 0;
     for (std::size_t i = 0; i < times.size(); ++i) worst = std::max(worst, rel_diff(a.gaps[i], b.gaps[i]));
@@ -244,7 +244,7 @@ TEST_CASE("squeeze: a Herschel-Bulkley sample with a tiny yield stress approache
   // A yield stress so small that the scaled variables would overflow gives the power-law gaps, not NaN.
   const auto vanishing = solve_squeeze(rig, Material{1e-300, 200.0, 0.5}, times);
   const auto power_law = solve_squeeze(rig, Material{0.0, 200.0, 0.5}, times);
-  REQUIRE(vanishing.ok);
+  REQUIRE(vanishing.ok());
   for (std::size_t i = 0; i < times.size(); ++i)
     CHECK(vanishing.gaps[i] == doctest::Approx(power_law.gaps[i]).epsilon(1e-14));
   CHECK(squeeze_rate(rig, Material{1e-300, 200.0, 0.5}, 1e-3) ==
@@ -257,7 +257,7 @@ TEST_CASE("squeeze: no motion when the initial gap is already below the arrest g
   const double h_a = closed_form::squeeze_arrest_gap(stiff.yield_stress, rig.force, rig.volume);
   rig.initial_gap = 0.8 * h_a;
   const auto sol = solve_squeeze(rig, stiff, bench_times());
-  REQUIRE(sol.ok);
+  REQUIRE(sol.ok());
   CHECK(sol.arrested);
   CHECK(sol.steps == 0);
   CHECK(sol.arrest_gap == doctest::Approx(h_a));
@@ -296,8 +296,8 @@ TEST_CASE("squeeze: a tighter tolerance changes the gaps by less than 1e-6") {
     tight.rel_tol = 1e-12;
     const auto a = solve_squeeze(rig, m, times);
     const auto b = solve_squeeze(rig, m, times, tight);
-    REQUIRE(a.ok);
-    REQUIRE(b.ok);
+    REQUIRE(a.ok());
+    REQUIRE(b.ok());
     double worst = 0;
     for (std::size_t i = 0; i < times.size(); ++i) worst = std::max(worst, rel_diff(a.gaps[i], b.gaps[i]));
     INFO("tau_y = " << m.yield_stress << ", n = " << m.flow_index << ", steps " << a.steps << " vs " << b.steps
@@ -311,9 +311,10 @@ TEST_CASE("squeeze: the step bound is reported by name") {
   SqueezeOptions few;
   few.max_steps = 3;
   const auto sol = solve_squeeze(bench_rig(), Material{20.0, 150.0, 0.45}, bench_times(), few);
-  CHECK_FALSE(sol.ok);
+  CHECK_FALSE(sol.ok());
   CHECK(sol.gaps.empty());
   CHECK(sol.message.find("max_steps = 3") != std::string::npos);
+  CHECK(sol.status == SolveStatus::StepLimit);
 }
 
 TEST_CASE("squeeze: the default initial gap is a disc as high as it is wide") {
@@ -322,7 +323,7 @@ TEST_CASE("squeeze: the default initial gap is a disc as high as it is wide") {
   const double h0 = squeeze_initial_gap(rig);
   CHECK(2 * squeeze_disc_radius(rig.volume, h0) == doctest::Approx(h0).epsilon(1e-14));
   const auto sol = solve_squeeze(rig, Material{0.0, 1000.0, 1.0}, {0.0, 10.0});
-  REQUIRE(sol.ok);
+  REQUIRE(sol.ok());
   CHECK(sol.gaps[0] == h0);
   CHECK(sol.gaps[1] == doctest::Approx(closed_form::stefan_gap(1000.0, rig.force, rig.volume, h0, 10.0)).epsilon(1e-6));
 }
