@@ -677,9 +677,9 @@ ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& opt
   const int reported = liquid ? newtonian_index : index_of(Law::HerschelBulkley);
   // The candidate of that law has already been through the global stage and the polish: start from it (and its
   // relatives) instead of searching the box again.
-  FitOptions refit = options;
-  if (choice.candidates[std::size_t(reported)].converged()) refit.global_evaluations = 0;
-  FitResult general = fit_law(series, choice.candidates[std::size_t(reported)].law, refit,
+  FitOptions general_options = options;
+  if (choice.candidates[std::size_t(reported)].converged()) general_options.global_evaluations = 0;
+  FitResult general = fit_law(series, choice.candidates[std::size_t(reported)].law, general_options,
                               liquid ? std::vector<FitResult>{newtonian} : std::vector<FitResult>{hb, bingham, power});
   // The general fit's solves include its own only; a caller adds the candidates' (fit.evaluations in the JSON).
   general.evaluations += choice.candidates[std::size_t(reported)].evaluations;
