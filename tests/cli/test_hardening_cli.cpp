@@ -57,6 +57,10 @@ TEST_CASE("cli: a mistyped command is named with the nearest one") {
   const Run run = run_spreadfit(dir, "fitt x.toml");
   CHECK(run.exit_code == 2);
   CHECK(run.err.find("unknown command 'fitt'; did you mean 'fit'?") != std::string::npos);
+  // Every command is a candidate, capture too (README, "Commands"). was: "expected one of" without capture.
+  const Run capture = run_spreadfit(dir, "captur x.toml");
+  CHECK(capture.exit_code == 2);
+  CHECK(capture.err.find("unknown command 'captur'; did you mean 'capture'?") != std::string::npos);
 }
 
 TEST_CASE("simulate: a material no sauce has, or times without bound, are refused before any solve") {
