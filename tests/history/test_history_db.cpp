@@ -515,7 +515,9 @@ TEST_CASE("reading a history leaves no -wal or -shm file beside it, also when th
   TempDir dir;
   const fs::path file = dir.path() / "history.db";
   spreadfit::history::record(file, sample_result("A", "P", 1));
-  const fs::path wal = file.string() + "-wal", shm = file.string() + "-shm";
+  fs::path wal = file, shm = file;
+  wal += "-wal";
+  shm += "-shm";
   REQUIRE_FALSE(fs::exists(wal));
   REQUIRE_FALSE(fs::exists(shm));
   CHECK(spreadfit::history::load(file, "").size() == 1);
