@@ -251,7 +251,7 @@ int run(int argc, char** argv) {
                                                   : nullptr;
     if (!chosen && argc > 1 && argv[1][0] != '-') {
       // An unknown first word is a mistyped command: name it and the nearest one, not "a subcommand is required".
-      const std::vector<std::string_view> commands{"fit", "simulate", "history", "predict", "translate", "plan"};
+      const std::vector<std::string_view> commands{"fit", "simulate", "history", "predict", "translate", "plan", "capture"};
       std::cerr << "spreadfit: unknown command " << spreadfit::io::quote_for_message(argv[1])
                 << spreadfit::io::did_you_mean(argv[1], commands) << "\nRun 'spreadfit --help' for usage.\n";
       return to_int(ExitCode::BadInput);

@@ -13,6 +13,7 @@
 #include "src/cli/parameter_ranges.hpp"
 #include "src/cli/simulate_command.hpp"
 #include "src/fit/design_check.hpp"
+#include "src/cli/progress.hpp"
 #include "src/fit/test_design.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/test_description.hpp"
@@ -276,7 +277,7 @@ void print_reasons(std::ostream& out, const std::vector<ParameterRange>& ranges,
 }
 
 // The Monte Carlo check at the middle of the ranges, for the recommended candidate and the runner-up.
-void print_check(std::ostream& out, const PlanCommandOptions& options, Law law, const SimulationParameters& base,
+void print_check(std::ostream& out, std::ostream& err, const PlanCommandOptions& options, Law law, const SimulationParameters& base,
                  const std::vector<ParameterRange>& ranges, const std::vector<Candidate>& rows, std::size_t best,
                  std::size_t second) {
   const std::vector<std::string>& names = rows[best].estimate.names;
@@ -292,6 +293,7 @@ void print_check(std::ostream& out, const PlanCommandOptions& options, Law law, 
   for (std::size_t i : {best, second}) {
     if (i >= rows.size()) continue;
     const Candidate& c = rows[i];
+    progress(err, fmt::format("plan --check: refitting {} simulated reading sets of {}", options.check, c.name));
     const DesignCheck k = check_design(c.setup, law, middle, c.times, c.sigma, options.check, first_seed);
     if (k.planned_ratio.empty()) {
       out << fmt::format("  {:<24} forward model failed at this guess ({})\n", c.name, k.message);
@@ -332,6 +334,8 @@ int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::
 
   std::vector<Candidate> rows;
   for (const auto& path : options.candidates) {
+    progress(err, fmt::format("plan: candidate {}/{} ({}), {} guess{}", rows.size() + 1, options.candidates.size(),
+                              path.filename().string(), guesses.size(), guesses.size() == 1 ? "" : "es"));
     const io::TestDescription test = io::load_test_description(path);
     Candidate c{path.filename().string(), test.setup, {}, test.resolution.value_or(default_sigma), {}};
     if (!test.series.empty()) {
@@ -355,7 +359,7 @@ int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::
 
   const std::size_t second = pick(rows, best);
   print_reasons(out, ranges, guesses, rows, best, second);
-  if (options.check > 0) print_check(out, options, law, base, ranges, rows, best, second);
+  if (options.check > 0) print_check(out, err, options, law, base, ranges, rows, best, second);
   return to_int(ExitCode::Done);
 }
 

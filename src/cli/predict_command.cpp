@@ -5,6 +5,7 @@
 #include <algorithm>
 
 #include "src/cli/exit_codes.hpp"
+#include "src/cli/progress.hpp"
 #include "src/cli/simulate_command.hpp"
 #include "src/fit/prediction_band.hpp"
 #include "src/fit/stored_fit.hpp"
@@ -60,6 +61,8 @@ int run_predict_command(const PredictCommandOptions& options, std::ostream& out,
   auto row_of = [&](double t) {
     return std::size_t(std::lower_bound(sorted.begin(), sorted.end(), t) - sorted.begin());
   };
+  if (options.samples > 0)
+    progress(err, fmt::format("predict: solving the other rig for {} parameter draws (the 95% band)", options.samples));
   const PredictionBand band = prediction_band(fit, setup, sorted, 0, options.samples);
   if (!band.ok) {
     err << fmt::format(

@@ -17,6 +17,7 @@
 #include "src/io/units.hpp"
 #include "src/qc/spec_translation.hpp"
 #include "src/report/reading_map_svg.hpp"
+#include "src/cli/progress.hpp"
 
 namespace spreadfit::cli {
 
@@ -242,6 +243,7 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
     std::vector<Material> grid;
     for (double yv : map.y)
       for (double xv : map.x) grid.push_back(with_parameter(with_parameter(held, xr.name, xv), yr.name, yv));
+    progress(err, fmt::format("translate --map: solving the {} at {} points", reading, grid.size()));
     const std::vector<std::optional<double>> values = readings_at(setup, grid, when);
     map.reading.assign(map.y.size(), std::vector<double>(map.x.size(), std::numeric_limits<double>::quiet_NaN()));
     int failed = 0;

@@ -63,7 +63,10 @@ class Database {
     if (fs::is_directory(file, ec)) fail(file_, "is a folder (expected a history database file)");
     if (mode == Mode::ReadOnly && !fs::exists(file, ec))
       fail(file_, "no such history database (expected a file written by 'spreadfit fit --db')");
-    const int flags = mode == Mode::ReadOnly ? SQLITE_OPEN_READONLY : (SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE);
+    // A reader opens read-write too (never creating) and then refuses writes (PRAGMA query_only): in WAL mode only a
+    // connection that may write removes the -wal and -shm files when it closes last, so a read-only open would leave
+    // them beside the database (also beside a damaged one). A write-protected file still opens, read only.
+    const int flags = mode == Mode::ReadOnly ? SQLITE_OPEN_READWRITE : (SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE);
     sqlite3* raw = nullptr;
     const int rc = sqlite3_open_v2(file.c_str(), &raw, flags, nullptr);
     handle_.reset(raw);  // closed even when opening failed
@@ -71,6 +74,7 @@ class Database {
     if (rc != SQLITE_OK) raise(rc, "opening the history database");
     check(sqlite3_extended_result_codes(raw, 1), "enabling extended error codes");
     check(sqlite3_busy_timeout(raw, busy_timeout_ms), "setting the busy timeout");
+    if (mode == Mode::ReadOnly) exec("PRAGMA query_only = 1", "opening the history database for reading");
   }
 
   sqlite3* get() const { return handle_.get(); }

@@ -57,6 +57,10 @@ TEST_CASE("cli: a mistyped command is named with the nearest one") {
   const Run run = run_spreadfit(dir, "fitt x.toml");
   CHECK(run.exit_code == 2);
   CHECK(run.err.find("unknown command 'fitt'; did you mean 'fit'?") != std::string::npos);
+  // Every command is a candidate, capture too (README, "Commands"). was: "expected one of" without capture.
+  const Run capture = run_spreadfit(dir, "captur x.toml");
+  CHECK(capture.exit_code == 2);
+  CHECK(capture.err.find("unknown command 'captur'; did you mean 'capture'?") != std::string::npos);
 }
 
 TEST_CASE("simulate: a material no sauce has, or times without bound, are refused before any solve") {
@@ -86,4 +90,50 @@ TEST_CASE("plan: a reading interval that would make millions of readings is refu
                                          " --model newtonian --set viscosity=1 --every 1e-9");
   CHECK(run.exit_code == 2);
   CHECK(run.err.find("--every/--until") != std::string::npos);
+}
+
+namespace {
+
+/// Runs `spreadfit ARGUMENTS` with stderr on a terminal (a pseudo-terminal from util-linux `script`), as a person
+/// runs it; stdout goes to a file. Returns the terminal's text.
+std::string run_at_terminal(const TempDir& dir, const std::string& arguments) {
+  const auto out = dir.path() / "terminal-stdout.txt";
+  const auto screen = dir.path() / "terminal.txt";
+  const std::string inner = quoted(SPREADFIT_BINARY) + " " + arguments + " >" + quoted(out.string());
+  REQUIRE(inner.find('"') == std::string::npos);
+  const std::string command = "script -qec \"" + inner + "\" " + quoted(screen.string()) + " >/dev/null 2>&1";
+  const int status = std::system(command.c_str());
+  REQUIRE(WIFEXITED(status));
+  CHECK(WEXITSTATUS(status) == 0);
+  return read_text(screen);
+}
+
+}  // namespace
+
+TEST_CASE("progress: runs that can take a while say what they do on a terminal, and nothing in a pipe") {
+  // Common practice, no source: progress for a person watching, never in logs a plant system reads.
+  TempDir dir;
+  const auto slump = dir.write("slump.toml",
+                               "[sample]\nid = \"S\"\ndensity = \"1.1 g/mL\"\n[rig]\nkind = \"slump\"\n"
+                               "radius = \"5 cm\"\nheight = \"10 cm\"\n");
+  const std::string translate = "translate " + quoted(slump.string()) +
+                                " --model bingham --vary 'yield_stress=10 Pa:200 Pa' --vary 'viscosity=1:20' --at 300"
+                                " --points 3 --map " + quoted((dir.path() / "m.svg").string()) + " --map-points 5";
+  // 5 x 5 map points (--map-points 5 on each of the two axes). was: no word at all.
+  const std::string screen = run_at_terminal(dir, translate);
+  CHECK(screen.find("translate --map: solving the") != std::string::npos);
+  CHECK(screen.find("at 25 points") != std::string::npos);
+  const Run piped = run_spreadfit(dir, translate);
+  CHECK(piped.exit_code == 0);
+  CHECK(piped.err.find("solving") == std::string::npos);
+
+  const auto plate = dir.write("plate.toml",
+                               "[sample]\nid = \"P\"\ndensity = \"1 g/mL\"\n[rig]\nkind = \"plate\"\n"
+                               "ring_radius = \"3 cm\"\nvolume = \"150 mL\"\n");
+  const std::string plan = "plan " + quoted(plate.string()) +
+                           " --model bingham --set 'yield_stress=20 Pa' --set viscosity=50 --every 5 --until 120 "
+                           "--check 2";
+  const std::string planned = run_at_terminal(dir, plan);
+  CHECK(planned.find("plan: candidate 1/1 (plate.toml)") != std::string::npos);
+  CHECK(planned.find("plan --check: refitting 2 simulated reading sets of plate.toml") != std::string::npos);
 }

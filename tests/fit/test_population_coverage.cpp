@@ -114,10 +114,12 @@ TEST_CASE("montecarlo: intervals over a population of shear-thinning yield-stres
       }
     }
   }
-  for (const auto& [name, t] : tallies) {
+  for (const auto& [rig_name, t] : tallies) {
+    const std::string& name = rig_name;  // a plain reference: clang 14 cannot capture a structured binding (INFO)
     std::printf("population coverage %s: %d fits, %d without a result, %d without a yield stress, %.2f s a fit\n",
                 name.c_str(), t.fits, t.failed, t.no_yield_stress, t.seconds / t.fits);
-    for (const auto& [param, n] : t.covered) {
+    for (const auto& [param_name, n] : t.covered) {
+      const std::string& param = param_name;
       const double rate = double(n) / t.reported.at(param);
       std::printf("  %s: %.3f over %d\n", param.c_str(), rate, t.reported.at(param));
       INFO(name << " " << param << ": " << rate);

@@ -507,3 +507,31 @@ TEST_CASE("the note printed after recording says whether a result was added or r
   CHECK(spreadfit::cli::history_record_note("runs/h.db", r, WriteOutcome::Updated) ==
         "history: replaced HX1-0001 in runs/h.db (same inputs as an earlier run)");
 }
+
+TEST_CASE("reading a history leaves no -wal or -shm file beside it, also when the database is damaged") {
+  // SQLite, "Write-Ahead Logging" (sqlite.org/wal.html, from memory): the last connection to close checkpoints and
+  // deletes the WAL and shared-memory files, unless it could not write. Reading is read-only for spreadfit, so the
+  // folder must look as it did before.
+  TempDir dir;
+  const fs::path file = dir.path() / "history.db";
+  spreadfit::history::record(file, sample_result("A", "P", 1));
+  fs::path wal = file, shm = file;
+  wal += "-wal";
+  shm += "-shm";
+  REQUIRE_FALSE(fs::exists(wal));
+  REQUIRE_FALSE(fs::exists(shm));
+  CHECK(spreadfit::history::load(file, "").size() == 1);
+  CHECK_FALSE(fs::exists(wal));  // was: both left behind by a read-only connection
+  CHECK_FALSE(fs::exists(shm));
+  {
+    // A damaged page: the second page overwritten with 0xff, which is no valid b-tree page type.
+    std::fstream f(file, std::ios::in | std::ios::out | std::ios::binary);
+    f.seekp(4096);
+    const std::string junk(2000, '\xff');
+    f.write(junk.data(), std::streamsize(junk.size()));
+  }
+  const auto e = input_error_of([&] { (void)spreadfit::history::load(file, ""); });
+  CHECK(e.file() == file.string());
+  CHECK_FALSE(fs::exists(wal));
+  CHECK_FALSE(fs::exists(shm));
+}
