@@ -69,6 +69,12 @@ double squeeze_arrest_gap(double tau_y, double F, double V) {
   return std::pow(2 * pi * tau_y * std::pow(V / pi, 1.5) / (3 * F), 0.4);
 }
 
+double squeeze_yield_stress_from_gap(double F, double V, double h) {
+  // The inverse of squeeze_arrest_gap: tau_y = 3 F h / (2 pi R^3) with R^3 = (V/(pi h))^(3/2), so
+  // tau_y = 3 F h^(5/2) / (2 pi (V/pi)^(3/2)).
+  return 3.0 * F * std::pow(h, 2.5) / (2.0 * pi * std::pow(V / pi, 1.5));
+}
+
 double pashias_dimensionless_slump(double tau) {
   if (tau >= 0.5) return 0.0;
   if (tau <= 0) return 1.0;

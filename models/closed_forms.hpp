@@ -40,6 +40,8 @@ double stefan_gap(double viscosity, double force, double volume, double h0, doub
 double scott_gap(double consistency, double n, double force, double volume, double h0, double t);
 /// Perfectly plastic limit F = 2 pi tau_y R^3 / (3 h): the gap at which the load is carried by the yield stress.
 double squeeze_arrest_gap(double yield_stress, double force, double volume);
+/// Its inverse: the yield stress that holds the load at gap h, tau_y = 3 F h^(5/2) / (2 pi (V/pi)^(3/2)).
+double squeeze_yield_stress_from_gap(double force, double volume, double gap);
 
 // --- Cylinder slump, slump regime (Pashias, Boger, Summers & Glenister 1996, J. Rheol. 40) ---------------------
 /// s / H0 = 1 - 2 tau' (1 - ln(2 tau')), tau' = tau_y / (rho g H0); valid for 0 < tau' < 0.5, zero slump from 0.5.

@@ -125,13 +125,6 @@ std::string_view reading_name(Reading reading) {
   return "unknown";
 }
 
-bool rig_accepts_reading(const Rig& rig, Reading r) {
-  if (std::holds_alternative<ChannelRig>(rig)) return r == Reading::Front;
-  if (std::holds_alternative<PlateRig>(rig)) return r == Reading::Radius || r == Reading::Diameter;
-  if (std::holds_alternative<SqueezeRig>(rig)) return r == Reading::Gap || r == Reading::Radius || r == Reading::Diameter;
-  return r == Reading::Slump;
-}
-
 ForwardResult predict_readings(const TestSetup& setup, const Material& m, const std::vector<double>& times,
                                const ForwardOptions& options) {
   validate(m);
@@ -139,15 +132,11 @@ ForwardResult predict_readings(const TestSetup& setup, const Material& m, const 
   require_positive(setup.gravity, "gravity");
   if (!rig_accepts_reading(setup.rig, setup.reading))
     throw std::invalid_argument("the rig does not read '" + std::string(reading_name(setup.reading)) + "'");
-  return std::visit(
-      [&](const auto& rig) -> ForwardResult {
-        using R = std::decay_t<decltype(rig)>;
-        if constexpr (std::is_same_v<R, ChannelRig>) return channel(rig, setup, m, times, options);
-        else if constexpr (std::is_same_v<R, PlateRig>) return plate(rig, setup, m, times, options);
-        else if constexpr (std::is_same_v<R, SqueezeRig>) return squeeze(rig, setup, m, times, options);
-        else return slump(rig, setup, m, times);
-      },
-      setup.rig);
+  return std::visit(overloaded{[&](const ChannelRig& rig) { return channel(rig, setup, m, times, options); },
+                               [&](const PlateRig& rig) { return plate(rig, setup, m, times, options); },
+                               [&](const SqueezeRig& rig) { return squeeze(rig, setup, m, times, options); },
+                               [&](const SlumpRig& rig) { return slump(rig, setup, m, times); }},
+                    setup.rig);
 }
 
 }  // namespace spreadfit
@@ -157,25 +146,35 @@ namespace spreadfit {
 std::vector<double> predict_readings_low_order(const TestSetup& setup, const Material& m,
                                                const std::vector<double>& times) {
   const Rig& rig = setup.rig;
+  // Squeeze and slump rigs have no low-order model: the full one is already cheap.
+  auto full_model = [&] {
+    const ForwardResult r = predict_readings(setup, m, times);
+    return r.ok() ? r.readings : std::vector<double>(times.size(), std::numeric_limits<double>::quiet_NaN());
+  };
   SpreadingProblem p;
   p.rho_g = setup.density * setup.gravity;
   p.material = m;
   double offset = 0.0, scale = 1.0;
-  if (const auto* c = std::get_if<ChannelRig>(&rig)) {
-    p.geometry = Geometry::Planar;
-    p.initial_extent = c->reservoir_length;
-    p.initial_height = c->volume / (c->width * c->reservoir_length);
-    offset = c->reservoir_length;
-    p.channel_width = c->side_wall_drag ? c->width : 0.0;
-  } else if (const auto* pl = std::get_if<PlateRig>(&rig)) {
-    p.geometry = Geometry::Axisymmetric;
-    p.initial_extent = pl->ring_radius;
-    p.initial_height = pl->volume / (std::numbers::pi * pl->ring_radius * pl->ring_radius);
-    if (setup.reading == Reading::Diameter) scale = 2.0;
-  } else {
-    const ForwardResult r = predict_readings(setup, m, times);
-    return r.ok() ? r.readings : std::vector<double>(times.size(), std::numeric_limits<double>::quiet_NaN());
-  }
+  const bool low_order = std::visit(overloaded{[&](const ChannelRig& c) {
+                                                 p.geometry = Geometry::Planar;
+                                                 p.initial_extent = c.reservoir_length;
+                                                 p.initial_height = c.volume / (c.width * c.reservoir_length);
+                                                 offset = c.reservoir_length;
+                                                 p.channel_width = c.side_wall_drag ? c.width : 0.0;
+                                                 return true;
+                                               },
+                                               [&](const PlateRig& pl) {
+                                                 p.geometry = Geometry::Axisymmetric;
+                                                 p.initial_extent = pl.ring_radius;
+                                                 p.initial_height = pl.volume / (std::numbers::pi * pl.ring_radius *
+                                                                                 pl.ring_radius);
+                                                 if (setup.reading == Reading::Diameter) scale = 2.0;
+                                                 return true;
+                                               },
+                                               [](const SqueezeRig&) { return false; },
+                                               [](const SlumpRig&) { return false; }},
+                                    rig);
+  if (!low_order) return full_model();
   std::vector<double> out = solve_low_order(p, times).fronts;
   for (double& x : out) x = scale * (x - offset);
   return out;

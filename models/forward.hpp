@@ -36,9 +36,6 @@ struct ForwardResult {
 ForwardResult predict_readings(const TestSetup& setup, const Material& material, const std::vector<double>& times,
                                const ForwardOptions& options = {});
 
-/// Reading kinds a rig accepts (front for a channel; radius or diameter for a plate; gap, radius or diameter for
-/// a squeeze; slump for a slump cylinder).
-bool rig_accepts_reading(const Rig& rig, Reading reading);
 std::string_view reading_name(Reading reading);
 
 }  // namespace spreadfit

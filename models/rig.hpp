@@ -1,6 +1,9 @@
 // Geometry of the bench tests spreadfit models. All lengths in m, volumes in m^3, forces in N.
 #pragma once
 
+#include <array>
+#include <optional>
+#include <string_view>
 #include <variant>
 
 #include "models/rheology.hpp"
@@ -53,5 +56,38 @@ struct TestSetup {
   Reading reading = Reading::Front;
   double gravity = standard_gravity;
 };
+
+// --- What each rig is, in one place -----------------------------------------------------------------------
+// Every per-rig answer below dispatches by std::visit over `overloaded` lambdas, one per rig, with no generic
+// branch: a new alternative of Rig is a compile error at each of them (and at every such visit in src/), so the
+// compiler lists the sites a new rig must fill (DEVELOPERS.md, "Adding a rig").
+
+/// Visitor made of one lambda per alternative (the std::visit idiom of cppreference's std::visit page).
+template <class... Fs>
+struct overloaded : Fs... {
+  using Fs::operator()...;
+};
+template <class... Fs>
+overloaded(Fs...) -> overloaded<Fs...>;
+
+/// Kind names as in [rig] kind, in the order of the Rig variant: channel, plate, squeeze, slump.
+const std::array<std::string_view, std::variant_size_v<Rig>>& rig_kind_names();
+/// Kind name of a rig: channel | plate | squeeze | slump.
+std::string_view rig_kind_name(const Rig& rig);
+/// A rig of that kind with its default sizes; nullopt for a name that is no rig kind.
+std::optional<Rig> rig_of_kind(std::string_view kind);
+/// The reading a rig gives when none is named: channel front, plate radius, squeeze gap, slump slump.
+Reading default_reading(const Rig& rig);
+/// Reading kinds a rig accepts (front for a channel; radius or diameter for a plate; gap, radius or diameter for
+/// a squeeze; slump for a slump cylinder).
+bool rig_accepts_reading(const Rig& rig, Reading reading);
+/// Whether the rig's readings form a curve in time (and so a release time can be fitted); a slump is final-only.
+bool rig_is_timed(const Rig& rig);
+/// The power p of the plastic-limit arrest relation tau_y ~ extent^-p of a spreading layer: 3 for a channel's
+/// length, 5 for a plate's radius (models/closed_forms.hpp); nullopt for a rig whose readings do not come to rest
+/// as a spread layer (squeeze, slump).
+std::optional<double> arrest_extent_exponent(const Rig& rig);
+/// The sample volume a rig holds [m^3] (the slump cylinder's from its size, pi R^2 H0).
+double fill_volume(const Rig& rig);
 
 }  // namespace spreadfit

@@ -4,6 +4,7 @@
 
 #include <cmath>
 
+#include "src/fit/parameter_names.hpp"
 #include "src/io/input_error.hpp"
 
 namespace spreadfit::cli {
@@ -27,9 +28,7 @@ double end_value(Law law, const std::vector<std::string>& fixed, const std::vect
     throw;
   }
   const std::string& name = ranges[which].name;
-  if (name == "yield_stress") return p.material.yield_stress;
-  if (name == "flow_index") return p.material.flow_index;
-  return p.material.consistency;
+  return material_value(p.material, name);
 }
 
 }  // namespace

@@ -11,6 +11,7 @@
 
 #include "src/cli/exit_codes.hpp"
 #include "src/cli/parameter_ranges.hpp"
+#include "src/fit/parameter_names.hpp"
 #include "src/cli/simulate_command.hpp"
 #include "src/fit/design_check.hpp"
 #include "src/cli/progress.hpp"
@@ -46,15 +47,6 @@ double one_time(const std::string& text, const std::string& option) {
   return t.front();
 }
 
-/// The sample volume a rig holds [m^3] (the slump cylinder's from its size).
-double fill_volume(const Rig& rig) {
-  if (const auto* c = std::get_if<ChannelRig>(&rig)) return c->volume;
-  if (const auto* p = std::get_if<PlateRig>(&rig)) return p->volume;
-  if (const auto* s = std::get_if<SqueezeRig>(&rig)) return s->volume;
-  const auto& slump = std::get<SlumpRig>(rig);
-  return std::numbers::pi * slump.radius * slump.radius * slump.height;
-}
-
 std::string ratio_text(double r) {
   return r < undetermined_ratio ? fmt::format("{:.3g}x", r) : std::string("undetermined");
 }
@@ -70,7 +62,7 @@ std::string check_text(double r) {
 std::string guess_label(const Material& m, const std::vector<ParameterRange>& ranges) {
   std::string out;
   for (const ParameterRange& r : ranges) {
-    const double v = r.name == "yield_stress" ? m.yield_stress : r.name == "flow_index" ? m.flow_index : m.consistency;
+    const double v = material_value(m, r.name);
     out += fmt::format("{}{:.3g}", out.empty() ? "" : "/", v);
   }
   return out;
@@ -80,7 +72,7 @@ std::string guess_label(const Material& m, const std::vector<ParameterRange>& ra
 std::string guess_words(const Material& m, const std::vector<std::string>& names) {
   std::string out;
   for (const std::string& n : names) {
-    const double v = n == "yield_stress" ? m.yield_stress : n == "flow_index" ? m.flow_index : m.consistency;
+    const double v = material_value(m, n);
     out += fmt::format("{}{}={:.3g}", out.empty() ? "" : " ", n, v);
   }
   return out;

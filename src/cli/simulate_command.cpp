@@ -1,5 +1,7 @@
 #include "src/cli/simulate_command.hpp"
 
+#include "src/fit/parameter_names.hpp"
+
 #include <fmt/format.h>
 
 #include <algorithm>
@@ -156,9 +158,7 @@ SimulationParameters parse_simulation_parameters(Law law, const std::vector<std:
       fail("--set", "missing parameter '" + name + "' for model " + model + " (it takes " + takes_text(own) +
                         "; expected --set " + name + "=VALUE, such as " + name + "=" + example + si + ")");
     }
-    if (name == "viscosity" || name == "consistency") out.material.consistency = it->value;
-    if (name == "yield_stress") out.material.yield_stress = it->value;
-    if (name == "flow_index") out.material.flow_index = it->value;
+    out.material = with_parameter(out.material, name, it->value);
   }
   for (const Given& g : given)
     if (g.name == kTimeOrigin) out.time_origin = g.value;
@@ -208,7 +208,7 @@ std::vector<double> parse_times(std::string_view list) {
 
 std::vector<double> default_times(const io::TestDescription& test) {
   if (!test.series.empty()) return test.series.front().times;
-  if (std::holds_alternative<SlumpRig>(test.setup.rig)) return {default_last_time};
+  if (!rig_is_timed(test.setup.rig)) return {default_last_time};
   std::vector<double> times(default_time_count);
   const double ratio = default_last_time / default_first_time;
   const int last = default_time_count - 1;

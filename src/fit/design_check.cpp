@@ -5,6 +5,7 @@
 #include <stdexcept>
 
 #include "src/fit/fit_law.hpp"
+#include "src/fit/parameter_names.hpp"
 #include "src/fit/synthetic_readings.hpp"
 #include "src/fit/test_design.hpp"
 
@@ -12,11 +13,7 @@ namespace spreadfit {
 
 namespace {
 
-double parameter_of(const Material& m, const std::string& name) {
-  if (name == "yield_stress") return m.yield_stress;
-  if (name == "flow_index") return m.flow_index;
-  return m.consistency;  // viscosity or consistency
-}
+double parameter_of(const Material& m, const std::string& name) { return material_value(m, name); }
 
 }  // namespace
 

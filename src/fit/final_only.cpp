@@ -23,53 +23,67 @@ FitResult fit_final_reading(const TestSetup& setup, double reading, std::optiona
   out.sigma = sigma.value_or(default_sigma);
   const double rho_g = setup.density * setup.gravity;
   double tau = 0, dlog_tau = 0;  // estimate and |d ln tau / d reading|
-  if (const auto* c = std::get_if<ChannelRig>(&setup.rig)) {
-    const double L = c->reservoir_length + reading;
-    tau = closed_form::planar_yield_stress_from_length(rho_g, c->volume / c->width, L);
-    dlog_tau = 3.0 / L;
-  } else if (const auto* p = std::get_if<PlateRig>(&setup.rig)) {
-    const double R = setup.reading == Reading::Diameter ? reading / 2 : reading;
-    tau = closed_form::axisymmetric_yield_stress_from_radius(rho_g, p->volume, R);
-    dlog_tau = 5.0 / R * (setup.reading == Reading::Diameter ? 0.5 : 1.0);
-  } else if (const auto* s = std::get_if<SqueezeRig>(&setup.rig)) {
-    double h = reading, dh = 1.0;  // gap and d gap / d reading
-    if (setup.reading != Reading::Gap) {
-      const double R = setup.reading == Reading::Diameter ? reading / 2 : reading;
-      h = s->volume / (pi * R * R);
-      dh = 2.0 * h / R * (setup.reading == Reading::Diameter ? 0.5 : 1.0);
-    }
-    // tau_y = 3 F h / (2 pi R^3) with R^3 = (V/(pi h))^(3/2): tau_y = 3 F h^(5/2) / (2 pi (V/pi)^(3/2)).
-    tau = 3.0 * s->force * std::pow(h, 2.5) / (2.0 * pi * std::pow(s->volume / pi, 1.5));
-    dlog_tau = 2.5 / h * dh;
-  } else {
-    const auto& rig = std::get<SlumpRig>(setup.rig);
-    if (!(reading > 0) || reading >= rig.height) {
-      out.status = FitStatus::NotIdentifiable;
-      out.reason = reading > 0 ? "the sample collapsed completely: a slump test gives no yield stress then"
-                               : "no slump: the yield stress is only bounded from below (tau_y >= rho g H0 / 2)";
-      return out;
-    }
-    auto slump_at = [&](double log_tau) {
-      return predict_slump(rig, Material{std::exp(log_tau), 1.0, 1.0}, setup.density, setup.gravity).slump - reading;
-    };
-    // The slump falls monotonically from H0 to 0 as tau_y rises to rho g H0 / 2: bracket in log tau.
-    const double top = std::log(0.5 * rho_g * rig.height);
-    boost::math::tools::eps_tolerance<double> tol(40);
-    std::uintmax_t iterations = 100;
-    const auto [a, b] = boost::math::tools::toms748_solve(slump_at, top - 25.0, top, tol, iterations);
-    const double x = 0.5 * (a + b);
-    tau = std::exp(x);
-    const double h = 1e-4;
-    dlog_tau = std::abs(1.0 / ((slump_at(x + h) - slump_at(x - h)) / (2 * h)));
-  }
+  // The rig's plastic-limit (arrest) relation, tau and |d ln tau / d reading|; false when the reading gives none.
+  const bool estimated = std::visit(
+      overloaded{
+          [&](const ChannelRig& c) {
+            const double L = c.reservoir_length + reading;
+            tau = closed_form::planar_yield_stress_from_length(rho_g, c.volume / c.width, L);
+            dlog_tau = 3.0 / L;
+            return true;
+          },
+          [&](const PlateRig& p) {
+            const double R = setup.reading == Reading::Diameter ? reading / 2 : reading;
+            tau = closed_form::axisymmetric_yield_stress_from_radius(rho_g, p.volume, R);
+            dlog_tau = 5.0 / R * (setup.reading == Reading::Diameter ? 0.5 : 1.0);
+            return true;
+          },
+          [&](const SqueezeRig& s) {
+            double h = reading, dh = 1.0;  // gap and d gap / d reading
+            if (setup.reading != Reading::Gap) {
+              const double R = setup.reading == Reading::Diameter ? reading / 2 : reading;
+              h = s.volume / (pi * R * R);
+              dh = 2.0 * h / R * (setup.reading == Reading::Diameter ? 0.5 : 1.0);
+            }
+            tau = closed_form::squeeze_yield_stress_from_gap(s.force, s.volume, h);
+            dlog_tau = 2.5 / h * dh;
+            return true;
+          },
+          [&](const SlumpRig& rig) {
+            if (!(reading > 0) || reading >= rig.height) {
+              out.status = FitStatus::NotIdentifiable;
+              out.reason = reading > 0 ? "the sample collapsed completely: a slump test gives no yield stress then"
+                                       : "no slump: the yield stress is only bounded from below (tau_y >= rho g H0 / 2)";
+              return false;
+            }
+            auto slump_at = [&](double log_tau) {
+              return predict_slump(rig, Material{std::exp(log_tau), 1.0, 1.0}, setup.density, setup.gravity).slump -
+                     reading;
+            };
+            // The slump falls monotonically from H0 to 0 as tau_y rises to rho g H0 / 2: bracket in log tau.
+            const double top = std::log(0.5 * rho_g * rig.height);
+            boost::math::tools::eps_tolerance<double> tol(40);
+            std::uintmax_t iterations = 100;
+            const auto [a, b] = boost::math::tools::toms748_solve(slump_at, top - 25.0, top, tol, iterations);
+            const double x = 0.5 * (a + b);
+            tau = std::exp(x);
+            const double h = 1e-4;
+            dlog_tau = std::abs(1.0 / ((slump_at(x + h) - slump_at(x - h)) / (2 * h)));
+            return true;
+          }},
+      setup.rig);
+  if (!estimated) return out;
   // Surface tension shortens the final spread of a thin layer (Roussel, Stefani & Leroy 2005, Cem. Concr. Res.
   // 35): warn when the plastic profile's deepest point is under three capillary lengths sqrt(gamma / (rho g)),
   // with gamma = 0.05 N/m assumed (water 0.072 N/m, from memory; sauces and creams lower).
-  double deepest = 0.0;
-  if (const auto* c = std::get_if<ChannelRig>(&setup.rig))
-    deepest = std::sqrt(2.0 * tau * (c->reservoir_length + reading) / rho_g);
-  else if (std::holds_alternative<PlateRig>(setup.rig))
-    deepest = std::sqrt(2.0 * tau * (setup.reading == Reading::Diameter ? reading / 2 : reading) / rho_g);
+  // Only the spreading layers (channel, plate) are thin enough for this; a squeeze disc and a slump are not checked.
+  const double deepest = std::visit(
+      overloaded{[&](const ChannelRig& c) { return std::sqrt(2.0 * tau * (c.reservoir_length + reading) / rho_g); },
+                 [&](const PlateRig&) {
+                   return std::sqrt(2.0 * tau * (setup.reading == Reading::Diameter ? reading / 2 : reading) / rho_g);
+                 },
+                 [](const SqueezeRig&) { return 0.0; }, [](const SlumpRig&) { return 0.0; }},
+      setup.rig);
   const double capillary_length = std::sqrt(0.05 / rho_g);
   if (deepest > 0 && deepest < 3.0 * capillary_length)
     out.warnings.push_back(fmt::format(

@@ -51,12 +51,7 @@ double aicc(double ssr, int n, int k) {
 
 namespace {
 
-std::string plain_name(const std::string& name) {
-  if (name == "yield_stress") return "yield stress";
-  if (name == "flow_index") return "flow index";
-  if (name == "time_origin") return "release time";
-  return name;
-}
+std::string plain_name(const std::string& name) { return parameter_plain_name(name); }
 
 // Stage 1: DIRECT-L on the surrogate over the box of the material parameters; release times are held at zero
 // (the clock is started at the release; clamped into their range), the least surprising guess, and left to the polish:
@@ -186,7 +181,8 @@ Profiles profile_material(const FitProblem& problem, const LmResult& best, doubl
 bool arrested_yield_stress(const std::vector<FitSeries>& series, const FitProblem& problem, FitResult& out) {
   if (series.size() != 1) return false;
   const FitSeries& s = series.front();
-  if (!std::holds_alternative<ChannelRig>(s.setup.rig) && !std::holds_alternative<PlateRig>(s.setup.rig)) return false;
+  const std::optional<double> exponent = arrest_extent_exponent(s.setup.rig);
+  if (!exponent) return false;
   const std::vector<double>& v = problem.fitted_values()[0];
   if (v.size() < 3) return false;
   double mean = 0;
@@ -206,8 +202,7 @@ bool arrested_yield_stress(const std::vector<FitSeries>& series, const FitProble
   // The plastic-limit relation holds the thin-film model's arrested extent to within 1% where the whole sample
   // yields (tests/models/test_thin_film.cpp); the yield stress goes as the extent to the power -5 on a plate and
   // -3 on a channel, so that 1% (taken as a 95% bound) is added to the reading's own uncertainty in log space.
-  const double exponent = std::holds_alternative<PlateRig>(s.setup.rig) ? 5.0 : 3.0;
-  const double model_sd = exponent * 0.01 / 1.959964;
+  const double model_sd = *exponent * 0.01 / 1.959964;
   ParameterEstimate tau = arrested.parameters.front();
   const double reading_sd = std::log(tau.upper / tau.lower) / (2.0 * 1.959964);
   const double half = 1.959964 * std::sqrt(reading_sd * reading_sd + model_sd * model_sd);

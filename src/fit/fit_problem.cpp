@@ -49,7 +49,7 @@ FitProblem::FitProblem(const std::vector<FitSeries>& series, Law law, const FitO
     sigma_.push_back(s.sigma.value_or(nominal_sigma));
     if (!s.sigma) sigma_stated_ = false;
     // A release time needs a curve to be identified: at least three points on a rig that evolves in time.
-    const bool timed = !std::holds_alternative<SlumpRig>(s.setup.rig);
+    const bool timed = rig_is_timed(s.setup.rig);
     if (options.fit_time_origin && timed && t.size() >= 3) {
       origin_index_.push_back(int(names_.size()));
       const double first = t.front();

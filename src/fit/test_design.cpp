@@ -15,9 +15,7 @@ DesignEstimate expected_intervals(const TestSetup& setup, Law law, const Materia
   DesignEstimate out;
   const bool has_tau = law == Law::Bingham || law == Law::HerschelBulkley;
   const bool has_n = law == Law::PowerLaw || law == Law::HerschelBulkley;
-  if (has_tau) out.names.push_back("yield_stress");
-  out.names.push_back(has_n ? "consistency" : "viscosity");
-  if (has_n) out.names.push_back("flow_index");
+  out.names = law_parameter_names(law);  // yield_stress, then consistency or viscosity, then flow_index
   const int pm = int(out.names.size());
   const int p = pm + (fit_time_origin ? 1 : 0);
   auto readings = [&](const Eigen::VectorXd& theta, std::vector<double>& r) {

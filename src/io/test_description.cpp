@@ -38,11 +38,19 @@ using Names = std::vector<std::string_view>;
 
 const Names kTables{"sample", "rig", "readings", "fit", "spec", "capture"};
 const Names kSampleKeys{"id", "product", "density", "temperature", "site", "tested"};
-const Names kRigKinds{"channel", "plate", "squeeze", "slump"};
+const Names kRigKinds(rig_kind_names().begin(), rig_kind_names().end());
 const Names kChannelKeys{"kind", "width", "reservoir_length", "volume", "fill_height", "side_wall_drag"};
 const Names kPlateKeys{"kind", "ring_radius", "volume", "fill_height"};
 const Names kSqueezeKeys{"kind", "volume", "load", "force", "initial_gap"};
 const Names kSlumpKeys{"kind", "radius", "height"};
+/// The [rig] keys of each rig kind.
+const Names& rig_keys(const Rig& rig) {
+  return std::visit(overloaded{[](const ChannelRig&) -> const Names& { return kChannelKeys; },
+                               [](const PlateRig&) -> const Names& { return kPlateKeys; },
+                               [](const SqueezeRig&) -> const Names& { return kSqueezeKeys; },
+                               [](const SlumpRig&) -> const Names& { return kSlumpKeys; }},
+                    rig);
+}
 const Names kReadingsKeys{"file", "files", "final", "reading", "resolution"};
 const Names kFitKeys{"model", "time_origin", "ignore_before"};
 const Names kModelNames{"newtonian", "power-law", "bingham", "herschel-bulkley", "auto"};
@@ -352,13 +360,11 @@ Rig DescriptionReader::read_rig(const toml::table& root) const {
   const std::string kind =
       name_in(required(*rig, "rig", "kind", "channel, plate, squeeze or slump"), "rig.kind", kRigKinds, "rig kind");
 
-  const Names* own = kind == "channel" ? &kChannelKeys
-                     : kind == "plate" ? &kPlateKeys
-                     : kind == "squeeze" ? &kSqueezeKeys
-                                         : &kSlumpKeys;
+  Rig out = *rig_of_kind(kind);
+  const Names* own = &rig_keys(out);
   Names others;
-  for (const Names* keys : {&kChannelKeys, &kPlateKeys, &kSqueezeKeys, &kSlumpKeys})
-    for (std::string_view k : *keys)
+  for (std::string_view other_kind : rig_kind_names())
+    for (std::string_view k : rig_keys(*rig_of_kind(other_kind)))
       if (std::find(own->begin(), own->end(), k) == own->end()) others.push_back(k);
   check_keys(*rig, "rig", *own, others, kind);
 
@@ -390,49 +396,48 @@ Rig DescriptionReader::read_rig(const toml::table& root) const {
              fill_meaning + ")");
   };
 
-  if (kind == "channel") {
-    ChannelRig c;
-    c.width = length("width", "the channel's width", plausible::channel_width);
-    c.reservoir_length =
-        length("reservoir_length", "the sample block's length behind the gate", plausible::reservoir_length);
-    c.volume = volume_or_fill(c.width * c.reservoir_length, "the sample's depth behind the gate");
-    if (const toml::node* drag = rig->get("side_wall_drag")) c.side_wall_drag = boolean(*drag, "rig.side_wall_drag");
-    return c;
-  }
-  if (kind == "plate") {
-    PlateRig p;
-    p.ring_radius = length("ring_radius", "the ring's inner radius", plausible::ring_radius);
-    p.volume = volume_or_fill(std::numbers::pi * p.ring_radius * p.ring_radius, "the sample's depth in the ring");
-    return p;
-  }
-  if (kind == "squeeze") {
-    SqueezeRig s;
-    const toml::node& volume = required(*rig, "rig", "volume", expected_quantity(Dimension::Volume));
-    s.volume = quantity(volume, "rig.volume", Dimension::Volume, Range::Positive);
-    plausible(s.volume, volume, "rig.volume", plausible::sample_volume);
-    const toml::node* load = rig->get("load");
-    const toml::node* force = rig->get("force");
-    if (load && force) fail(line_of(*force), "rig.force", "give load (a mass) or force, not both");
-    if (load) {
-      s.force = standard_gravity * quantity(*load, "rig.load", Dimension::Mass, Range::Positive);
-      plausible(s.force, *load, "rig.load", plausible::squeeze_force);
-    } else if (force) {
-      s.force = quantity(*force, "rig.force", Dimension::Force, Range::Positive);
-      plausible(s.force, *force, "rig.force", plausible::squeeze_force);
-    } else
-      fail(line_of(*rig), "rig.load",
-           "missing required key in [rig] (expected load, the mass on the sample including the top plate, such "
-           "as \"250 g\", or force, such as \"2.5 N\")");
-    if (const toml::node* gap = rig->get("initial_gap")) {
-      s.initial_gap = quantity(*gap, "rig.initial_gap", Dimension::Length, Range::Positive);
-      plausible(s.initial_gap, *gap, "rig.initial_gap", plausible::initial_gap);
-    }
-    return s;
-  }
-  SlumpRig s;
-  s.radius = length("radius", "the cylinder's radius", plausible::cylinder_radius);
-  s.height = length("height", "the cylinder's height", plausible::cylinder_height);
-  return s;
+  std::visit(overloaded{[&](ChannelRig& c) {
+                          c.width = length("width", "the channel's width", plausible::channel_width);
+                          c.reservoir_length = length("reservoir_length", "the sample block's length behind the gate",
+                                                      plausible::reservoir_length);
+                          c.volume = volume_or_fill(c.width * c.reservoir_length, "the sample's depth behind the gate");
+                          if (const toml::node* drag = rig->get("side_wall_drag"))
+                            c.side_wall_drag = boolean(*drag, "rig.side_wall_drag");
+                        },
+                        [&](PlateRig& p) {
+                          p.ring_radius = length("ring_radius", "the ring's inner radius", plausible::ring_radius);
+                          p.volume = volume_or_fill(std::numbers::pi * p.ring_radius * p.ring_radius,
+                                                    "the sample's depth in the ring");
+                        },
+                        [&](SqueezeRig& s) {
+                          const toml::node& volume =
+                              required(*rig, "rig", "volume", expected_quantity(Dimension::Volume));
+                          s.volume = quantity(volume, "rig.volume", Dimension::Volume, Range::Positive);
+                          plausible(s.volume, volume, "rig.volume", plausible::sample_volume);
+                          const toml::node* load = rig->get("load");
+                          const toml::node* force = rig->get("force");
+                          if (load && force) fail(line_of(*force), "rig.force", "give load (a mass) or force, not both");
+                          if (load) {
+                            s.force = standard_gravity * quantity(*load, "rig.load", Dimension::Mass, Range::Positive);
+                            plausible(s.force, *load, "rig.load", plausible::squeeze_force);
+                          } else if (force) {
+                            s.force = quantity(*force, "rig.force", Dimension::Force, Range::Positive);
+                            plausible(s.force, *force, "rig.force", plausible::squeeze_force);
+                          } else
+                            fail(line_of(*rig), "rig.load",
+                                 "missing required key in [rig] (expected load, the mass on the sample including the "
+                                 "top plate, such as \"250 g\", or force, such as \"2.5 N\")");
+                          if (const toml::node* gap = rig->get("initial_gap")) {
+                            s.initial_gap = quantity(*gap, "rig.initial_gap", Dimension::Length, Range::Positive);
+                            plausible(s.initial_gap, *gap, "rig.initial_gap", plausible::initial_gap);
+                          }
+                        },
+                        [&](SlumpRig& s) {
+                          s.radius = length("radius", "the cylinder's radius", plausible::cylinder_radius);
+                          s.height = length("height", "the cylinder's height", plausible::cylinder_height);
+                        }},
+             out);
+  return out;
 }
 
 void DescriptionReader::read_readings(const toml::table& root, TestDescription& out) const {
@@ -441,7 +446,7 @@ void DescriptionReader::read_readings(const toml::table& root, TestDescription& 
   auto expected_readings = [&] {
     Names names;
     for (std::string_view n : reading_names())
-      if (rig_has_reading(rig, *reading_from_name(n))) names.push_back(n);
+      if (rig_accepts_reading(rig, *reading_from_name(n))) names.push_back(n);
     return join_names(names);
   };
 
@@ -464,7 +469,7 @@ void DescriptionReader::read_readings(const toml::table& root, TestDescription& 
   const toml::node* reading_node = readings->get("reading");
   if (reading_node) {
     named = reading_from_name(name_in(*reading_node, "readings.reading", reading_names(), "reading"));
-    if (!rig_has_reading(rig, *named))
+    if (!rig_accepts_reading(rig, *named))
       fail(line_of(*reading_node), "readings.reading",
            "a " + rig_kind + " rig has no " + std::string(reading_names()[static_cast<std::size_t>(*named)]) +
                " reading (expected " + expected_readings() + ")");
@@ -510,7 +515,7 @@ void DescriptionReader::read_readings(const toml::table& root, TestDescription& 
   } else {
     return;  // no readings: enough to simulate
   }
-  if (std::holds_alternative<SlumpRig>(rig))
+  if (!rig_is_timed(rig))
     fail(line_of(*listed.front().second), field,
          "a slump rig has only a final reading (expected final = \"...\" instead of a readings file)");
 
@@ -532,7 +537,7 @@ void DescriptionReader::read_readings(const toml::table& root, TestDescription& 
     ReadingSeries series = read_readings_csv(resolved);
     warnings_.insert(warnings_.end(), series.warnings.begin(), series.warnings.end());
     const std::string kind_name(reading_names()[static_cast<std::size_t>(series.kind)]);
-    if (!rig_has_reading(rig, series.kind))
+    if (!rig_accepts_reading(rig, series.kind))
       fail(line_of(*node), field,
            "'" + written + "' has a " + kind_name + " column, which a " + rig_kind + " rig does not read (expected " +
                expected_readings() + ")");
@@ -557,23 +562,31 @@ void DescriptionReader::check_final_reading(double value, const toml::node& node
                                             Reading reading) const {
   const std::string shown = quote_for_message(as_written(node));
   auto refuse = [&](const std::string& why) { fail(line_of(node), "readings.final", shown + " " + why); };
-  if (std::holds_alternative<ChannelRig>(rig) && !(value > 0))
-    refuse("is no flow past the gate: the yield stress is then only bounded from below (expected a front > 0)");
-  if (const auto* p = std::get_if<PlateRig>(&rig)) {
-    const double start = reading == Reading::Diameter ? 2.0 * p->ring_radius : p->ring_radius;
-    if (!(value > start))
-      refuse(fmt::format("is not beyond the ring's {} {:.4g} m: the sample starts there and only spreads (expected "
-                         "a {} > {:.4g} m)",
-                         reading == Reading::Diameter ? "diameter" : "radius", start,
-                         reading == Reading::Diameter ? "diameter" : "radius", start));
-  }
-  if (const auto* q = std::get_if<SqueezeRig>(&rig)) {
-    if (reading == Reading::Gap && !(value > 0)) refuse("is a closed gap (expected a gap > 0)");
-    if (reading != Reading::Gap && !(value > 0)) refuse("is no disc (expected a radius or diameter > 0)");
-    (void)q;
-  }
-  if (std::holds_alternative<SlumpRig>(rig) && !(value > 0))
-    refuse("is no slump: the yield stress is then only bounded from below (expected a slump > 0)");
+  std::visit(
+      overloaded{
+          [&](const ChannelRig&) {
+            if (!(value > 0))
+              refuse("is no flow past the gate: the yield stress is then only bounded from below (expected a front > "
+                     "0)");
+          },
+          [&](const PlateRig& p) {
+            const double start = reading == Reading::Diameter ? 2.0 * p.ring_radius : p.ring_radius;
+            if (!(value > start))
+              refuse(fmt::format(
+                  "is not beyond the ring's {} {:.4g} m: the sample starts there and only spreads (expected "
+                  "a {} > {:.4g} m)",
+                  reading == Reading::Diameter ? "diameter" : "radius", start,
+                  reading == Reading::Diameter ? "diameter" : "radius", start));
+          },
+          [&](const SqueezeRig&) {
+            if (reading == Reading::Gap && !(value > 0)) refuse("is a closed gap (expected a gap > 0)");
+            if (reading != Reading::Gap && !(value > 0)) refuse("is no disc (expected a radius or diameter > 0)");
+          },
+          [&](const SlumpRig&) {
+            if (!(value > 0))
+              refuse("is no slump: the yield stress is then only bounded from below (expected a slump > 0)");
+          }},
+      rig);
 }
 
 void DescriptionReader::read_fit(const toml::table& root, TestDescription& out) const {
@@ -605,22 +618,28 @@ void DescriptionReader::check_possible(const TestDescription& out) const {
   double largest = 0.0;              // largest reading the rig allows, in the reading's own terms
   std::string why;
   const Reading kind = out.series.empty() ? out.setup.reading : out.series.front().kind;
-  if (const auto* c = std::get_if<ChannelRig>(&out.setup.rig)) {
-    largest = c->volume / (c->width * thinnest) - c->reservoir_length;
-    why = "the layer would be thinner than 0.05 mm";
-  } else if (const auto* p = std::get_if<PlateRig>(&out.setup.rig)) {
-    largest = std::sqrt(p->volume / (std::numbers::pi * thinnest)) * (kind == Reading::Diameter ? 2.0 : 1.0);
-    why = "the layer would be thinner than 0.05 mm";
-  } else if (const auto* q = std::get_if<SqueezeRig>(&out.setup.rig)) {
-    const double radius = std::sqrt(q->volume / (std::numbers::pi * thinnest));
-    largest = kind == Reading::Gap ? std::max(q->initial_gap, std::cbrt(4.0 * q->volume / std::numbers::pi))
-                                   : radius * (kind == Reading::Diameter ? 2.0 : 1.0);
-    why = kind == Reading::Gap ? "the gap would exceed the sample's starting height"
-                               : "the disc would be thinner than 0.05 mm";
-  } else {
-    largest = std::get<SlumpRig>(out.setup.rig).height;
-    why = "a slump cannot exceed the cylinder height";
-  }
+  std::visit(overloaded{[&](const ChannelRig& c) {
+                          largest = c.volume / (c.width * thinnest) - c.reservoir_length;
+                          why = "the layer would be thinner than 0.05 mm";
+                        },
+                        [&](const PlateRig& p) {
+                          largest = std::sqrt(p.volume / (std::numbers::pi * thinnest)) *
+                                    (kind == Reading::Diameter ? 2.0 : 1.0);
+                          why = "the layer would be thinner than 0.05 mm";
+                        },
+                        [&](const SqueezeRig& q) {
+                          const double radius = std::sqrt(q.volume / (std::numbers::pi * thinnest));
+                          largest = kind == Reading::Gap
+                                        ? std::max(q.initial_gap, std::cbrt(4.0 * q.volume / std::numbers::pi))
+                                        : radius * (kind == Reading::Diameter ? 2.0 : 1.0);
+                          why = kind == Reading::Gap ? "the gap would exceed the sample's starting height"
+                                                     : "the disc would be thinner than 0.05 mm";
+                        },
+                        [&](const SlumpRig& s) {
+                          largest = s.height;
+                          why = "a slump cannot exceed the cylinder height";
+                        }},
+             out.setup.rig);
   for (const ReadingSeries& s : out.series)
     for (std::size_t i = 0; i < s.values.size(); ++i)
       if (s.values[i] > largest)
@@ -863,28 +882,6 @@ TestDescription DescriptionReader::read() {
 
 std::map<std::string, ProductSpec> load_spec_catalogue(const std::filesystem::path& file) {
   return DescriptionReader(file).read_catalogue();
-}
-
-std::string_view rig_kind_name(const Rig& rig) {
-  if (std::holds_alternative<ChannelRig>(rig)) return "channel";
-  if (std::holds_alternative<PlateRig>(rig)) return "plate";
-  if (std::holds_alternative<SqueezeRig>(rig)) return "squeeze";
-  return "slump";
-}
-
-Reading default_reading(const Rig& rig) {
-  if (std::holds_alternative<ChannelRig>(rig)) return Reading::Front;
-  if (std::holds_alternative<PlateRig>(rig)) return Reading::Radius;
-  if (std::holds_alternative<SqueezeRig>(rig)) return Reading::Gap;
-  return Reading::Slump;
-}
-
-bool rig_has_reading(const Rig& rig, Reading reading) {
-  if (std::holds_alternative<ChannelRig>(rig)) return reading == Reading::Front;
-  if (std::holds_alternative<PlateRig>(rig)) return reading == Reading::Radius || reading == Reading::Diameter;
-  if (std::holds_alternative<SqueezeRig>(rig))
-    return reading == Reading::Gap || reading == Reading::Radius || reading == Reading::Diameter;
-  return reading == Reading::Slump;
 }
 
 TestDescription load_test_description(const std::filesystem::path& file, const LoadOptions& options) {

@@ -133,12 +133,9 @@ struct ProductSpec {
 /// activation_energy and yield_stress_activation_energy. Throws InputError with file, line and field.
 std::map<std::string, ProductSpec> load_spec_catalogue(const std::filesystem::path& file);
 
-/// Kind name as in [rig] kind: channel | plate | squeeze | slump.
-std::string_view rig_kind_name(const Rig& rig);
-/// The reading a rig gives when none is named: channel front, plate radius, squeeze gap, slump slump.
-Reading default_reading(const Rig& rig);
-/// Whether a rig can give that reading: channel front; plate radius | diameter; squeeze gap | radius |
-/// diameter; slump slump.
-bool rig_has_reading(const Rig& rig, Reading reading);
+// The rig's kind name and default reading are the rig's own (models/rig.hpp); named here too for the callers that
+// reach them through io.
+using ::spreadfit::default_reading;
+using ::spreadfit::rig_kind_name;
 
 }  // namespace spreadfit::io

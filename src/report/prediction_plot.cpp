@@ -39,19 +39,21 @@ std::string length(double metres) {
 // The rig in the words of its test description (lengths in cm or mm, volumes in mL).
 std::string rig_text(const io::TestDescription& rig) {
   const std::string where = std::filesystem::path(rig.path).filename().string();
-  std::string geometry = std::visit(
-      [](const auto& r) -> std::string {
-        using T = std::decay_t<decltype(r)>;
-        if constexpr (std::is_same_v<T, ChannelRig>)
-          return fmt::format("channel {} wide, reservoir {} long, {:.4g} mL{}", length(r.width),
-                             length(r.reservoir_length), r.volume * 1e6, r.side_wall_drag ? "" : ", no side-wall drag");
-        else if constexpr (std::is_same_v<T, PlateRig>)
-          return fmt::format("plate, ring radius {}, {:.4g} mL", length(r.ring_radius), r.volume * 1e6);
-        else if constexpr (std::is_same_v<T, SqueezeRig>)
-          return fmt::format("squeeze, {:.4g} mL under {:.4g} N", r.volume * 1e6, r.force);
-        else
-          return fmt::format("slump cylinder, radius {}, height {}", length(r.radius), length(r.height));
-      },
+  const std::string geometry = std::visit(
+      overloaded{[](const ChannelRig& r) {
+                   return fmt::format("channel {} wide, reservoir {} long, {:.4g} mL{}", length(r.width),
+                                      length(r.reservoir_length), r.volume * 1e6,
+                                      r.side_wall_drag ? "" : ", no side-wall drag");
+                 },
+                 [](const PlateRig& r) {
+                   return fmt::format("plate, ring radius {}, {:.4g} mL", length(r.ring_radius), r.volume * 1e6);
+                 },
+                 [](const SqueezeRig& r) {
+                   return fmt::format("squeeze, {:.4g} mL under {:.4g} N", r.volume * 1e6, r.force);
+                 },
+                 [](const SlumpRig& r) {
+                   return fmt::format("slump cylinder, radius {}, height {}", length(r.radius), length(r.height));
+                 }},
       rig.setup.rig);
   return fmt::format("Rig: {} ({}); density {:.4g} kg/m\u00b3", geometry, where, rig.setup.density);
 }

@@ -10,26 +10,25 @@ nlohmann::json rig_json(const io::TestDescription& t) {
   nlohmann::json j;
   j["kind"] = std::string(io::rig_kind_name(t.setup.rig));
   j["reading"] = std::string(reading_name(t.setup.reading));
-  std::visit(
-      [&](const auto& rig) {
-        using R = std::decay_t<decltype(rig)>;
-        if constexpr (std::is_same_v<R, ChannelRig>) {
-          j["width_m"] = rig.width;
-          j["reservoir_length_m"] = rig.reservoir_length;
-          j["volume_m3"] = rig.volume;
-          j["side_wall_drag"] = rig.side_wall_drag;
-        } else if constexpr (std::is_same_v<R, PlateRig>) {
-          j["ring_radius_m"] = rig.ring_radius;
-          j["volume_m3"] = rig.volume;
-        } else if constexpr (std::is_same_v<R, SqueezeRig>) {
-          j["volume_m3"] = rig.volume;
-          j["force_N"] = rig.force;
-          if (rig.initial_gap > 0) j["initial_gap_m"] = rig.initial_gap;
-        } else {
-          j["radius_m"] = rig.radius;
-          j["height_m"] = rig.height;
-        }
-      },
+  std::visit(overloaded{[&](const ChannelRig& rig) {
+                          j["width_m"] = rig.width;
+                          j["reservoir_length_m"] = rig.reservoir_length;
+                          j["volume_m3"] = rig.volume;
+                          j["side_wall_drag"] = rig.side_wall_drag;
+                        },
+                        [&](const PlateRig& rig) {
+                          j["ring_radius_m"] = rig.ring_radius;
+                          j["volume_m3"] = rig.volume;
+                        },
+                        [&](const SqueezeRig& rig) {
+                          j["volume_m3"] = rig.volume;
+                          j["force_N"] = rig.force;
+                          if (rig.initial_gap > 0) j["initial_gap_m"] = rig.initial_gap;
+                        },
+                        [&](const SlumpRig& rig) {
+                          j["radius_m"] = rig.radius;
+                          j["height_m"] = rig.height;
+                        }},
       t.setup.rig);
   j["source"] = t.path.string();
   return j;

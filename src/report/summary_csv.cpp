@@ -4,6 +4,8 @@
 
 #include <cmath>
 
+#include "src/fit/parameter_names.hpp"
+
 namespace spreadfit {
 
 namespace {
@@ -19,17 +21,13 @@ std::string cell(const std::string& text) {
 // spreadsheet as if it were a result.
 std::string number(double v) { return std::isfinite(v) ? fmt::format("{}", v) : std::string(); }
 
-struct Column {
-  const char* name;
-  const char* unit;
-};
-constexpr Column parameter_columns[] = {
-    {"yield_stress", "Pa"}, {"viscosity", "Pa.s"}, {"consistency", "Pa.s^n"}, {"flow_index", "-"}};
+// One column triple per material parameter, in the table's order (src/fit/parameter_names.hpp).
+const auto& parameter_columns = material_parameters();
 }  // namespace
 
 std::string summary_csv(const std::vector<FitOutcome>& outcomes) {
   std::string s = "sample,product,rig,model,status";
-  for (const Column& c : parameter_columns)
+  for (const MaterialParameter& c : parameter_columns)
     s += fmt::format(",{0} [{1}],{0} low [{1}],{0} high [{1}]", c.name, c.unit);
   s += ",rmse [mm],points,verdict,warnings\n";
   for (const FitOutcome& o : outcomes) {
@@ -40,7 +38,7 @@ std::string summary_csv(const std::vector<FitOutcome>& outcomes) {
     s += cell(t.sample_id) + "," + cell(t.product) + "," + rigs + "," +
          (r ? std::string(law_name(r->law)) : std::string()) + "," +
          (r ? std::string("ok") : std::string(o.candidates.empty() ? "failed" : fit_status_name(o.candidates.front().status)));
-    for (const Column& c : parameter_columns) {
+    for (const MaterialParameter& c : parameter_columns) {
       const ParameterEstimate* found = nullptr;
       if (r)
         for (const auto& p : r->parameters)
