@@ -149,7 +149,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
       const Eigen::VectorXd x_new = (out.x + dx).cwiseMax(lower).cwiseMin(upper);
       const double step = (x_new - out.x).cwiseAbs().maxCoeff();
       if (!(step > o.step_tolerance)) {
-        if (!fresh) refresh();
+        if (!fresh && o.final_jacobian) refresh();
         out.converged = true;
         out.status = LmStatus::StepTolerance;
         out.message = "parameter change below step_tolerance";
@@ -182,7 +182,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
             out.message = stalls >= 3 ? "cost stationary within the residual variance (stall_tolerance)"
                                       : "relative cost decrease below cost_tolerance";
             // Keep the Jacobian at the final point for the covariance.
-            finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
+            if (o.final_jacobian) finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
             return out;
           }
           continue;
@@ -209,7 +209,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
   }
   out.status = LmStatus::MaxIterations;
   out.message = "stopped after max_iterations (" + std::to_string(o.max_iterations) + ")";
-  finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
+  if (o.final_jacobian) finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
   return out;
 }
 

@@ -20,6 +20,9 @@ struct LmOptions {
   int broyden_refresh = 4;       ///< finite-difference Jacobian every this many iterations, Broyden updates
                                  ///< between (1: finite differences every iteration)
   Eigen::VectorXd fd_step;       ///< finite-difference step per parameter (required)
+  bool final_jacobian = true;    ///< leave a finite-difference Jacobian at the returned point (for a covariance);
+                                 ///< false saves up to size() residual calls where only x and the cost are used
+                                 ///< (profile refits). The search path and x are the same either way.
 };
 
 /// Why the search ended; one value per return path of levenberg_marquardt. The first five are convergence
@@ -42,7 +45,8 @@ const char* lm_status_name(LmStatus status);
 struct LmResult {
   Eigen::VectorXd x;        ///< best parameters
   Eigen::VectorXd r;        ///< residuals at x
-  Eigen::MatrixXd jacobian; ///< at x (columns of parameters resting on a bound included)
+  Eigen::MatrixXd jacobian; ///< at x (columns of parameters resting on a bound included); with
+                            ///< final_jacobian false, possibly a Broyden update or one from an earlier point
   double cost = 0;          ///< 0.5 |r|^2
   int iterations = 0;
   bool converged = false;

@@ -47,6 +47,7 @@ ProfileLikelihood::Refit ProfileLikelihood::refit(int j, double value, const Eig
   o.max_iterations = options_.refit_iterations;
   o.initial_damping = 1e-6;
   o.fd_step = h;
+  o.final_jacobian = false;  // a refit gives a conditional optimum and its cost, never a covariance
   const LmResult sub = p > 1 ? levenberg_marquardt(g, warm.cwiseMax(lo).cwiseMin(hi), lo, hi, o) : [&] {
     LmResult only;
     only.x = Eigen::VectorXd(0);
