@@ -276,14 +276,17 @@ std::string csv_cell(const std::string& text) {
 /// Shortest text that reads back to the same double; empty for NaN (no number).
 std::string csv_number(double x) { return std::isnan(x) ? std::string() : fmt::format("{}", x); }
 
-std::string history_csv(const std::vector<StoredResult>& rows) {
+/// One row per result, products in report order and each product's batches in batch order, as the tables list them.
+std::string history_csv(const std::vector<StoredResult>& stored) {
   std::vector<const StoredResult*> all;
-  for (const auto& r : rows) all.push_back(&r);
+  for (const std::string& code : product_order(stored))
+    for (const StoredResult* r : of_product(stored, code)) all.push_back(r);
   const std::vector<Column> columns = parameter_columns(all);
   std::string s = "sample,product,recorded_at,rig,model,verdict";
   for (const Column& c : columns) s += fmt::format(",{0} [{1}],{0} low [{1}],{0} high [{1}]", c.name, c.unit);
   s += ",software_version,input_hash,site,tested\n";
-  for (const auto& r : rows) {
+  for (const StoredResult* row : all) {
+    const StoredResult& r = *row;
     s += fmt::format("{},{},{},{},{},{}", csv_cell(r.sample_id), csv_cell(r.product), csv_cell(r.recorded_at),
                      csv_cell(r.rig), csv_cell(r.law), csv_cell(r.verdict));
     for (const Column& c : columns) {

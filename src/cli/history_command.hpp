@@ -10,7 +10,7 @@
 // limits (control_chart.hpp) and, in words, every point beyond the limits and every run of `run_length` results on
 // one side of the centre line.
 //
-// --csv: CSV on stdout instead of the table, one row per result, all products together in recorded order:
+// --csv: CSV on stdout instead of the table, one row per result, products and batches in the tables' order:
 //   sample,product,recorded_at,rig,model,verdict,P [unit],P low [unit],P high [unit],...,software_version,input_hash,
 //   site,tested
 // with the parameters yield_stress, viscosity, consistency, flow_index (then any others, as first recorded).

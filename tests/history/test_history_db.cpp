@@ -535,3 +535,53 @@ TEST_CASE("reading a history leaves no -wal or -shm file beside it, also when th
   CHECK_FALSE(fs::exists(wal));
   CHECK_FALSE(fs::exists(shm));
 }
+
+TEST_CASE("a product's batches are listed in the order they were tested, not the order they were stored") {
+  // `make -j` stores results in the order the fits finish; `[sample] tested` (README, "history") puts them back in
+  // test order, and a re-run that replaces a result keeps its test-time place whatever its new recording time.
+  // Canonical test times compare as text (src/io/test_time.hpp), as recorded_at does.
+  TempDir dir;
+  const fs::path db = dir.path() / "history.db";
+  StoredResult third = sample_result("HX1-0003", "HX1", 26.0);
+  third.tested = "2026-04-03T09:00";
+  third.recorded_at = "2026-04-03T09:20:00Z";
+  StoredResult first = sample_result("HX1-0001", "HX1", 24.0);
+  first.tested = "2026-04-01T09:00";
+  first.recorded_at = "2026-04-03T09:21:00Z";  // finished after the third batch's fit
+  StoredResult untimed = sample_result("HX1-0002", "HX1", 25.0);  // no test time: placed by its recording time
+  untimed.recorded_at = "2026-04-02T12:00:00Z";
+  REQUIRE(spreadfit::history::record(db, third) == WriteOutcome::Inserted);
+  REQUIRE(spreadfit::history::record(db, first) == WriteOutcome::Inserted);
+  REQUIRE(spreadfit::history::record(db, untimed) == WriteOutcome::Inserted);
+
+  const auto order_of_csv = [&] {
+    std::ostringstream out, err;
+    REQUIRE(spreadfit::cli::run_history_command(
+                spreadfit::cli::HistoryCommandOptions{db, "HX1", "", std::nullopt, true, std::nullopt}, out, err) ==
+            0);
+    std::istringstream lines(out.str());
+    std::string line;
+    std::getline(lines, line);  // header
+    std::vector<std::string> ids;
+    while (std::getline(lines, line)) ids.push_back(line.substr(0, line.find(',')));
+    return ids;
+  };
+  CHECK(order_of_csv() == std::vector<std::string>{"HX1-0001", "HX1-0002", "HX1-0003"});
+
+  StoredResult rerun = first;  // same inputs fitted again a week later: replaces the row, keeps its test time
+  rerun.recorded_at = "2026-04-10T08:00:00Z";
+  rerun.software_version = "test-2";
+  REQUIRE(spreadfit::history::record(db, rerun) == WriteOutcome::Updated);
+  CHECK(order_of_csv() == std::vector<std::string>{"HX1-0001", "HX1-0002", "HX1-0003"});
+
+  // the stored order itself stays the recording order: only the listing sorts
+  const auto stored = spreadfit::history::load(db, "HX1");
+  REQUIRE(stored.size() == 3);
+  CHECK(stored[0].sample_id == "HX1-0003");
+  std::vector<const StoredResult*> rows;
+  for (const auto& r : stored) rows.push_back(&r);
+  const auto ordered = spreadfit::cli::batch_order(rows);
+  CHECK(ordered[0]->sample_id == "HX1-0001");
+  CHECK(ordered[1]->sample_id == "HX1-0002");
+  CHECK(ordered[2]->sample_id == "HX1-0003");
+}
