@@ -16,7 +16,7 @@
 
 #include "models/rig.hpp"
 #include "src/capture/video_reader.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 
 namespace spreadfit::capture {
 

@@ -12,7 +12,7 @@
 #include "src/cli/exit_codes.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 
 namespace spreadfit::cli {
 

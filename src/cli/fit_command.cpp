@@ -19,7 +19,7 @@
 #include "src/history/history_location.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 #include "src/parallel_for.hpp"
 #include "src/qc/verdict.hpp"
 #include "src/report/fit_plot.hpp"

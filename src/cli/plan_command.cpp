@@ -15,9 +15,9 @@
 #include "src/cli/simulate_command.hpp"
 #include "src/fit/design_check.hpp"
 #include "src/cli/progress.hpp"
-#include "src/fit/test_design.hpp"
+#include "src/fit/expected_intervals.hpp"
 #include "src/io/input_error.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 
 namespace spreadfit::cli {
 

@@ -1,7 +1,7 @@
 // `spreadfit plan CANDIDATE.toml... --model NAME [--set PARAM=VALUE...] [--vary PARAM=LOW:HIGH... [--points N]]
 // [--every DT] [--until T] [--check N]`: compares candidate tests (each a test description: rig, fill, reading
 // kind, resolution; its readings' times if it has a readings file, else readings every DT up to T) by the
-// expected 95% interval of each parameter (src/fit/test_design.hpp) and recommends one.
+// expected 95% interval of each parameter (src/fit/expected_intervals.hpp) and recommends one.
 //
 // The guessed material is one point (--set only) or a range (--vary, as for translate: parameter_ranges.hpp),
 // sampled on a grid of N guesses per varied parameter. Each candidate is judged by its worst case over the guesses

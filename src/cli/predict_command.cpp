@@ -11,7 +11,7 @@
 #include "src/fit/stored_fit.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 #include "src/report/prediction_plot.hpp"
 
 namespace spreadfit::cli {

@@ -33,7 +33,7 @@
 
 #include "models/rheology.hpp"
 #include "models/rig.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 #include "src/io/units.hpp"
 
 namespace spreadfit::cli {

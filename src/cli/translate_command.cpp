@@ -13,7 +13,7 @@
 #include "src/fit/parameter_names.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 #include "src/io/units.hpp"
 #include "src/qc/spec_translation.hpp"
 #include "src/report/reading_map_svg.hpp"

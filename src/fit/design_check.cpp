@@ -7,7 +7,7 @@
 #include "src/fit/fit_law.hpp"
 #include "src/fit/parameter_names.hpp"
 #include "src/fit/synthetic_readings.hpp"
-#include "src/fit/test_design.hpp"
+#include "src/fit/expected_intervals.hpp"
 
 namespace spreadfit {
 

@@ -1,4 +1,4 @@
-// Checking a plan against refits: the Fisher-information interval of each parameter (test_design.hpp) is the
+// Checking a plan against refits: the Fisher-information interval of each parameter (expected_intervals.hpp) is the
 // Cramer-Rao bound of the estimates' spread, which maximum-likelihood estimates approach when the parameter is well
 // determined. Simulate noisy reading sets of the planned test for a known material (synthetic_readings.hpp), refit
 // each with fit_law, and compare the planned 95% ratio with the empirical one, exp(2 x 1.96 x sd(ln estimate)).

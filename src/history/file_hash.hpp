@@ -21,7 +21,7 @@
 #include <string_view>
 #include <vector>
 
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 
 namespace spreadfit::history {
 

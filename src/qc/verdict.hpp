@@ -7,7 +7,7 @@
 #include <vector>
 
 #include "src/fit/fit_types.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 
 namespace spreadfit {
 

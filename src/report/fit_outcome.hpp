@@ -7,7 +7,7 @@
 #include <vector>
 
 #include "src/fit/fit_law.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 #include "src/qc/verdict.hpp"
 
 namespace spreadfit {

@@ -18,7 +18,7 @@
 
 #include "src/fit/fit_types.hpp"
 #include "src/fit/prediction_band.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 
 namespace spreadfit {
 

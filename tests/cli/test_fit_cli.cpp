@@ -367,7 +367,7 @@ TEST_CASE("fit: limits at a reference temperature judge Arrhenius-shifted values
 
 TEST_CASE("plan: a larger fill on the plate determines a Bingham viscosity better, and the plan says which") {
   // With the same ring, 150 mL spreads further and longer than 60 mL, so its readings carry more of the viscosity
-  // (expected-interval ranking from the Fisher information, src/fit/test_design.hpp).
+  // (expected-interval ranking from the Fisher information, src/fit/expected_intervals.hpp).
   TempDir dir;
   const std::string head = "[sample]\nid = \"P\"\ndensity = \"1 g/mL\"\n[rig]\nkind = \"plate\"\nring_radius = \"3 cm\"\n";
   const auto small = dir.write("small.toml", head + "volume = \"60 mL\"\n[readings]\nresolution = \"0.5 mm\"\n");

@@ -1,8 +1,8 @@
-// libFuzzer target: the product spec catalogue reader (load_spec_catalogue, src/io/test_description.hpp).
+// libFuzzer target: the product spec catalogue reader (load_spec_catalogue, src/io/description_file.hpp).
 #include <cstdint>
 
 #include "src/io/input_error.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 #include "tests/fuzz/fuzz_support.hpp"
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {

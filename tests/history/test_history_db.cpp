@@ -20,7 +20,7 @@
 #include "src/cli/history_command.hpp"
 #include "src/history/file_hash.hpp"
 #include "src/history/history_db.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 #include "tests/io/io_test_support.hpp"
 
 namespace fs = std::filesystem;

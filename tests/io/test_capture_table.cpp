@@ -4,7 +4,7 @@
 
 #include <string>
 
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 #include "tests/io/io_test_support.hpp"
 
 using spreadfit::io::CaptureSettings;

@@ -1,10 +1,10 @@
-// libFuzzer target: the test description reader (src/io/test_description.hpp). A readings file run.csv lies beside
+// libFuzzer target: the test description reader (src/io/description_file.hpp). A readings file run.csv lies beside
 // the fuzzed TOML, so inputs that name it reach the CSV reader and the checks across files too.
 #include <cstdint>
 #include <string>
 
 #include "src/io/input_error.hpp"
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 #include "tests/fuzz/fuzz_support.hpp"
 
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {

@@ -1,4 +1,4 @@
-#include "src/fit/test_design.hpp"
+#include "src/fit/expected_intervals.hpp"
 
 #include <Eigen/Eigenvalues>
 #include <cmath>

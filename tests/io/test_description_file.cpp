@@ -7,7 +7,7 @@
 #include <string>
 #include <variant>
 
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 #include "tests/io/io_test_support.hpp"
 
 using spreadfit::ChannelRig;

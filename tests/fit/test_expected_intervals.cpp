@@ -1,4 +1,4 @@
-// Planning tests from the Fisher information (src/fit/test_design.hpp): its expected intervals must match the
+// Planning tests from the Fisher information (src/fit/expected_intervals.hpp): its expected intervals must match the
 // spread of real refits (Cramer-Rao; checked by Monte Carlo through src/fit/design_check.hpp), rank designs
 // sensibly for one guess and for a range of guesses, and agree with the plastic limit of the plate test.
 #include <doctest/doctest.h>
@@ -10,7 +10,7 @@
 #include "fit_test_support.hpp"
 #include "src/fit/design_check.hpp"
 #include "src/fit/fit_law.hpp"
-#include "src/fit/test_design.hpp"
+#include "src/fit/expected_intervals.hpp"
 
 using namespace spreadfit;
 using namespace spreadfit::testing;

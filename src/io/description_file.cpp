@@ -1,4 +1,4 @@
-#include "src/io/test_description.hpp"
+#include "src/io/description_file.hpp"
 
 #include <fmt/format.h>
 
@@ -23,7 +23,7 @@ namespace spreadfit::io {
 
 namespace {
 
-// Plausibility limits, see test_description.hpp.
+// Plausibility limits, see description_file.hpp.
 constexpr double kDensityMin = 100.0;    // kg/m^3
 constexpr double kDensityMax = 3000.0;   // kg/m^3
 constexpr double kCelsiusZero = 273.15;  // K (SI Brochure 9th ed., Table 4)
@@ -653,7 +653,7 @@ void DescriptionReader::check_possible(const TestDescription& out) const {
                      *out.final_reading, largest, why));
 }
 
-// [capture]: the video and how to scale it (test_description.hpp). Only `spreadfit capture` asks for it.
+// [capture]: the video and how to scale it (description_file.hpp). Only `spreadfit capture` asks for it.
 void DescriptionReader::read_capture(const toml::table& root, TestDescription& out) const {
   const toml::table* capture = table(root, "capture");
   if (!capture)
