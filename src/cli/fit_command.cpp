@@ -31,11 +31,11 @@ namespace spreadfit::cli {
 
 namespace {
 
-std::vector<FitSeries> series_of(const std::vector<io::TestDescription>& tests) {
-  std::vector<FitSeries> out;
+std::vector<fit::FitSeries> series_of(const std::vector<io::TestDescription>& tests) {
+  std::vector<fit::FitSeries> out;
   for (const auto& t : tests)
     for (const auto& s : t.series) {
-      FitSeries f;
+      fit::FitSeries f;
       f.setup = t.setup;
       f.setup.reading = s.kind;
       f.times = s.times;
@@ -58,8 +58,8 @@ void check_fittable(const std::vector<io::TestDescription>& tests) {
 // The flow index each earlier batch of `product` got from its readings alone (the history's result JSON), for
 // learning a prior. Batches fitted with a prior contribute their readings-alone value, never the prior's.
 // A history file that does not exist yet has no earlier batches (the first `fit --db` creates it).
-std::vector<BatchFlowIndex> earlier_flow_indices(const std::string& db, const std::string& product) {
-  std::vector<BatchFlowIndex> out;
+std::vector<fit::BatchFlowIndex> earlier_flow_indices(const std::string& db, const std::string& product) {
+  std::vector<fit::BatchFlowIndex> out;
   if (product.empty() || (!history::is_server_uri(db) && !std::filesystem::exists(db))) return out;
   std::vector<history::StoredResult> earlier;
   try {
@@ -72,7 +72,7 @@ std::vector<BatchFlowIndex> earlier_flow_indices(const std::string& db, const st
   for (const history::StoredResult& r : earlier) {
     const nlohmann::json j = nlohmann::json::parse(r.result_json, nullptr, false);
     if (j.is_discarded() || !j.is_object()) continue;
-    BatchFlowIndex b;
+    fit::BatchFlowIndex b;
     const nlohmann::json* n = nullptr;
     if (j.contains("fit") && j["fit"].contains("flow_index_without_prior")) {
       n = &j["fit"]["flow_index_without_prior"];
@@ -93,11 +93,11 @@ std::vector<BatchFlowIndex> earlier_flow_indices(const std::string& db, const st
 }
 
 // The prior on the flow index for this material: the spec catalogue's, else one learned from the history (--db).
-std::optional<FlowIndexPrior> prior_for(const io::ProductSpec* product, const std::string& product_code,
+std::optional<fit::FlowIndexPrior> prior_for(const io::ProductSpec* product, const std::string& product_code,
                                         const FitCommandOptions& options, std::string& note) {
   if (!options.use_prior) return std::nullopt;
   if (product && product->flow_index_prior) {
-    FlowIndexPrior p;
+    fit::FlowIndexPrior p;
     p.typical = product->flow_index_prior->first;
     p.spread = product->flow_index_prior->second;
     p.source = "from the spec catalogue";
@@ -105,49 +105,49 @@ std::optional<FlowIndexPrior> prior_for(const io::ProductSpec* product, const st
   }
   if (!options.db) return std::nullopt;
   std::string why_not;
-  std::optional<FlowIndexPrior> learned =
-      learn_flow_index_prior(earlier_flow_indices(options.db->string(), product_code), &why_not);
+  std::optional<fit::FlowIndexPrior> learned =
+      fit::learn_flow_index_prior(earlier_flow_indices(options.db->string(), product_code), &why_not);
   if (!learned && !product_code.empty()) note = "no flow-index prior: " + why_not;
   return learned;
 }
 
 // One material's fit and what it has to say, kept until the materials before it are reported.
 struct MaterialRun {
-  FitOutcome outcome;
+  report::FitOutcome outcome;
   std::string where;                       // the first test file, for messages
   std::string notes;                       // lines for stderr (catalogue notes)
   std::optional<std::string> input_error;  // the message of a bad input found while fitting
 };
 
 // Fits one material: all tests of one sample id.
-FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optional<Law>& forced,
-                        const io::ProductSpec* product, const std::optional<FlowIndexPrior>& prior,
+report::FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optional<Law>& forced,
+                        const io::ProductSpec* product, const std::optional<fit::FlowIndexPrior>& prior,
                         const std::string& prior_absent) {
   const std::vector<io::SpecLimit> none;
   const std::vector<io::SpecLimit>& catalogue_limits = product ? product->limits : none;
-  FitOutcome o;
+  report::FitOutcome o;
   o.tests = std::move(tests);
   const io::TestDescription& first = o.tests.front();
   check_fittable(o.tests);
-  const std::vector<FitSeries> series = series_of(o.tests);
+  const std::vector<fit::FitSeries> series = series_of(o.tests);
   if (series.empty()) {
     // Final-only: one arrested reading per test; the first test's reading gives the estimate.
     const io::TestDescription* t = nullptr;
     for (const auto& d : o.tests)
       if (d.final_reading) t = &d;
-    o.candidates.push_back(fit_final_reading(t->setup, *t->final_reading, t->resolution));
+    o.candidates.push_back(fit::fit_final_reading(t->setup, *t->final_reading, t->resolution));
     o.chosen = o.candidates.front().converged() ? 0 : -1;
     o.choice_explanation = "yield stress from the arrested reading";
   } else {
-    FitOptions options;
+    fit::FitOptions options;
     options.fit_time_origin = first.fit.fit_time_origin;
     options.ignore_before = first.fit.ignore_before;
     const std::optional<Law> law = forced ? forced : first.fit.model;
     if (law) {
-      o.candidates.push_back(fit_law(series, *law, options));
+      o.candidates.push_back(fit::fit_law(series, *law, options));
       o.chosen = o.candidates.front().converged() ? 0 : -1;
     } else {
-      ModelChoice choice = fit_auto(series, options);
+      fit::ModelChoice choice = fit_auto(series, options);
       o.candidates = std::move(choice.candidates);
       o.chosen = choice.chosen;
       o.best_description = choice.best_description;
@@ -155,9 +155,9 @@ FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optio
       o.choice_explanation = choice.explanation;
     }
     if (o.result()) {
-      FitResult& r = o.candidates[std::size_t(o.chosen)];
+      fit::FitResult& r = o.candidates[std::size_t(o.chosen)];
       const bool has_n = r.law == Law::PowerLaw || r.law == Law::HerschelBulkley;
-      if (prior && has_n) r = fit_with_prior(series, r, options, *prior);
+      if (prior && has_n) r = fit::fit_with_prior(series, r, options, *prior);
       else if (has_n && !prior_absent.empty()) r.warnings.push_back(prior_absent);
     }
   }
@@ -170,7 +170,7 @@ FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optio
     if (!overridden) limits.push_back(c);
   }
   // Temperature: limits apply at the product's reference temperature; shift the fitted values there by Arrhenius.
-  FitResult judged = o.result() ? *o.result() : (o.candidates.empty() ? FitResult{} : o.candidates.front());
+  fit::FitResult judged = o.result() ? *o.result() : (o.candidates.empty() ? fit::FitResult{} : o.candidates.front());
   if (product && product->reference_temperature && o.result()) {
     if (!first.temperature) {
       o.candidates[std::size_t(o.chosen)].warnings.push_back(
@@ -178,7 +178,7 @@ FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optio
           "they were applied to the values as measured");
     } else {
       o.reference_temperature = *product->reference_temperature;
-      for (ParameterEstimate& p : judged.parameters) {
+      for (fit::ParameterEstimate& p : judged.parameters) {
         double factor = 1.0;
         if (p.name == "viscosity" || p.name == "consistency")
           factor = arrhenius_factor(product->activation_energy, *first.temperature, *o.reference_temperature);
@@ -192,11 +192,11 @@ FitOutcome fit_material(std::vector<io::TestDescription> tests, const std::optio
         p.upper *= factor;
       }
       o.reference_parameters.clear();
-      for (const ParameterEstimate& p : judged.parameters)
+      for (const fit::ParameterEstimate& p : judged.parameters)
         if (p.name != "time_origin") o.reference_parameters.push_back(p);
     }
   }
-  o.verdict = judge(judged, limits);
+  o.verdict = qc::judge(judged, limits);
   return o;
 }
 
@@ -312,7 +312,7 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
   }
   bool out_of_spec = false, failed = false;
   nlohmann::json all = nlohmann::json::array();
-  std::vector<FitOutcome> outcomes;
+  std::vector<report::FitOutcome> outcomes;
   int plotted = 0;
   // Progress on stderr only for a person watching (a terminal), never in logs or pipes a plant system reads.
   const bool show_progress = ::isatty(STDERR_FILENO) == 1 && order.size() > 1;
@@ -342,10 +342,10 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
                                    product.empty() ? std::string("(none given)") : product, options.specs->string());
       }
       std::string prior_absent;
-      const std::optional<FlowIndexPrior> prior = prior_for(from_catalogue, product, options, prior_absent);
+      const std::optional<fit::FlowIndexPrior> prior = prior_for(from_catalogue, product, options, prior_absent);
       run.outcome = fit_material(std::move(tests), forced, from_catalogue, prior, prior_absent);
       // Unusual input values travel with the result, so the JSON and the table carry them too.
-      FitOutcome& o = run.outcome;
+      report::FitOutcome& o = run.outcome;
       if (o.result())
         for (const io::TestDescription& t : o.tests)
           for (const std::string& w : t.warnings) o.candidates[std::size_t(o.chosen)].warnings.push_back(w);
@@ -371,18 +371,18 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
       continue;
     }
     const std::string& where = run.where;
-    FitOutcome o = std::move(run.outcome);
-    out << summary_table(o) << "\n";
+    report::FitOutcome o = std::move(run.outcome);
+    out << report::summary_table(o) << "\n";
     if (!o.result()) {
       failed = true;
       err << fmt::format("spreadfit: {}: sample {}: the fit failed; no parameters reported\n", where, id);
     }
-    if (o.verdict.status == Verdict::Status::Fail) out_of_spec = true;
-    const nlohmann::json j = result_json(o);
+    if (o.verdict.status == qc::Verdict::Status::Fail) out_of_spec = true;
+    const nlohmann::json j = report::result_json(o);
     all.push_back(j);
     if (options.plot || options.out_dir) {
       // Both files of a material are rendered before either is written: a drawing that fails leaves no JSON.
-      const std::string svg = fit_plot_svg(o, series_of(o.tests));
+      const std::string svg = report::fit_plot_svg(o, series_of(o.tests));
       if (options.out_dir) {
         io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".json"), j.dump(2) + "\n");
         io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".svg"), svg);
@@ -407,7 +407,7 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
     }
     outcomes.push_back(std::move(o));
   }
-  if (options.csv && !outcomes.empty()) io::write_file_atomically(*options.csv, summary_csv(outcomes));
+  if (options.csv && !outcomes.empty()) io::write_file_atomically(*options.csv, report::summary_csv(outcomes));
   if (options.json && !all.empty())
     io::write_file_atomically(*options.json, (all.size() == 1 ? all.front() : all).dump(2) + "\n");
   if (bad_input) return to_int(ExitCode::BadInput);

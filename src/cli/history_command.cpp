@@ -101,7 +101,7 @@ std::string not_chartable(const StoredResult& r, const std::string& name) {
 }
 
 /// The spec limits of `name` in the latest result that was judged on it (result JSON verdict checks).
-void spec_limits(const std::vector<const StoredResult*>& rows, const std::string& name, ControlChart& chart) {
+void spec_limits(const std::vector<const StoredResult*>& rows, const std::string& name, qc::ControlChart& chart) {
   for (auto it = rows.rbegin(); it != rows.rend(); ++it) {
     const nlohmann::json j = nlohmann::json::parse((*it)->result_json, nullptr, false);
     if (j.is_discarded() || !j.contains("verdict") || !j["verdict"].contains("checks")) continue;
@@ -117,10 +117,10 @@ void spec_limits(const std::vector<const StoredResult*>& rows, const std::string
 
 /// The individuals chart of one parameter over `rows` (results with a determined, finite value; the others are
 /// kept as left out, in their place), or nullopt when fewer than two results have one.
-std::optional<ControlChart> chart_of(const std::vector<const StoredResult*>& rows, const Column& column) {
+std::optional<qc::ControlChart> chart_of(const std::vector<const StoredResult*>& rows, const Column& column) {
   std::vector<std::string> labels;
   std::vector<double> values;
-  std::vector<LeftOutBatch> left_out;
+  std::vector<qc::LeftOutBatch> left_out;
   for (const StoredResult* r : rows) {
     const std::string why = not_chartable(*r, column.name);
     if (why.empty()) {
@@ -132,8 +132,8 @@ std::optional<ControlChart> chart_of(const std::vector<const StoredResult*>& row
   }
   if (values.size() < 2) return std::nullopt;
   std::string why;
-  const bool log = log_scale_suits(column.name, values, why);
-  ControlChart chart = individuals_chart(column.name, column.unit, std::move(labels), std::move(values), 8, log);
+  const bool log = qc::log_scale_suits(column.name, values, why);
+  qc::ControlChart chart = qc::individuals_chart(column.name, column.unit, std::move(labels), std::move(values), 8, log);
   chart.scale_reason = why;
   chart.left_out = std::move(left_out);
   spec_limits(rows, column.name, chart);
@@ -148,7 +148,7 @@ std::size_t values_of(const std::vector<const StoredResult*>& rows, const std::s
 }
 
 /// The chart's signals in words: points beyond the limits, runs on one side of the centre line.
-std::vector<std::string> signals(const ControlChart& c) {
+std::vector<std::string> signals(const qc::ControlChart& c) {
   std::vector<std::string> said;
   for (std::size_t i = 0; i < c.values.size(); ++i)
     if (c.beyond_limits[i])
@@ -242,7 +242,7 @@ std::string product_table(const std::string& product, const std::vector<const St
                      "side{}):\n",
                      scope.empty() ? "" : "; " + scope);
     for (const Column& c : columns) {
-      const std::optional<ControlChart> chart = chart_of(rows, c);
+      const std::optional<qc::ControlChart> chart = chart_of(rows, c);
       if (!chart) {
         s += fmt::format("    {} [{}]: {} value{}; a chart needs at least 2\n", c.name, c.unit,
                          values_of(rows, c.name), values_of(rows, c.name) == 1 ? "" : "s");
@@ -258,7 +258,7 @@ std::string product_table(const std::string& product, const std::vector<const St
         for (std::size_t k = 0; k < said.size(); ++k) s += (k ? "; " : "") + said[k];
         s += "\n";
       }
-      for (const LeftOutBatch& b : chart->left_out)
+      for (const qc::LeftOutBatch& b : chart->left_out)
         s += fmt::format("      left out (not in the limits): {}: {}\n", b.label, b.reason);
     }
   }
@@ -302,7 +302,7 @@ std::string history_csv(const std::vector<StoredResult>& stored) {
 }
 
 /// The chart --chart draws; throws InputError("--chart") when none can be drawn.
-ControlChart chosen_chart(const std::string& db, const std::vector<StoredResult>& rows,
+qc::ControlChart chosen_chart(const std::string& db, const std::vector<StoredResult>& rows,
                           const std::string& product) {
   const std::vector<std::string> codes = product_order(rows);
   if (codes.empty())
@@ -381,13 +381,13 @@ int run_history_command(const HistoryCommandOptions& o, std::ostream& out, std::
   const std::string name = store->name();
   std::string chart_note;  // said last, after the table
   if (o.chart) {
-    const ControlChart c = chosen_chart(name, rows, o.product);
+    const qc::ControlChart c = chosen_chart(name, rows, o.product);
     const std::string code = product_label(rows.front().product);  // chosen_chart checked: one product
     const std::string scope = site_scope(of_product(rows, rows.front().product), o.site);
     std::string title = c.parameter;
     std::replace(title.begin(), title.end(), '_', ' ');
     if (!title.empty()) title[0] = char(std::toupper(static_cast<unsigned char>(title[0])));
-    io::write_file_atomically(*o.chart, control_chart_svg(c, fmt::format("{} of product {}{}, {} batches", title,
+    io::write_file_atomically(*o.chart, report::control_chart_svg(c, fmt::format("{} of product {}{}, {} batches", title,
                                                                          code, scope.empty() ? "" : ", " + scope,
                                                                          c.batches())));
     chart_note = fmt::format("chart: {} ({} of product {}{}, {} results{})\n", o.chart->string(), c.parameter, code,

@@ -28,7 +28,7 @@ double end_value(Law law, const std::vector<std::string>& fixed, const std::vect
     throw;
   }
   const std::string& name = ranges[which].name;
-  return material_value(p.material, name);
+  return fit::material_value(p.material, name);
 }
 
 }  // namespace
@@ -88,7 +88,7 @@ std::vector<GridPoint> parameter_grid(const Material& base, const std::vector<Pa
     GridPoint g{base, index};
     for (std::size_t d = 0; d < k; ++d)
       g.material =
-          with_parameter(g.material, ranges[d].name, range_value(ranges[d], double(index[d]) / double(points - 1)));
+          fit::with_parameter(g.material, ranges[d].name, range_value(ranges[d], double(index[d]) / double(points - 1)));
     grid.push_back(std::move(g));
     std::size_t d = 0;
     while (d < k && ++index[d] == points) index[d++] = 0;

@@ -32,7 +32,7 @@ struct Candidate {
   TestSetup setup;
   std::vector<double> times;
   double sigma = default_sigma;
-  WorstCaseEstimate estimate;
+  fit::WorstCaseEstimate estimate;
 };
 
 /// --every or --until as one time; parse_times names "--times", so its complaint is relocated to `option`.
@@ -48,21 +48,21 @@ double one_time(const std::string& text, const std::string& option) {
 }
 
 std::string ratio_text(double r) {
-  return r < undetermined_ratio ? fmt::format("{:.3g}x", r) : std::string("undetermined");
+  return r < fit::undetermined_ratio ? fmt::format("{:.3g}x", r) : std::string("undetermined");
 }
 
 /// A ratio in the check's table: four digits, since the two columns are compared by their logarithms; "-" when
 /// too few refits converged for a spread.
 std::string check_text(double r) {
   if (std::isnan(r)) return "-";
-  return r < undetermined_ratio ? fmt::format("{:.4g}x", r) : std::string("undetermined");
+  return r < fit::undetermined_ratio ? fmt::format("{:.4g}x", r) : std::string("undetermined");
 }
 
 /// A guess named by its varied values in SI, "20/5" (the header says which parameters, in which order).
 std::string guess_label(const Material& m, const std::vector<ParameterRange>& ranges) {
   std::string out;
   for (const ParameterRange& r : ranges) {
-    const double v = material_value(m, r.name);
+    const double v = fit::material_value(m, r.name);
     out += fmt::format("{}{:.3g}", out.empty() ? "" : "/", v);
   }
   return out;
@@ -72,14 +72,14 @@ std::string guess_label(const Material& m, const std::vector<ParameterRange>& ra
 std::string guess_words(const Material& m, const std::vector<std::string>& names) {
   std::string out;
   for (const std::string& n : names) {
-    const double v = material_value(m, n);
+    const double v = fit::material_value(m, n);
     out += fmt::format("{}{}={:.3g}", out.empty() ? "" : " ", n, v);
   }
   return out;
 }
 
 /// How often the guessed material stops before the last reading: "yes"/"no" for one guess, "k/G" for several.
-std::string stopped_text(const WorstCaseEstimate& e) {
+std::string stopped_text(const fit::WorstCaseEstimate& e) {
   if (e.guesses.size() == 1) return e.stopped > 0 ? "yes" : "no";
   return fmt::format("{}/{}", e.stopped, e.guesses.size());
 }
@@ -94,7 +94,7 @@ double uniform_interval(const std::vector<double>& t) {
 
 /// Two ratios, with enough digits to tell them apart (up to six).
 std::pair<std::string, std::string> ratio_pair(double a, double b) {
-  if (!(a < undetermined_ratio) || !(b < undetermined_ratio)) return {ratio_text(a), ratio_text(b)};
+  if (!(a < fit::undetermined_ratio) || !(b < fit::undetermined_ratio)) return {ratio_text(a), ratio_text(b)};
   for (int digits = 3; digits < 6; ++digits) {
     const std::string x = fmt::format("{:.{}g}x", a, digits), y = fmt::format("{:.{}g}x", b, digits);
     if (x != y) return {x, y};
@@ -124,12 +124,12 @@ std::vector<std::string> differences(const Candidate& a, const Candidate& b) {
 
 /// Ranking of two candidates that both solved: fewer undetermined parameters first, then the lower score over
 /// the determined ones (for candidates that determine everything, design_score itself).
-bool ranks_before(const WorstCaseEstimate& a, const WorstCaseEstimate& b) {
-  const auto key = [](const WorstCaseEstimate& e) {
+bool ranks_before(const fit::WorstCaseEstimate& a, const fit::WorstCaseEstimate& b) {
+  const auto key = [](const fit::WorstCaseEstimate& e) {
     std::vector<double> determined;
     for (double r : e.worst_ratio)
-      if (r < undetermined_ratio) determined.push_back(r);
-    return std::pair{e.worst_ratio.size() - determined.size(), design_score(determined)};
+      if (r < fit::undetermined_ratio) determined.push_back(r);
+    return std::pair{e.worst_ratio.size() - determined.size(), fit::design_score(determined)};
   };
   return key(a) < key(b);
 }
@@ -169,10 +169,10 @@ void print_table(std::ostream& out, const PlanCommandOptions& options, Law law,
   for (const auto& n : names) out << fmt::format(" {:>{}}", n, width);
   out << fmt::format(" {:>8}\n", "stopped");
   for (std::size_t i = 0; i < rows.size(); ++i) {
-    const WorstCaseEstimate& e = rows[i].estimate;
+    const fit::WorstCaseEstimate& e = rows[i].estimate;
     out << fmt::format("  {:<24}", rows[i].name);
     if (!e.ok()) {
-      const DesignEstimate& failed = e.guesses[e.first_failure];
+      const fit::DesignEstimate& failed = e.guesses[e.first_failure];
       out << (range ? fmt::format(" forward model failed for {} of {} guesses, first at {} ({})\n", e.failed,
                                   e.guesses.size(), guess_words(guesses[e.first_failure], names), failed.message)
                     : fmt::format(" forward model failed ({})\n", failed.message));
@@ -203,7 +203,7 @@ void print_reasons(std::ostream& out, const std::vector<ParameterRange>& ranges,
   const bool range = !ranges.empty();
   const std::vector<std::string>& names = rows[best].estimate.names;
   const Candidate& b = rows[best];
-  const WorstCaseEstimate& e = b.estimate;
+  const fit::WorstCaseEstimate& e = b.estimate;
   std::size_t limiting = 0;
   for (std::size_t i = 1; i < e.worst_ratio.size(); ++i)
     if (e.worst_ratio[i] > e.worst_ratio[limiting]) limiting = i;
@@ -274,7 +274,7 @@ void print_check(std::ostream& out, std::ostream& err, const PlanCommandOptions&
                  std::size_t second) {
   const std::vector<std::string>& names = rows[best].estimate.names;
   Material middle = base.material;
-  for (const ParameterRange& r : ranges) middle = with_parameter(middle, r.name, range_value(r, 0.5));
+  for (const ParameterRange& r : ranges) middle = fit::with_parameter(middle, r.name, range_value(r, 0.5));
   constexpr unsigned first_seed = 1000;
   out << fmt::format(
       "check: {} simulated reading sets per candidate at {} (noise of the resolution, seeds {}-{}), "
@@ -286,7 +286,7 @@ void print_check(std::ostream& out, std::ostream& err, const PlanCommandOptions&
     if (i >= rows.size()) continue;
     const Candidate& c = rows[i];
     progress(err, fmt::format("plan --check: refitting {} simulated reading sets of {}", options.check, c.name));
-    const DesignCheck k = check_design(c.setup, law, middle, c.times, c.sigma, options.check, first_seed);
+    const fit::DesignCheck k = fit::check_design(c.setup, law, middle, c.times, c.sigma, options.check, first_seed);
     if (k.planned_ratio.empty()) {
       out << fmt::format("  {:<24} forward model failed at this guess ({})\n", c.name, k.message);
       continue;
@@ -337,7 +337,7 @@ int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::
       // Bounded by until/every readings (both checked above).
       for (double t = every; t <= until + 1e-9; t += every) c.times.push_back(t);
     }
-    c.estimate = worst_case_intervals(c.setup, law, guesses, c.times, c.sigma);
+    c.estimate = fit::worst_case_intervals(c.setup, law, guesses, c.times, c.sigma);
     rows.push_back(std::move(c));
   }
 

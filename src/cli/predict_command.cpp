@@ -21,8 +21,8 @@ namespace {
 constexpr int plot_points = 81;  // dense times of the plotted curve
 
 // The rows of `band` at the positions `rows` (indices into its times).
-PredictionBand subset(const PredictionBand& band, const std::vector<std::size_t>& rows) {
-  PredictionBand out;
+fit::PredictionBand subset(const fit::PredictionBand& band, const std::vector<std::size_t>& rows) {
+  fit::PredictionBand out;
   out.ok = band.ok;
   out.samples = band.samples;
   for (std::size_t i : rows) {
@@ -39,7 +39,7 @@ PredictionBand subset(const PredictionBand& band, const std::vector<std::size_t>
 int run_predict_command(const PredictCommandOptions& options, std::ostream& out, std::ostream& err) {
   if (options.samples < 0 || options.samples > 100000)
     throw io::InputError(std::string(command_line_source), 0, "--samples", "expected 0 to 100000 draws");
-  const FitResult fit = load_fitted_material(options.result);
+  const fit::FitResult fit = fit::load_fitted_material(options.result);
   const io::TestDescription rig = io::load_test_description(options.rig);
   const std::vector<double> times = options.times ? parse_times(*options.times) : default_times(rig);
   TestSetup setup = rig.setup;
@@ -63,7 +63,7 @@ int run_predict_command(const PredictCommandOptions& options, std::ostream& out,
   };
   if (options.samples > 0)
     progress(err, fmt::format("predict: solving the other rig for {} parameter draws (the 95% band)", options.samples));
-  const PredictionBand band = prediction_band(fit, setup, sorted, 0, options.samples);
+  const fit::PredictionBand band = prediction_band(fit, setup, sorted, 0, options.samples);
   if (!band.ok) {
     err << fmt::format(
         "spreadfit: {}: the forward model failed for the fitted material on this rig; no readings "
@@ -74,7 +74,7 @@ int run_predict_command(const PredictCommandOptions& options, std::ostream& out,
   std::vector<std::size_t> requested, dense;
   for (std::size_t i = 0; i < times.size(); ++i) requested.push_back(row_of(all[i]));
   for (std::size_t i = times.size(); i < all.size(); ++i) dense.push_back(row_of(all[i]));
-  const PredictionBand at = subset(band, requested);
+  const fit::PredictionBand at = subset(band, requested);
   std::string note;
   if (options.samples > 0 && band.samples < options.samples) {
     note = fmt::format("the band uses {} of {} parameter draws", band.samples, options.samples);
@@ -87,9 +87,9 @@ int run_predict_command(const PredictCommandOptions& options, std::ostream& out,
   }
 
   if (options.plot) {
-    PredictionReport report{&fit, options.result.string(), &rig, setup.reading, subset(band, dense), at, {}};
+    report::PredictionReport report{&fit, options.result.string(), &rig, setup.reading, subset(band, dense), at, {}};
     if (!note.empty()) report.notes.push_back(note);
-    io::write_file_atomically(*options.plot, prediction_plot_svg(report));
+    io::write_file_atomically(*options.plot, report::prediction_plot_svg(report));
   }
   const std::string name(reading_name(setup.reading));
   out << fmt::format("time [s],{0} [m],{0} low [m],{0} high [m]\n", name);

@@ -158,7 +158,7 @@ SimulationParameters parse_simulation_parameters(Law law, const std::vector<std:
       fail("--set", "missing parameter '" + name + "' for model " + model + " (it takes " + takes_text(own) +
                         "; expected --set " + name + "=VALUE, such as " + name + "=" + example + si + ")");
     }
-    out.material = with_parameter(out.material, name, it->value);
+    out.material = fit::with_parameter(out.material, name, it->value);
   }
   for (const Given& g : given)
     if (g.name == kTimeOrigin) out.time_origin = g.value;

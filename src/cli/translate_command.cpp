@@ -29,7 +29,7 @@ std::string plain(std::string name) {
 }
 
 std::string with_unit(double value, const std::string& parameter) {
-  const std::string unit = parameter_unit(parameter);
+  const std::string unit = fit::parameter_unit(parameter);
   return unit == "-" ? fmt::format("{:.4g}", value) : fmt::format("{:.4g} {}", value, unit);
 }
 
@@ -127,15 +127,15 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
     if (!between || i != solved)
       over += fmt::format("{}{} {}..{}", over.empty() ? "" : ", ", ranges[i].name, ranges[i].low, ranges[i].high);
 
-  ReadingMap map;
-  std::optional<Interval> possible;
+  report::ReadingMap map;
+  std::optional<qc::Interval> possible;
   std::string report;
   int code = to_int(ExitCode::Done);
   if (!between) {
     std::vector<Material> grid;
     const std::vector<GridPoint> points = parameter_grid(nominal.material, ranges, options.points);
     for (const GridPoint& g : points) grid.push_back(g.material);
-    const ReadingRange r = reading_range(setup, grid, when);
+    const qc::ReadingRange r = qc::reading_range(setup, grid, when);
     if (!r.ok()) {
       err << fmt::format("spreadfit: {}: {} ({} forward solves); no limits written\n", options.test.string(), r.failure,
                          r.solves);
@@ -147,7 +147,7 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
     map.reading_limits = std::pair{r.low, r.high};
     if (options.grid) {
       std::string table;
-      for (const ParameterRange& p : ranges) table += fmt::format("{} [{}],", p.name, parameter_unit(p.name));
+      for (const ParameterRange& p : ranges) table += fmt::format("{} [{}],", p.name, fit::parameter_unit(p.name));
       table += fmt::format("{} [m]\n", reading);
       for (std::size_t k = 0; k < points.size(); ++k) {
         for (std::size_t d = 0; d < ranges.size(); ++d)
@@ -164,8 +164,8 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
     std::vector<Material> combos;
     for (const GridPoint& g : parameter_grid(nominal.material, others, options.points)) combos.push_back(g.material);
     const ParameterRange& s = ranges[solved];
-    const SearchRange search{s.name, s.lo, s.hi, log_axis(s)};
-    const ParameterLimits limits = solve_parameter_limits(setup, when, combos, search, between->first, between->second);
+    const qc::SearchRange search{s.name, s.lo, s.hi, log_axis(s)};
+    const qc::ParameterLimits limits = solve_parameter_limits(setup, when, combos, search, between->first, between->second);
     if (!limits.ok()) {
       err << fmt::format("spreadfit: {}: {} while solving for {}; no limits written\n", options.test.string(),
                          limits.failure, s.name);
@@ -201,7 +201,7 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
                                                                       : "high end",
           s.low, s.high, s.name);
     report += "parameter,unit,time [s],possible low,possible high,assured low,assured high\n";
-    report += fmt::format("{},{},{},{},{},", s.name, parameter_unit(s.name), at.front(), limits.possible->lo,
+    report += fmt::format("{},{},{},{},{},", s.name, fit::parameter_unit(s.name), at.front(), limits.possible->lo,
                           limits.possible->hi);
     report += limits.assured ? fmt::format("{},{}\n", limits.assured->lo, limits.assured->hi) : ",\n";
     map.reading_limits = between;
@@ -215,14 +215,14 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
     map.y_log = log_axis(yr);
     map.x = axis_values(xr, map_extent(xr, widen), options.map_points);
     map.y = axis_values(yr, map_extent(yr, widen), options.map_points);
-    map.x_name = fmt::format("{} [{}]", plain(xr.name), parameter_unit(xr.name));
-    map.y_name = fmt::format("{} [{}]", plain(yr.name), parameter_unit(yr.name));
+    map.x_name = fmt::format("{} [{}]", plain(xr.name), fit::parameter_unit(xr.name));
+    map.y_name = fmt::format("{} [{}]", plain(yr.name), fit::parameter_unit(yr.name));
     map.reading_name = reading;
     map.title = fmt::format("{} at {} s on the {} ({}), {}", reading, at.front(), rig_name,
                             options.test.filename().string(), law_name(law));
     Material held = nominal.material;
     for (std::size_t i = 2; i < ranges.size(); ++i) {
-      held = with_parameter(held, ranges[i].name, range_value(ranges[i], 0.5));
+      held = fit::with_parameter(held, ranges[i].name, range_value(ranges[i], 0.5));
       map.notes.push_back(fmt::format("{} held at the middle of its range, {}", ranges[i].name,
                                       with_unit(range_value(ranges[i], 0.5), ranges[i].name)));
     }
@@ -242,9 +242,9 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
     }
     std::vector<Material> grid;
     for (double yv : map.y)
-      for (double xv : map.x) grid.push_back(with_parameter(with_parameter(held, xr.name, xv), yr.name, yv));
+      for (double xv : map.x) grid.push_back(fit::with_parameter(fit::with_parameter(held, xr.name, xv), yr.name, yv));
     progress(err, fmt::format("translate --map: solving the {} at {} points", reading, grid.size()));
-    const std::vector<std::optional<double>> values = readings_at(setup, grid, when);
+    const std::vector<std::optional<double>> values = qc::readings_at(setup, grid, when);
     map.reading.assign(map.y.size(), std::vector<double>(map.x.size(), std::numeric_limits<double>::quiet_NaN()));
     int failed = 0;
     for (std::size_t j = 0; j < map.y.size(); ++j)
@@ -260,7 +260,7 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
                          options.test.string());
       code = to_int(ExitCode::NumericalFailure);
     } else {
-      io::write_file_atomically(*options.map, reading_map_svg(map));
+      io::write_file_atomically(*options.map, report::reading_map_svg(map));
     }
   }
   out << report;

@@ -9,7 +9,7 @@
 #include "src/fit/synthetic_readings.hpp"
 #include "src/fit/expected_intervals.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 namespace {
 
@@ -54,4 +54,4 @@ DesignCheck check_design(const TestSetup& setup, Law law, const Material& truth,
   return out;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -9,7 +9,7 @@
 
 #include "src/fit/fit_types.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 struct DesignCheck {
   std::vector<std::string> names;       ///< material parameters, as in DesignEstimate
@@ -28,4 +28,4 @@ struct DesignCheck {
 DesignCheck check_design(const TestSetup& setup, Law law, const Material& truth, const std::vector<double>& times,
                          double sigma, int replicates, unsigned first_seed = 1000, const FitOptions& options = {});
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -7,7 +7,7 @@
 
 #include "src/parallel_for.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 DesignEstimate expected_intervals(const TestSetup& setup, Law law, const Material& guess,
                                   const std::vector<double>& times, double sigma, bool fit_time_origin,
@@ -143,4 +143,4 @@ WorstCaseEstimate worst_case_intervals(const TestSetup& setup, Law law, const st
   return out;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

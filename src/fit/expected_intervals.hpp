@@ -13,7 +13,7 @@
 
 #include "src/fit/fit_types.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 struct DesignEstimate {
   std::vector<std::string> names;      ///< material parameters (log-space in the information matrix)
@@ -61,4 +61,4 @@ WorstCaseEstimate worst_case_intervals(const TestSetup& setup, Law law, const st
                                        const std::vector<double>& times, double sigma, bool fit_time_origin = true,
                                        const ForwardOptions& forward = {});
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

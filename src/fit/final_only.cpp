@@ -9,7 +9,7 @@
 #include "models/closed_forms.hpp"
 #include "models/slump.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 namespace {
 using std::numbers::pi;
@@ -108,4 +108,4 @@ FitResult fit_final_reading(const TestSetup& setup, double reading, std::optiona
   return out;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -12,10 +12,10 @@
 
 #include "src/fit/fit_types.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 /// Estimates the yield stress; status NotIdentifiable when the reading is outside the relation's range
 /// (e.g. no slump at all: only a lower bound would follow).
 FitResult fit_final_reading(const TestSetup& setup, double reading, std::optional<double> sigma);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -25,7 +25,7 @@
 #include "src/fit/likelihood_draws.hpp"
 #include "src/parallel_for.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 std::string_view fit_status_name(FitStatus s) {
   switch (s) {
@@ -731,4 +731,4 @@ ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& opt
   return choice;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

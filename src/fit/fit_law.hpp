@@ -19,7 +19,7 @@
 
 #include "src/fit/fit_types.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 /// Fits one law. Never throws for numerical trouble: the status and reason say what happened.
 /// Throws std::invalid_argument for invalid options or empty data.
@@ -46,4 +46,4 @@ ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& opt
 /// n ln(SSR/n) + 2k + 2k(k+1)/(n-k-1) (Hurvich & Tsai 1989).
 double aicc(double weighted_ssr, int points, int k);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -5,7 +5,7 @@
 #include <limits>
 #include <stdexcept>
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 namespace {
 // Physical bounds (common practice for foods and cosmetics, no source): yield stress 0.01 Pa - 10 kPa,
@@ -174,4 +174,4 @@ void FitProblem::surrogate_residuals(const Eigen::VectorXd& theta, Eigen::Vector
   }
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

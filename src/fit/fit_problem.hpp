@@ -11,7 +11,7 @@
 
 #include "src/fit/fit_types.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 class FitProblem {
  public:
@@ -71,4 +71,4 @@ class FitProblem {
   mutable std::atomic<int> evaluations_{0};  // residuals may run on several threads (Jacobian columns)
 };
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -6,7 +6,7 @@
 #include <cmath>
 #include <fmt/format.h>
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 std::string_view fit_quality_name(FitQuality q) {
   switch (q) {
@@ -102,4 +102,4 @@ std::vector<QualityFinding> judge_fit_quality(const std::vector<SeriesResiduals>
   return out;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

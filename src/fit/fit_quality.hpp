@@ -17,7 +17,7 @@
 
 #include "src/fit/fit_types.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 struct QualityFinding {
   FitQuality kind = FitQuality::Good;
@@ -36,4 +36,4 @@ struct SeriesResiduals {
 /// Findings for a fit with `parameters` fitted parameters; empty when the fit is a fair description.
 std::vector<QualityFinding> judge_fit_quality(const std::vector<SeriesResiduals>& series, int parameters);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

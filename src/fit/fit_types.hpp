@@ -13,7 +13,7 @@
 #include "models/rheology.hpp"
 #include "models/rig.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 /// One curve of readings on one rig.
 struct FitSeries {
@@ -104,4 +104,4 @@ struct FitResult {
   bool converged() const { return status == FitStatus::Converged; }
 };
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

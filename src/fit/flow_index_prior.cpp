@@ -7,7 +7,7 @@
 #include "src/fit/fit_law.hpp"
 #include "src/fit/fit_problem.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 namespace {
 
@@ -119,4 +119,4 @@ FitResult fit_with_prior(const std::vector<FitSeries>& series, const FitResult& 
   return r;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

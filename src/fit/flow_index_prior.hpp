@@ -19,7 +19,7 @@
 
 #include "src/fit/fit_types.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 /// A batch's flow index as the readings alone gave it.
 struct BatchFlowIndex {
@@ -43,4 +43,4 @@ std::optional<FlowIndexPrior> learn_flow_index_prior(const std::vector<BatchFlow
 FitResult fit_with_prior(const std::vector<FitSeries>& series, const FitResult& without, const FitOptions& options,
                          const FlowIndexPrior& prior);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

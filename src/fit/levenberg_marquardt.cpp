@@ -8,7 +8,7 @@
 
 #include "src/parallel_for.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 const char* lm_status_name(LmStatus status) {
   switch (status) {
@@ -213,4 +213,4 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
   return out;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -7,7 +7,7 @@
 #include <functional>
 #include <string>
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 struct LmOptions {
   int max_iterations = 40;       ///< iterations (each costs one Jacobian: size() + 1 residual calls)
@@ -67,4 +67,4 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
 bool finite_difference_jacobian(const ResidualFunction& f, const Eigen::VectorXd& x, const Eigen::VectorXd& r,
                                 const Eigen::VectorXd& upper, const Eigen::VectorXd& step, Eigen::MatrixXd& J);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -9,7 +9,7 @@
 #include "src/fit/fit_problem.hpp"
 #include "src/parallel_for.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 LikelihoodDraws likelihood_draws(const FitProblem& problem, const Eigen::VectorXd& x, double cost, double s2,
                                  const Eigen::MatrixXd& covariance, const Eigen::VectorXd& lower,
@@ -110,4 +110,4 @@ LikelihoodDraws likelihood_draws(const FitProblem& problem, const Eigen::VectorX
   return out;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -13,7 +13,7 @@
 #include <Eigen/Core>
 #include <vector>
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 class FitProblem;
 
@@ -32,4 +32,4 @@ LikelihoodDraws likelihood_draws(const FitProblem& problem, const Eigen::VectorX
                                  const Eigen::VectorXd& upper, const std::vector<Eigen::VectorXd>& centres,
                                  int proposals = 400, int keep = 200, unsigned seed = 20261202u);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -2,7 +2,7 @@
 
 #include <stdexcept>
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 const std::array<MaterialParameter, 4>& material_parameters() {
   static const std::array<MaterialParameter, 4> table{{
@@ -48,4 +48,4 @@ double material_value(const Material& material, const std::string& name) {
   return material.*material_parameter(name).member;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -8,7 +8,7 @@
 
 #include "models/rheology.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 /// One material parameter: the name the interface uses, the unit results write, the words sentences use, and the
 /// Material member it sets (viscosity and consistency are both K, the consistency of a Newtonian law).
@@ -36,4 +36,4 @@ Material with_parameter(Material material, const std::string& name, double value
 /// parameter.
 double material_value(const Material& material, const std::string& name);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -8,7 +8,7 @@
 #include "src/fit/parameter_names.hpp"
 #include "src/parallel_for.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 namespace {
 
@@ -162,4 +162,4 @@ PredictionBand prediction_band(const FitResult& fit, const TestSetup& setup, con
   return band;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

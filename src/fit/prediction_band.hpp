@@ -11,7 +11,7 @@
 
 #include "src/fit/fit_types.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 struct PredictionBand {
   std::vector<double> times;            ///< [s] after the fitted release
@@ -32,4 +32,4 @@ FitResult material_only(const FitResult& fit);
 PredictionBand prediction_band(const FitResult& fit, const TestSetup& setup, const std::vector<double>& times,
                                std::size_t series_index = 0, int samples = 200, unsigned seed = 2024);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

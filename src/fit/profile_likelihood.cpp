@@ -5,7 +5,7 @@
 #include <utility>
 #include <vector>
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 ProfileLikelihood::ProfileLikelihood(ResidualFunction f, Eigen::VectorXd lower, Eigen::VectorXd upper,
                                      Eigen::VectorXd fd_step, Eigen::VectorXd best_x, double best_cost, double s2,
@@ -196,4 +196,4 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
   return out;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

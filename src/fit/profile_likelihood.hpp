@@ -24,7 +24,7 @@
 
 #include "src/fit/levenberg_marquardt.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 enum class ProfileEnd {
   Crossed,  ///< tau reached the cut-off: a finite limit
@@ -85,4 +85,4 @@ class ProfileLikelihood {
   mutable double better_cost_;
 };
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

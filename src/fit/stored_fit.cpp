@@ -12,7 +12,7 @@
 #include "src/fit/prediction_band.hpp"
 #include "src/io/input_error.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 namespace {
 
@@ -176,4 +176,4 @@ FitResult load_fitted_material(const std::filesystem::path& path) {
   return r;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

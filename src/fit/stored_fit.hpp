@@ -7,9 +7,9 @@
 
 #include "src/fit/fit_types.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 /// Throws io::InputError naming the file and field for a result that failed, lacks the block, or is malformed.
 FitResult load_fitted_material(const std::filesystem::path& result_json);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

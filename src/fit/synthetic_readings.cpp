@@ -2,7 +2,7 @@
 
 #include <random>
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 FitSeries synthetic_readings(const TestSetup& setup, const Material& material, const std::vector<double>& times,
                              double sigma, unsigned seed, double t0) {
@@ -22,4 +22,4 @@ FitSeries synthetic_readings(const TestSetup& setup, const Material& material, c
   return s;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

@@ -6,7 +6,7 @@
 
 #include "src/fit/fit_types.hpp"
 
-namespace spreadfit {
+namespace spreadfit::fit {
 
 /// Readings at `times` [s] of a sample released at t0 [s] (the model is evaluated at t - t0), each plus an
 /// independent N(0, sigma^2) draw [m] from std::mt19937(seed) in time order; sigma = 0 gives the exact readings and
@@ -15,4 +15,4 @@ namespace spreadfit {
 FitSeries synthetic_readings(const TestSetup& setup, const Material& material, const std::vector<double>& times,
                              double sigma, unsigned seed, double t0 = 0.0);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::fit

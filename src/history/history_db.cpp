@@ -138,7 +138,7 @@ std::string utc_now_iso8601() {
   return std::string(text, n);
 }
 
-StoredResult stored_result(const FitOutcome& o) {
+StoredResult stored_result(const report::FitOutcome& o) {
   if (o.tests.empty()) throw std::invalid_argument("stored_result: the outcome has no tests");
   StoredResult s;
   s.sample_id = o.tests.front().sample_id;
@@ -152,16 +152,16 @@ StoredResult stored_result(const FitOutcome& o) {
     if (!s.rig.empty()) s.rig.push_back('+');
     s.rig.append(io::rig_kind_name(t.setup.rig));
   }
-  if (const FitResult* r = o.result()) {
+  if (const fit::FitResult* r = o.result()) {
     s.law = std::string(law_name(r->law));
     for (const auto& p : r->parameters)
       if (p.name != "time_origin") s.parameters.emplace_back(p.name, p.value, p.lower, p.upper, p.unit);
   }
-  s.verdict = std::string(verdict_status_name(o.verdict.status));
+  s.verdict = std::string(qc::verdict_status_name(o.verdict.status));
   s.input_hash = input_hash(o.tests);
   s.software_version = std::string(software_version());
   s.recorded_at = utc_now_iso8601();
-  s.result_json = result_json(o).dump();
+  s.result_json = report::result_json(o).dump();
   return s;
 }
 

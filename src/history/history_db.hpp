@@ -125,7 +125,7 @@ CopySummary copy_history(const std::string& from, const std::string& to, const H
 /// the hash of all its tests' input files (input_hash(outcome.tests)), this software's version, the current time,
 /// and result_json(outcome) compact. Throws io::InputError when an input file can no longer be read for hashing,
 /// or SPREADFIT_SITE holds a line break or tab.
-StoredResult stored_result(const FitOutcome& outcome);
+StoredResult stored_result(const report::FitOutcome& outcome);
 
 /// The site SPREADFIT_SITE names, or '' when it is not set or empty. Throws io::InputError when it holds a line
 /// break or tab.

@@ -5,7 +5,7 @@
 #include <numeric>
 #include <stdexcept>
 
-namespace spreadfit {
+namespace spreadfit::qc {
 
 namespace {
 
@@ -98,4 +98,4 @@ bool log_scale_suits(const std::string& parameter, const std::vector<double>& va
   return false;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::qc

@@ -16,7 +16,7 @@
 #include <string>
 #include <vector>
 
-namespace spreadfit {
+namespace spreadfit::qc {
 
 struct LeftOutBatch {
   std::string label;         ///< batch / sample id
@@ -53,4 +53,4 @@ ControlChart individuals_chart(std::string parameter, std::string unit, std::vec
 /// logarithms); any other positive quantity when a linear lower control limit would fall to zero or below.
 bool log_scale_suits(const std::string& parameter, const std::vector<double>& values, std::string& why);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::qc

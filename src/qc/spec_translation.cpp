@@ -10,7 +10,7 @@
 #include "src/fit/parameter_names.hpp"
 #include "src/parallel_for.hpp"
 
-namespace spreadfit {
+namespace spreadfit::qc {
 
 namespace {
 
@@ -46,7 +46,7 @@ Scan scan(const TestSetup& setup, double time, const Material& other, const Sear
   const auto value_at = [&](double u) { return search_value(search, u); };
   const auto reading = [&](double u) {
     ++out.solves;
-    const auto r = reading_at(setup, with_parameter(other, search.parameter, value_at(u)), time);
+    const auto r = reading_at(setup, fit::with_parameter(other, search.parameter, value_at(u)), time);
     if (!r) throw ForwardSolveFailed();
     return *r;
   };
@@ -188,4 +188,4 @@ ParameterLimits solve_parameter_limits(const TestSetup& setup, double time, cons
   return out;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::qc

@@ -19,7 +19,7 @@
 
 #include "models/forward.hpp"
 
-namespace spreadfit {
+namespace spreadfit::qc {
 
 /// The reading of `material` at `time` [s] after the release, or nothing when the forward model fails.
 std::optional<double> reading_at(const TestSetup& setup, const Material& material, double time);
@@ -68,4 +68,4 @@ struct ParameterLimits {
 ParameterLimits solve_parameter_limits(const TestSetup& setup, double time, const std::vector<Material>& others,
                                        const SearchRange& search, double reading_low, double reading_high);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::qc

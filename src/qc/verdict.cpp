@@ -1,6 +1,6 @@
 #include "src/qc/verdict.hpp"
 
-namespace spreadfit {
+namespace spreadfit::qc {
 
 std::string_view verdict_status_name(Verdict::Status s) {
   switch (s) {
@@ -11,7 +11,7 @@ std::string_view verdict_status_name(Verdict::Status s) {
   return "none";
 }
 
-Verdict judge(const FitResult& result, const std::vector<io::SpecLimit>& limits) {
+Verdict judge(const fit::FitResult& result, const std::vector<io::SpecLimit>& limits) {
   Verdict v;
   if (limits.empty()) return v;
   v.status = Verdict::Status::Pass;
@@ -20,9 +20,9 @@ Verdict judge(const FitResult& result, const std::vector<io::SpecLimit>& limits)
     c.parameter = limit.parameter;
     c.low = limit.low;
     c.high = limit.high;
-    const ParameterEstimate* found = nullptr;
+    const fit::ParameterEstimate* found = nullptr;
     // A spec on "viscosity" applies to a law's consistency when n = 1 and vice versa is not meaningful; match names.
-    for (const ParameterEstimate& p : result.parameters)
+    for (const fit::ParameterEstimate& p : result.parameters)
       if (p.name == limit.parameter) found = &p;
     if (!result.converged() || found == nullptr) {
       c.available = false;
@@ -43,11 +43,11 @@ Verdict judge(const FitResult& result, const std::vector<io::SpecLimit>& limits)
     c.parameter = "fit_quality";
     c.available = false;
     c.pass = false;
-    for (FitQuality q : result.quality) c.findings.push_back(std::string(fit_quality_name(q)));
+    for (fit::FitQuality q : result.quality) c.findings.push_back(std::string(fit_quality_name(q)));
     v.checks.push_back(c);
     v.status = Verdict::Status::Fail;
   }
   return v;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::qc

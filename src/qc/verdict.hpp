@@ -9,7 +9,7 @@
 #include "src/fit/fit_types.hpp"
 #include "src/io/description_file.hpp"
 
-namespace spreadfit {
+namespace spreadfit::qc {
 
 struct SpecCheck {
   std::string parameter;
@@ -32,6 +32,6 @@ std::string_view verdict_status_name(Verdict::Status s);
 /// the result does not have, or a failed fit, counts as failed: a line must not release on a missing number), and
 /// when the fit's quality is in doubt (an outlier, scatter above the resolution, a systematic misfit: the check
 /// "fit_quality" fails).
-Verdict judge(const FitResult& result, const std::vector<io::SpecLimit>& limits);
+Verdict judge(const fit::FitResult& result, const std::vector<io::SpecLimit>& limits);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::qc

@@ -8,7 +8,7 @@
 #include <stdexcept>
 #include <string>
 
-namespace spreadfit::contour {
+namespace spreadfit::report::contour {
 
 namespace {
 
@@ -269,4 +269,4 @@ std::vector<double> round_levels(double lo, double hi, int target) {
   return levels;
 }
 
-}  // namespace spreadfit::contour
+}  // namespace spreadfit::report::contour

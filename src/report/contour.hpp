@@ -20,7 +20,7 @@
 #include <utility>
 #include <vector>
 
-namespace spreadfit::contour {
+namespace spreadfit::report::contour {
 
 struct Point {
   double x = 0, y = 0;
@@ -74,4 +74,4 @@ std::pair<double, double> finite_range(const std::vector<std::vector<double>>& z
 /// finite or lo >= hi. `target` is clamped to 2..20.
 std::vector<double> round_levels(double lo, double hi, int target = 7);
 
-}  // namespace spreadfit::contour
+}  // namespace spreadfit::report::contour

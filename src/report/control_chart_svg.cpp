@@ -11,7 +11,7 @@
 #include "src/report/svg_document.hpp"
 #include "src/version.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 namespace {
 
@@ -149,7 +149,7 @@ struct ChartNames {
   std::string heading;
 };
 
-ChartNames chart_names(const ControlChart& chart, const std::string& title) {
+ChartNames chart_names(const qc::ControlChart& chart, const std::string& title) {
   ChartNames names;
   names.unit_symbol = svg::unit_text(chart.unit);
   names.unit = chart.unit.empty() || chart.unit == "-" ? std::string() : " " + names.unit_symbol;
@@ -166,7 +166,7 @@ struct ChartCounts {
 
 bool flag(const std::vector<bool>& flags, std::size_t i) { return i < flags.size() && flags[i]; }
 
-ChartCounts chart_counts(const ControlChart& chart) {
+ChartCounts chart_counts(const qc::ControlChart& chart) {
   const std::size_t n = chart.values.size();
   ChartCounts c;
   std::size_t &shown = c.shown, &beyond = c.beyond, &in_run = c.in_run, &plain = c.plain;
@@ -181,7 +181,7 @@ ChartCounts chart_counts(const ControlChart& chart) {
 }
 
 // --- header: title, the chart's summary in words, the left-out batches --------------------------------------------
-double chart_header(Document& doc, const ControlChart& chart, const ChartNames& names, const ChartCounts& counts) {
+double chart_header(Document& doc, const qc::ControlChart& chart, const ChartNames& names, const ChartCounts& counts) {
   const std::size_t n = chart.values.size(), batches = chart.batches();
   const std::string& heading = names.heading;
   const std::string& unit_symbol = names.unit_symbol;
@@ -223,7 +223,7 @@ double chart_header(Document& doc, const ControlChart& chart, const ChartNames& 
                  line);
     y += 19;
   }
-  for (const LeftOutBatch& b : chart.left_out) {
+  for (const qc::LeftOutBatch& b : chart.left_out) {
     const std::string note = fmt::format("Not charted, not in the limits: {} ({}).", b.label, b.reason);
     for (const auto& line : svg::wrap(note, text_width, 12)) {
       doc.add_text(
@@ -236,7 +236,7 @@ double chart_header(Document& doc, const ControlChart& chart, const ChartNames& 
 }
 
 // --- legend ---------------------------------------------------------------------------------------------------
-double chart_legend(Document& doc, const ControlChart& chart, const ChartCounts& counts, double y) {
+double chart_legend(Document& doc, const qc::ControlChart& chart, const ChartCounts& counts, double y) {
   const std::size_t beyond = counts.beyond, in_run = counts.in_run, plain = counts.plain;
   {
     struct Entry {
@@ -285,7 +285,7 @@ double chart_legend(Document& doc, const ControlChart& chart, const ChartCounts&
 }
 
 // --- chart: batch labels, value axis, shading, levels, the values and their markers, the left-out batches ---------
-double chart_panel(Document& doc, const ControlChart& chart, const ChartNames& names, double y) {
+double chart_panel(Document& doc, const qc::ControlChart& chart, const ChartNames& names, double y) {
   const std::size_t n = chart.values.size(), batches = chart.batches();
   auto label_of = [&](std::size_t i) { return i < chart.labels.size() ? chart.labels[i] : fmt::format("#{}", i + 1); };
   const std::string& unit_symbol = names.unit_symbol;
@@ -295,7 +295,7 @@ double chart_panel(Document& doc, const ControlChart& chart, const ChartNames& n
   std::vector<std::string> all_labels(batches);
   for (std::size_t i = 0; i < n; ++i)
     if (chart.position(i) < batches) all_labels[chart.position(i)] = label_of(i);
-  for (const LeftOutBatch& b : chart.left_out)
+  for (const qc::LeftOutBatch& b : chart.left_out)
     if (b.position < batches) all_labels[b.position] = b.label;
   double widest_label = 0;
   for (const auto& l : all_labels) widest_label = std::max(widest_label, svg::text_width(axis_label(l), label_font));
@@ -405,7 +405,7 @@ double chart_panel(Document& doc, const ControlChart& chart, const ChartNames& n
     point_marker(doc, x_of(i), value.pixel(chart.values[i]), b, r, tip);
   }
   // Left-out batches: a hollow mark on the chart's bottom edge at their place, with the reason.
-  for (const LeftOutBatch& b : chart.left_out)
+  for (const qc::LeftOutBatch& b : chart.left_out)
     left_out_marker(doc, x_at(b.position), bottom - 8,
                     fmt::format("{}: not charted ({}); not in the limits", b.label, b.reason));
   doc.add("rect", {{"x", plot_left},
@@ -451,7 +451,7 @@ double chart_panel(Document& doc, const ControlChart& chart, const ChartNames& n
 
 }  // namespace
 
-std::string control_chart_svg(const ControlChart& chart, const std::string& title) {
+std::string control_chart_svg(const qc::ControlChart& chart, const std::string& title) {
   const ChartNames names = chart_names(chart, title);
   const ChartCounts counts = chart_counts(chart);
   Document doc(page_width, names.heading);
@@ -462,4 +462,4 @@ std::string control_chart_svg(const ControlChart& chart, const std::string& titl
   return svg::finish_with_caution(doc, bench_caution, y, page_width, page_margin, muted);
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

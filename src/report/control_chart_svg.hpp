@@ -17,13 +17,13 @@
 
 #include "src/qc/control_chart.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 /// Also drawn: the product's spec limits (dotted, USL/LSL) when the chart has them; the batches left out of the
 /// chart (ControlChart::left_out) as hollow grey triangles (class "left-out") on the chart's bottom edge at their
 /// place in the order, each named with its reason in a note under the header (class "left-out-note"); a log value
 /// axis when the chart was computed on a log scale, with the reason for the scale in the header.
 /// Non-finite values are left out of the line and the markers (the legend says how many).
-std::string control_chart_svg(const ControlChart& chart, const std::string& title);
+std::string control_chart_svg(const qc::ControlChart& chart, const std::string& title);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

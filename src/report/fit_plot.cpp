@@ -15,7 +15,7 @@
 #include "src/report/svg_document.hpp"
 #include "src/version.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 namespace {
 
@@ -53,7 +53,7 @@ constexpr Look looks[] = {{"#1f4e9c", Shape::Circle},  {"#b5451b", Shape::Square
 // One series as plotted.
 struct View {
   std::size_t index = 0;  // in the fit's series order (selects the fitted release time)
-  const FitSeries* series = nullptr;
+  const fit::FitSeries* series = nullptr;
   std::string name;
   Look look{};
   double sigma = 0;           // error bar half-length [m]; 0: none
@@ -61,7 +61,7 @@ struct View {
   double release = 0;         // fitted release time [s] on the series' clock (0 when not fitted)
   std::string unit;           // the reading unit as the readings file wrote it; empty when not known
   int rig = 0;                // Rig variant index: series of different rigs get panels of their own
-  PredictionBand curve;       // dense best fit and band; empty when there is no fit
+  fit::PredictionBand curve;       // dense best fit and band; empty when there is no fit
   bool has_curve = false, has_band = false;
   std::vector<double> fitted;  // best fit at the reading times; empty when not available
 };
@@ -104,24 +104,24 @@ std::string panel_title(const Panel& p) {
   return rig + " \u00b7 " + std::string(reading_name(p.reading));
 }
 
-PredictionBand band_or_failure(const FitResult& fit, const TestSetup& setup, const std::vector<double>& times,
+fit::PredictionBand band_or_failure(const fit::FitResult& fit, const TestSetup& setup, const std::vector<double>& times,
                                std::size_t index, int draws) {
   try {
-    return prediction_band(fit, setup, times, index, draws);
+    return fit::prediction_band(fit, setup, times, index, draws);
   } catch (const std::invalid_argument&) {  // an invalid material or rig: no curve, said in the legend
-    PredictionBand failed;
+    fit::PredictionBand failed;
     failed.ok = false;
     return failed;
   }
 }
 
-std::string display_name(const FitSeries& s, std::size_t index) {
+std::string display_name(const fit::FitSeries& s, std::size_t index) {
   if (s.label.empty()) return fmt::format("series {}", index + 1);
   const std::string file = std::filesystem::path(s.label).filename().string();
   return file.empty() ? s.label : file;
 }
 
-std::string parameter_text(const ParameterEstimate& p) {
+std::string parameter_text(const fit::ParameterEstimate& p) {
   std::string name = p.name;
   std::replace(name.begin(), name.end(), '_', ' ');
   const std::string unit = p.unit == "-" ? "" : " " + svg::unit_text(p.unit);
@@ -131,12 +131,12 @@ std::string parameter_text(const ParameterEstimate& p) {
 
 bool finite(double v) { return std::isfinite(v); }
 
-void verdict_badge(Document& doc, const Verdict& verdict, double y) {
-  const char* colour = verdict.status == Verdict::Status::Pass   ? good
-                       : verdict.status == Verdict::Status::Fail ? alarm
+void verdict_badge(Document& doc, const qc::Verdict& verdict, double y) {
+  const char* colour = verdict.status == qc::Verdict::Status::Pass   ? good
+                       : verdict.status == qc::Verdict::Status::Fail ? alarm
                                                                  : "#6b7280";
-  const char* word = verdict.status == Verdict::Status::Pass   ? "PASS"
-                     : verdict.status == Verdict::Status::Fail ? "FAIL"
+  const char* word = verdict.status == qc::Verdict::Status::Pass   ? "PASS"
+                     : verdict.status == qc::Verdict::Status::Fail ? "FAIL"
                                                                : "NO SPEC";
   const double x = page_width - page_margin - badge_width;
   doc.add_text("text",
@@ -159,7 +159,7 @@ void verdict_badge(Document& doc, const Verdict& verdict, double y) {
                word);
   double line = y + 62;
   const bool marginal =
-      std::any_of(verdict.checks.begin(), verdict.checks.end(), [](const SpecCheck& c) { return c.marginal; });
+      std::any_of(verdict.checks.begin(), verdict.checks.end(), [](const qc::SpecCheck& c) { return c.marginal; });
   if (marginal) {
     doc.add_text("text",
                  {{"x", x + badge_width / 2},
@@ -171,7 +171,7 @@ void verdict_badge(Document& doc, const Verdict& verdict, double y) {
                  "marginal");
     line += 14;
   }
-  for (const SpecCheck& c : verdict.checks) {
+  for (const qc::SpecCheck& c : verdict.checks) {
     doc.add_text("text",
                  {{"x", x + badge_width},
                   {"y", line},
@@ -255,10 +255,10 @@ double final_reading_panels(Document& doc, const FitOutcome& outcome, double y) 
 }
 
 // --- data: what each series shows -------------------------------------------------------------------------
-std::vector<View> series_views(const FitOutcome& outcome, const std::vector<FitSeries>& series, const FitResult* r) {
+std::vector<View> series_views(const FitOutcome& outcome, const std::vector<fit::FitSeries>& series, const fit::FitResult* r) {
   std::vector<View> views;
   for (std::size_t i = 0; i < series.size(); ++i) {
-    const FitSeries& s = series[i];
+    const fit::FitSeries& s = series[i];
     if (s.times.empty() || s.times.size() != s.values.size()) continue;
     View v;
     v.index = i;
@@ -280,7 +280,7 @@ std::vector<View> series_views(const FitOutcome& outcome, const std::vector<FitS
       v.curve = band_or_failure(*r, s.setup, dense, i, band_draws);
       v.has_curve = v.curve.ok && v.curve.reading.size() == dense.size();
       v.has_band = v.has_curve && v.curve.samples >= 10;
-      const PredictionBand at_readings = band_or_failure(*r, s.setup, s.times, i, 0);
+      const fit::PredictionBand at_readings = band_or_failure(*r, s.setup, s.times, i, 0);
       if (at_readings.ok && at_readings.reading.size() == s.times.size()) v.fitted = at_readings.reading;
     }
     views.push_back(std::move(v));
@@ -324,7 +324,7 @@ std::vector<Panel> reading_panels(const std::vector<View>& views) {
 }
 
 // --- header: sample, model, parameters, fit summary (or why there is no result), and the verdict badge -----------
-double header(Document& doc, const FitOutcome& outcome, const std::vector<View>& views, const FitResult* r,
+double header(Document& doc, const FitOutcome& outcome, const std::vector<View>& views, const fit::FitResult* r,
               const std::string& sample_id, const std::string& product) {
   const double text_width = page_width - 2 * page_margin - badge_width - 24;
   std::string title = "Sample " + sample_id;
@@ -364,7 +364,7 @@ double header(Document& doc, const FitOutcome& outcome, const std::vector<View>&
         page_margin, y, 13, alarm, "bold");
     for (const auto& c : outcome.candidates)
       y = svg::text_lines(doc,
-                          svg::wrap(fmt::format("{}: {}{}", law_name(c.law), fit_status_name(c.status),
+                          svg::wrap(fmt::format("{}: {}{}", law_name(c.law), fit::fit_status_name(c.status),
                                                 c.reason.empty() ? "" : " \u2014 " + c.reason),
                                     text_width, 12),
                           page_margin, y, 12, muted);
@@ -376,7 +376,7 @@ double header(Document& doc, const FitOutcome& outcome, const std::vector<View>&
 }
 
 // --- legend ---------------------------------------------------------------------------------------------------
-double legend(Document& doc, const std::vector<View>& views, const FitResult* r, double y) {
+double legend(Document& doc, const std::vector<View>& views, const fit::FitResult* r, double y) {
   struct Entry {
     enum Kind { Marker, Line, Band } kind;
     Look look;
@@ -464,7 +464,7 @@ double no_result_banner(Document& doc, double y) {
 
 // The readings of one panel: bands, fitted curves (clipped to the panel), the clock's start, readings with bars.
 double reading_panel(Document& doc, const Panel& p, std::size_t pi, std::size_t panel_count,
-                     const std::vector<View>& views, const FitResult* r, const LinearScale& time, double y) {
+                     const std::vector<View>& views, const fit::FitResult* r, const LinearScale& time, double y) {
   if (panel_count > 1) {
     doc.add_text("text",
                  {{"class", "panel-title"},
@@ -538,7 +538,7 @@ double reading_panel(Document& doc, const Panel& p, std::size_t pi, std::size_t 
                      {"stroke-dasharray", "2 3"}});
   for (std::size_t k : p.views) {
     const View& v = views[k];
-    const FitSeries& s = *v.series;
+    const fit::FitSeries& s = *v.series;
     for (std::size_t i = 0; i < s.times.size(); ++i) {
       const double x = time(s.times[i]), yv = value(s.values[i] * p.scale);
       if (v.sigma > 0) {
@@ -563,7 +563,7 @@ double reading_panel(Document& doc, const Panel& p, std::size_t pi, std::size_t 
 }
 
 // Residuals of one panel's series, on the same time axis (or a note why there are none).
-double residual_panel(Document& doc, const Panel& p, const std::vector<View>& views, const FitResult* r,
+double residual_panel(Document& doc, const Panel& p, const std::vector<View>& views, const fit::FitResult* r,
                       const LinearScale& time, double y) {
   // Residuals of this panel's series, on the same time axis.
   const bool any_residuals =
@@ -628,7 +628,7 @@ double residual_panel(Document& doc, const Panel& p, const std::vector<View>& vi
 }
 
 // Notes where there is nothing to plot.
-double nothing_to_plot_notes(Document& doc, const FitOutcome& outcome, const FitResult* r, bool no_panels, double y) {
+double nothing_to_plot_notes(Document& doc, const FitOutcome& outcome, const fit::FitResult* r, bool no_panels, double y) {
   const bool any_final = std::any_of(outcome.tests.begin(), outcome.tests.end(),
                                      [](const auto& t) { return t.final_reading.has_value(); });
   if (no_panels && !any_final) {
@@ -652,7 +652,7 @@ double nothing_to_plot_notes(Document& doc, const FitOutcome& outcome, const Fit
 }
 
 // --- footer: the result's warnings ------------------------------------------------------------------------------
-double warnings_footer(Document& doc, const FitResult* r, double y) {
+double warnings_footer(Document& doc, const fit::FitResult* r, double y) {
   const double footer_width = page_width - 2 * page_margin;
   if (r)
     for (const auto& w : r->warnings)
@@ -663,8 +663,8 @@ double warnings_footer(Document& doc, const FitResult* r, double y) {
 
 }  // namespace
 
-std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>& series) {
-  const FitResult* r = outcome.result();
+std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<fit::FitSeries>& series) {
+  const fit::FitResult* r = outcome.result();
   const std::string sample_id = outcome.tests.empty() ? std::string("(no sample id)") : outcome.tests.front().sample_id;
   const std::string product = outcome.tests.empty() ? std::string() : outcome.tests.front().product;
   const std::vector<View> views = series_views(outcome, series, r);
@@ -692,4 +692,4 @@ std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>
   return svg::finish_with_caution(doc, bench_caution, y, page_width, page_margin, muted);
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

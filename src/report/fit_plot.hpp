@@ -27,11 +27,11 @@
 #include "src/fit/fit_types.hpp"
 #include "src/report/fit_outcome.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 /// `series` are the series the fit saw, in the order of the fitted release times (FitResult::time_origins).
 /// Runs the forward model (about 200 solves a series for the band); never throws for numerical trouble (a band
 /// that cannot be computed is left out with a note).
-std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<FitSeries>& series);
+std::string fit_plot_svg(const FitOutcome& outcome, const std::vector<fit::FitSeries>& series);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

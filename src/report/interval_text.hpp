@@ -7,9 +7,9 @@
 
 #include "src/fit/fit_types.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
-inline std::string interval_text(const ParameterEstimate& p) {
+inline std::string interval_text(const fit::ParameterEstimate& p) {
   if (p.upper_only) return p.upper_open ? "undetermined" : fmt::format("below {:.4g}", p.upper);
   if (p.lower_open && p.upper_open) return "undetermined";
   if (p.lower_open) return fmt::format("below {:.4g}", p.upper);
@@ -19,4 +19,4 @@ inline std::string interval_text(const ParameterEstimate& p) {
   return s;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

@@ -11,7 +11,7 @@
 #include "src/report/fit_outcome.hpp"
 #include "src/report/svg_document.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 namespace {
 
@@ -60,14 +60,14 @@ std::string rig_text(const io::TestDescription& rig) {
 
 // Each material parameter with the 2.5-97.5% range of the draws the band is solved from (the fit's likelihood
 // draws, src/fit/likelihood_draws.hpp; without them, the log-space normal approximation predict samples instead).
-std::string material_text(const FitResult& fit, const std::string& source) {
+std::string material_text(const fit::FitResult& fit, const std::string& source) {
   std::string text =
       fmt::format("Material: {} from {}", law_name(fit.law), std::filesystem::path(source).filename().string());
   for (std::size_t i = 0; i < fit.names.size(); ++i) {
     const auto k = Eigen::Index(i);
     std::string name = fit.names[i];
     std::replace(name.begin(), name.end(), '_', ' ');
-    const std::string unit = parameter_unit(fit.names[i]) == "-" ? "" : " " + parameter_unit(fit.names[i]);
+    const std::string unit = fit::parameter_unit(fit.names[i]) == "-" ? "" : " " + fit::parameter_unit(fit.names[i]);
     text += fmt::format("{} {} {:.4g}{}", i == 0 ? ": " : "; ", name, std::exp(fit.estimate[k]), unit);
     double low = NAN, high = NAN;
     if (!fit.draws.empty()) {
@@ -95,7 +95,7 @@ std::string material_text(const FitResult& fit, const std::string& source) {
 
 std::string prediction_plot_svg(const PredictionReport& report) {
   const io::TestDescription& rig = *report.rig;
-  const FitResult& fit = *report.material;
+  const fit::FitResult& fit = *report.material;
   const std::string reading(reading_name(report.reading));
 
   // Readings of the same kind on this rig, if its description has them: the prediction's check.
@@ -105,8 +105,8 @@ std::string prediction_plot_svg(const PredictionReport& report) {
       measured = &s;
       break;
     }
-  const PredictionBand& curve = report.curve;
-  const PredictionBand& at = report.at_times;
+  const fit::PredictionBand& curve = report.curve;
+  const fit::PredictionBand& at = report.at_times;
   const bool has_curve = curve.ok && curve.reading.size() == curve.times.size() && !curve.times.empty();
   const bool has_band = has_curve && curve.samples >= 10;
 
@@ -289,4 +289,4 @@ std::string prediction_plot_svg(const PredictionReport& report) {
   return svg::finish_with_caution(doc, bench_caution, y, page_width, page_margin, muted);
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

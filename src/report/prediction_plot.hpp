@@ -20,19 +20,19 @@
 #include "src/fit/prediction_band.hpp"
 #include "src/io/description_file.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 struct PredictionReport {
-  const FitResult* material = nullptr;  ///< the stored fit (material parameters only, log-space covariance)
+  const fit::FitResult* material = nullptr;  ///< the stored fit (material parameters only, log-space covariance)
   std::string material_source;          ///< the result file, as the user named it
   const io::TestDescription* rig = nullptr;
   Reading reading = Reading::Front;  ///< what is predicted
-  PredictionBand curve;              ///< over a dense set of times, for the line and the band
-  PredictionBand at_times;           ///< at the requested times (the CSV's rows)
+  fit::PredictionBand curve;              ///< over a dense set of times, for the line and the band
+  fit::PredictionBand at_times;           ///< at the requested times (the CSV's rows)
   std::vector<std::string> notes;    ///< e.g. how many draws solved
 };
 
 /// Never throws for numerical trouble: non-finite values are left out of the drawing.
 std::string prediction_plot_svg(const PredictionReport& report);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

@@ -10,7 +10,7 @@
 #include "src/report/fit_outcome.hpp"
 #include "src/report/svg_document.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 namespace {
 
@@ -609,4 +609,4 @@ std::string reading_map_svg(const ReadingMap& map) {
   return svg::finish_with_caution(doc, bench_caution, F.bottom + 56, page_width, page_margin, muted);
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

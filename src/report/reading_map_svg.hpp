@@ -23,7 +23,7 @@
 #include <utility>
 #include <vector>
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 struct ReadingMap {
   std::string title;                         ///< e.g. "front at 30 s on channel, herschel-bulkley"
@@ -42,4 +42,4 @@ struct ReadingMap {
 /// has low > high. Non-finite readings are never printed: they mark failed cells.
 std::string reading_map_svg(const ReadingMap& map);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

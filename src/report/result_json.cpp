@@ -2,7 +2,7 @@
 
 #include "src/version.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 namespace {
 
@@ -51,7 +51,7 @@ nlohmann::json result_json(const FitOutcome& o) {
     j["rig"] = json::array();
     for (const auto& t : o.tests) j["rig"].push_back(rig_json(t));
   }
-  const FitResult* r = o.result();
+  const fit::FitResult* r = o.result();
   j["model"] = r ? json(std::string(law_name(r->law))) : json(nullptr);
   j["parameters"] = json::object();
   if (r) {
@@ -75,7 +75,7 @@ nlohmann::json result_json(const FitOutcome& o) {
     j["at_reference_temperature"] = ref;
   }
   json fit;
-  const FitResult* shown = r ? r : (o.candidates.empty() ? nullptr : &o.candidates.front());
+  const fit::FitResult* shown = r ? r : (o.candidates.empty() ? nullptr : &o.candidates.front());
   fit["converged"] = r != nullptr;
   if (shown) {
     if (r) {
@@ -124,9 +124,9 @@ nlohmann::json result_json(const FitOutcome& o) {
   int evaluations = 0;
   json candidates = json::array();
   for (std::size_t i = 0; i < o.candidates.size(); ++i) {
-    const FitResult& c = o.candidates[i];
+    const fit::FitResult& c = o.candidates[i];
     evaluations += c.evaluations;
-    json e = {{"model", std::string(law_name(c.law))}, {"status", std::string(fit_status_name(c.status))}};
+    json e = {{"model", std::string(law_name(c.law))}, {"status", std::string(fit::fit_status_name(c.status))}};
     e["aicc"] = c.converged() && std::isfinite(c.aicc) ? json(c.aicc) : json(nullptr);
     if (i < o.weights.size()) e["akaike_weight"] = o.weights[i];
     if (!c.reason.empty()) e["reason"] = c.reason;
@@ -139,14 +139,14 @@ nlohmann::json result_json(const FitOutcome& o) {
     fit["best_description"] = std::string(law_name(o.candidates[std::size_t(o.best_description)].law));
   if (r) {
     json quality = json::array();
-    for (FitQuality q : r->quality) quality.push_back(std::string(fit_quality_name(q)));
+    for (fit::FitQuality q : r->quality) quality.push_back(std::string(fit_quality_name(q)));
     fit["quality"] = quality;
     if (r->prior)
       fit["prior"] = {{"parameter", "flow_index"}, {"typical", r->prior->typical}, {"spread", r->prior->spread},
                       {"source", r->prior->source}};
     if (!r->prior_note.empty()) fit["prior_note"] = r->prior_note;
     if (r->without_prior) {
-      const ParameterEstimate& n = *r->without_prior;
+      const fit::ParameterEstimate& n = *r->without_prior;
       fit["flow_index_without_prior"] = {{"value", n.value}, {"ci95", {n.lower, n.upper}},
                                          {"determined", n.identifiable && !n.lower_open && !n.upper_open}};
     }
@@ -169,10 +169,10 @@ nlohmann::json result_json(const FitOutcome& o) {
     if (!c.findings.empty()) e["findings"] = c.findings;
     checks.push_back(e);
   }
-  j["verdict"] = {{"status", std::string(verdict_status_name(o.verdict.status))}, {"checks", checks}};
+  j["verdict"] = {{"status", std::string(qc::verdict_status_name(o.verdict.status))}, {"checks", checks}};
   j["caution"] = bench_caution;
   j["software"] = {{"name", std::string(software_name)}, {"version", std::string(software_version())}};
   return j;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

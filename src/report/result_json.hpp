@@ -5,8 +5,8 @@
 
 #include "src/report/fit_outcome.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 nlohmann::json result_json(const FitOutcome& outcome);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

@@ -6,7 +6,7 @@
 
 #include "src/fit/parameter_names.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 namespace {
 // RFC 4180 quoting when a cell holds a comma, quote or line break.
@@ -22,24 +22,24 @@ std::string cell(const std::string& text) {
 std::string number(double v) { return std::isfinite(v) ? fmt::format("{}", v) : std::string(); }
 
 // One column triple per material parameter, in the table's order (src/fit/parameter_names.hpp).
-const auto& parameter_columns = material_parameters();
+const auto& parameter_columns = fit::material_parameters();
 }  // namespace
 
 std::string summary_csv(const std::vector<FitOutcome>& outcomes) {
   std::string s = "sample,product,rig,model,status";
-  for (const MaterialParameter& c : parameter_columns)
+  for (const fit::MaterialParameter& c : parameter_columns)
     s += fmt::format(",{0} [{1}],{0} low [{1}],{0} high [{1}]", c.name, c.unit);
   s += ",rmse [mm],points,verdict,warnings\n";
   for (const FitOutcome& o : outcomes) {
     const auto& t = o.tests.front();
     std::string rigs;
     for (const auto& d : o.tests) rigs += (rigs.empty() ? "" : "+") + std::string(io::rig_kind_name(d.setup.rig));
-    const FitResult* r = o.result();
+    const fit::FitResult* r = o.result();
     s += cell(t.sample_id) + "," + cell(t.product) + "," + rigs + "," +
          (r ? std::string(law_name(r->law)) : std::string()) + "," +
-         (r ? std::string("ok") : std::string(o.candidates.empty() ? "failed" : fit_status_name(o.candidates.front().status)));
-    for (const MaterialParameter& c : parameter_columns) {
-      const ParameterEstimate* found = nullptr;
+         (r ? std::string("ok") : std::string(o.candidates.empty() ? "failed" : fit::fit_status_name(o.candidates.front().status)));
+    for (const fit::MaterialParameter& c : parameter_columns) {
+      const fit::ParameterEstimate* found = nullptr;
       if (r)
         for (const auto& p : r->parameters)
           if (p.name == c.name) found = &p;
@@ -50,9 +50,9 @@ std::string summary_csv(const std::vector<FitOutcome>& outcomes) {
     if (r)
       for (const auto& w : r->warnings) warnings += (warnings.empty() ? "" : "; ") + w;
     s += r ? fmt::format(",{},{}", number(r->rmse * 1e3), r->points) : std::string(",,");
-    s += "," + std::string(verdict_status_name(o.verdict.status)) + "," + cell(warnings) + "\n";
+    s += "," + std::string(qc::verdict_status_name(o.verdict.status)) + "," + cell(warnings) + "\n";
   }
   return s;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

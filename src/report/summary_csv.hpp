@@ -7,8 +7,8 @@
 
 #include "src/report/fit_outcome.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 std::string summary_csv(const std::vector<FitOutcome>& outcomes);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

@@ -7,7 +7,7 @@
 #include <filesystem>
 #include "src/report/interval_text.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 namespace {
 
@@ -23,7 +23,7 @@ std::string padded(const std::string& text, std::size_t width, bool right) {
   return right ? fill + text : text + fill;
 }
 
-std::vector<std::string> row_of(const std::string& name, const ParameterEstimate& p) {
+std::vector<std::string> row_of(const std::string& name, const fit::ParameterEstimate& p) {
   return {name, fmt::format("{:.4g}", p.value), interval_text(p), p.unit};
 }
 
@@ -62,10 +62,10 @@ std::vector<std::string> time_origin_labels(const FitOutcome& o) {
       const std::string name = std::filesystem::path(series.source).filename().string();
       files.push_back(name.empty() ? series.source : name);
     }
-  const FitResult* r = o.result();
+  const fit::FitResult* r = o.result();
   const std::size_t origins =
       r ? std::size_t(std::count_if(r->parameters.begin(), r->parameters.end(),
-                                    [](const ParameterEstimate& p) { return p.name == "time_origin"; }))
+                                    [](const fit::ParameterEstimate& p) { return p.name == "time_origin"; }))
         : 0;
   std::vector<std::string> labels;
   for (std::size_t k = 0; k < origins; ++k)
@@ -89,11 +89,11 @@ std::string summary_table(const FitOutcome& o) {
   }
   s += fmt::format(": {} test{} on {}, {} reading{}\n", o.tests.size(), o.tests.size() > 1 ? "s" : "", rigs, points,
                    points == 1 ? "" : "s");
-  const FitResult* r = o.result();
+  const fit::FitResult* r = o.result();
   if (!r) {
     s += "  NO RESULT: the fit failed; no parameters are reported.\n";
     for (const auto& c : o.candidates)
-      s += fmt::format("    {:<17} {}{}\n", law_name(c.law), fit_status_name(c.status),
+      s += fmt::format("    {:<17} {}{}\n", law_name(c.law), fit::fit_status_name(c.status),
                        c.reason.empty() ? "" : ": " + c.reason);
   } else {
     s += fmt::format("  model {}", law_name(r->law));
@@ -120,7 +120,7 @@ std::string summary_table(const FitOutcome& o) {
       s += "; AICc";
       for (const auto& c : o.candidates)
         s += c.converged() ? fmt::format(" {} {:.1f}", law_name(c.law), c.aicc)
-                           : fmt::format(" {} ({})", law_name(c.law), fit_status_name(c.status));
+                           : fmt::format(" {} ({})", law_name(c.law), fit::fit_status_name(c.status));
     }
     s += "\n";
     for (const auto& w : r->warnings) s += fmt::format("  warning: {}\n", w);
@@ -132,8 +132,8 @@ std::string summary_table(const FitOutcome& o) {
     for (const auto& p : o.reference_parameters) rows.push_back(row_of(p.name, p));
     s += parameter_rows(rows);
   }
-  if (o.verdict.status != Verdict::Status::None) {
-    s += fmt::format("  verdict: {}\n", o.verdict.status == Verdict::Status::Pass ? "PASS" : "FAIL");
+  if (o.verdict.status != qc::Verdict::Status::None) {
+    s += fmt::format("  verdict: {}\n", o.verdict.status == qc::Verdict::Status::Pass ? "PASS" : "FAIL");
     for (const auto& c : o.verdict.checks) {
       if (c.parameter == "fit_quality") {
         std::string findings;
@@ -153,4 +153,4 @@ std::string summary_table(const FitOutcome& o) {
   return s;
 }
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

@@ -11,7 +11,7 @@
 
 #include "src/report/fit_outcome.hpp"
 
-namespace spreadfit {
+namespace spreadfit::report {
 
 std::string summary_table(const FitOutcome& outcome);
 
@@ -24,4 +24,4 @@ std::string parameter_rows(const std::vector<std::vector<std::string>>& rows, st
 /// file name of the series it belongs to, when the tests have several series; "time_origin" alone otherwise.
 std::vector<std::string> time_origin_labels(const FitOutcome& outcome);
 
-}  // namespace spreadfit
+}  // namespace spreadfit::report

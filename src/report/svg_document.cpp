@@ -10,7 +10,7 @@
 
 #include "src/version.hpp"
 
-namespace spreadfit::svg {
+namespace spreadfit::report::svg {
 
 namespace {
 
@@ -488,4 +488,4 @@ std::string finish_with_caution(Document& doc, std::string_view caution, double 
   return doc.finish(y + 28);
 }
 
-}  // namespace spreadfit::svg
+}  // namespace spreadfit::report::svg

@@ -9,7 +9,7 @@
 #include <utility>
 #include <vector>
 
-namespace spreadfit::svg {
+namespace spreadfit::report::svg {
 
 /// `text` made safe as XML character data and as a quoted attribute value: & < > " ' become entity references;
 /// control characters XML 1.0 does not allow (all below U+0020 except tab, line feed and carriage return) and
@@ -179,4 +179,4 @@ double text_width(std::string_view text, double font_size);
 /// line of its own).
 std::vector<std::string> wrap(std::string_view text, double max_width, double font_size);
 
-}  // namespace spreadfit::svg
+}  // namespace spreadfit::report::svg

@@ -171,7 +171,7 @@ int main(int argc, char** argv) {
 
   std::printf("\nFits of a 30-point curve with 0.5 mm reading noise (mean over 8 noise seeds)\n");
   std::printf("%-9s %-17s %-8s %10s %8s\n", "rig", "true law", "fit", "time [ms]", "solves");
-  FitResult plate_fit;
+  fit::FitResult plate_fit;
   // Mean over eight noise seeds: the number of solves a fit needs depends on where the noise puts the optimum
   // (near a bound of the flow index, a profile may need several refits), so one seed can mislead.
   constexpr unsigned seeds = 8;
@@ -181,11 +181,11 @@ int main(int argc, char** argv) {
     int hb_solves = 0, auto_solves = 0, point_solves = 0;
     // The point fit (quadratic intervals, no profiles, no likelihood draws): like for like with a plain
     // least-squares fit (tests/reference/bench_scipy.py prints the SciPy peer beside it).
-    FitOptions point;
+    fit::FitOptions point;
     point.profile_intervals = false;
     point.likelihood_draws = 0;
     for (unsigned seed = 1; seed <= seeds; ++seed) {
-      FitSeries s;
+      fit::FitSeries s;
       s.setup = r.setup;
       for (int i = 1; i <= 30; ++i) s.times.push_back(2.0 * i);
       std::vector<double> shifted;
@@ -195,10 +195,10 @@ int main(int argc, char** argv) {
       std::normal_distribution<double> noise(0, 5e-4);
       for (double& v : s.values) v += noise(rng);
       s.sigma = 5e-4;
-      hb_ms += median_ms([&] { hb_solves += fit_law({s}, Law::HerschelBulkley).evaluations; }, 1);
-      point_ms += median_ms([&] { point_solves += fit_law({s}, Law::HerschelBulkley, point).evaluations; }, 1);
-      ModelChoice c;
-      auto_ms += median_ms([&] { c = fit_auto({s}); }, 1);
+      hb_ms += median_ms([&] { hb_solves += fit::fit_law({s}, Law::HerschelBulkley).evaluations; }, 1);
+      point_ms += median_ms([&] { point_solves += fit::fit_law({s}, Law::HerschelBulkley, point).evaluations; }, 1);
+      fit::ModelChoice c;
+      auto_ms += median_ms([&] { c = fit::fit_auto({s}); }, 1);
       for (const auto& f : c.candidates) auto_solves += f.evaluations;
       if (seed == 5 && r.setup.reading == Reading::Radius && c.chosen >= 0)
         plate_fit = c.candidates[std::size_t(c.chosen)];
@@ -217,26 +217,26 @@ int main(int argc, char** argv) {
   {
     std::vector<double> every_2s;
     for (int i = 1; i <= 30; ++i) every_2s.push_back(2.0 * i);
-    const FitResult material = material_only(plate_fit);
-    PredictionBand band;
-    double ms = median_ms([&] { band = prediction_band(material, channel(), every_2s, 0, 200); }, quick ? 3 : 5);
+    const fit::FitResult material = material_only(plate_fit);
+    fit::PredictionBand band;
+    double ms = median_ms([&] { band = fit::prediction_band(material, channel(), every_2s, 0, 200); }, quick ? 3 : 5);
     std::printf("  band, plate fit (%s) on the channel, 200 draws x 30 times: %8.1f ms (%d draws solved)\n",
                 std::string(law_name(material.law)).c_str(), ms, band.samples);
-    ms = median_ms([&] { band = prediction_band(material, plate(), every_2s, 0, 200); }, quick ? 3 : 5);
+    ms = median_ms([&] { band = fit::prediction_band(material, plate(), every_2s, 0, 200); }, quick ? 3 : 5);
     std::printf("  band, plate fit (%s) on the plate,   200 draws x 30 times: %8.1f ms (%d draws solved)\n",
                 std::string(law_name(material.law)).c_str(), ms, band.samples);
     std::vector<Material> grid;
     for (int j = 0; j < 21; ++j)
       for (int i = 0; i < 21; ++i)
         grid.push_back({10 * std::pow(5.0, i / 20.0), 1 * std::pow(20.0, j / 20.0), 0.45});
-    ms = median_ms([&] { (void)readings_at(channel(), grid, 30); }, quick ? 3 : 5);
+    ms = median_ms([&] { (void)qc::readings_at(channel(), grid, 30); }, quick ? 3 : 5);
     std::printf("  map, channel front at 30 s, 21 x 21 grid:            %8.1f ms\n", ms);
     std::vector<Material> others;
     for (int j = 0; j < 5; ++j)
       for (int i = 0; i < 5; ++i) others.push_back({0, 2 * std::pow(6.0, i / 4.0), 0.3 + 0.3 * j / 4.0});
-    ParameterLimits limits;
+    qc::ParameterLimits limits;
     ms = median_ms([&] {
-      limits = solve_parameter_limits(channel(), 30, others, {"yield_stress", 5, 200, true, 17}, 0.055, 0.08);
+      limits = qc::solve_parameter_limits(channel(), 30, others, {"yield_stress", 5, 200, true, 17}, 0.055, 0.08);
     }, quick ? 3 : 5);
     std::printf("  yield-stress limits from channel limits, 25 combos:  %8.1f ms (%d forward solves)\n", ms,
                 limits.solves);

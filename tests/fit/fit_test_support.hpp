@@ -36,14 +36,14 @@ inline TestSetup squeeze_setup() {
 
 /// Readings every `step` seconds up to `end`, released at t0, with noise of standard deviation sigma
 /// (src/fit/synthetic_readings.hpp).
-inline FitSeries synthetic(const TestSetup& setup, const Material& m, double sigma, unsigned seed, double t0 = 0.3,
+inline fit::FitSeries synthetic(const TestSetup& setup, const Material& m, double sigma, unsigned seed, double t0 = 0.3,
                            double step = 2.0, double end = 60.0) {
   std::vector<double> times;
   for (double t = step; t <= end + 1e-9; t += step) times.push_back(t);
-  return synthetic_readings(setup, m, times, sigma, seed, t0);
+  return fit::synthetic_readings(setup, m, times, sigma, seed, t0);
 }
 
-inline const ParameterEstimate& estimate(const FitResult& r, const std::string& name) {
+inline const fit::ParameterEstimate& estimate(const fit::FitResult& r, const std::string& name) {
   for (const auto& p : r.parameters)
     if (p.name == name) return p;
   throw std::runtime_error("no parameter " + name);

@@ -23,7 +23,7 @@ struct Coverage {
 Coverage run(const TestSetup& setup, Law law, const Material& truth, double sigma, int trials) {
   Coverage c;
   for (int k = 0; k < trials; ++k) {
-    const FitResult r = fit_law({synthetic(setup, truth, sigma, 1000u + unsigned(k))}, law);
+    const fit::FitResult r = fit::fit_law({synthetic(setup, truth, sigma, 1000u + unsigned(k))}, law);
     if (!r.converged()) {
       ++c.failed;
       continue;

@@ -30,7 +30,7 @@ TEST_CASE("the Fisher-information interval of the yield stress matches the sprea
   // F^-1. Twenty noisy refits (fixed seeds) of a Bingham plate test: the log-width of the empirical 95% range
   // (2 x 1.96 x the sample standard deviation of ln tau) within a factor 1.6 of the planned one.
   const Material truth{20, 5.0, 1.0};
-  const DesignCheck check = check_design(plate_setup(), Law::Bingham, truth, every(4, 120), 5e-4, 20, 300);
+  const fit::DesignCheck check = fit::check_design(plate_setup(), Law::Bingham, truth, every(4, 120), 5e-4, 20, 300);
   REQUIRE(check.planned_ratio.size() == 2);
   REQUIRE(check.converged >= 18);
   for (std::size_t i = 0; i < check.names.size(); ++i)
@@ -48,8 +48,8 @@ TEST_CASE("a longer plate test pins the yield stress down better than a short on
   // Common practice, no source: the yield stress shows in the approach to arrest, so readings must continue
   // until the sample (nearly) stops.
   const Material truth{20, 5.0, 1.0};
-  const DesignEstimate a = expected_intervals(plate_setup(), Law::Bingham, truth, every(2, 20), 5e-4);
-  const DesignEstimate b = expected_intervals(plate_setup(), Law::Bingham, truth, every(2, 180), 5e-4);
+  const fit::DesignEstimate a = fit::expected_intervals(plate_setup(), Law::Bingham, truth, every(2, 20), 5e-4);
+  const fit::DesignEstimate b = fit::expected_intervals(plate_setup(), Law::Bingham, truth, every(2, 180), 5e-4);
   REQUIRE(a.ok);
   REQUIRE(b.ok);
   CHECK(b.interval_ratio[0] < a.interval_ratio[0]);
@@ -61,8 +61,8 @@ TEST_CASE("over a range of yield stresses, the longer plate test wins on the wor
   // 20 s test leaves the lower yield stresses of the range unresolved where a 180 s test does not.
   std::vector<Material> guesses;
   for (double tau : {5.0, 10.0, 20.0, 40.0}) guesses.push_back({tau, 5.0, 1.0});
-  const WorstCaseEstimate short_test = worst_case_intervals(plate_setup(), Law::Bingham, guesses, every(2, 20), 5e-4);
-  const WorstCaseEstimate long_test = worst_case_intervals(plate_setup(), Law::Bingham, guesses, every(2, 180), 5e-4);
+  const fit::WorstCaseEstimate short_test = fit::worst_case_intervals(plate_setup(), Law::Bingham, guesses, every(2, 20), 5e-4);
+  const fit::WorstCaseEstimate long_test = fit::worst_case_intervals(plate_setup(), Law::Bingham, guesses, every(2, 180), 5e-4);
   REQUIRE(short_test.ok());
   REQUIRE(long_test.ok());
   INFO("worst yield-stress ratio: 20 s " << short_test.worst_ratio[0] << " (guess " << short_test.worst_guess[0]
@@ -82,13 +82,13 @@ TEST_CASE("the worst case over a range is the largest single-guess ratio, and it
   for (double tau : {5.0, 20.0})
     for (double k : {2.0, 8.0}) guesses.push_back({tau, k, 0.6});
   const std::vector<double> times = every(5, 120);
-  const WorstCaseEstimate w = worst_case_intervals(plate_setup(), Law::HerschelBulkley, guesses, times, 5e-4);
+  const fit::WorstCaseEstimate w = fit::worst_case_intervals(plate_setup(), Law::HerschelBulkley, guesses, times, 5e-4);
   REQUIRE(w.ok());
   REQUIRE(w.guesses.size() == guesses.size());
   for (std::size_t p = 0; p < w.names.size(); ++p) {
     for (std::size_t g = 0; g < guesses.size(); ++g) {
       // The same computation again for one guess: the range evaluation adds nothing of its own.
-      const DesignEstimate single = expected_intervals(plate_setup(), Law::HerschelBulkley, guesses[g], times, 5e-4);
+      const fit::DesignEstimate single = fit::expected_intervals(plate_setup(), Law::HerschelBulkley, guesses[g], times, 5e-4);
       REQUIRE(single.ok);
       CHECK(single.interval_ratio[p] == w.guesses[g].interval_ratio[p]);
       CHECK(single.interval_ratio[p] <= w.worst_ratio[p]);
@@ -109,7 +109,7 @@ TEST_CASE("a plate test that reaches arrest gives no wider a yield-stress interv
   const double rho_g = setup.density * setup.gravity;
   for (double tau : {5.0, 10.0}) {
     const Material guess{tau, 1.0, 1.0};
-    const DesignEstimate e = expected_intervals(setup, Law::Bingham, guess, every(10, 600), sigma);
+    const fit::DesignEstimate e = fit::expected_intervals(setup, Law::Bingham, guess, every(10, 600), sigma);
     REQUIRE(e.ok);
     const double arrest_diameter =
         2 *
@@ -140,7 +140,7 @@ TEST_CASE("a guess whose forward solve fails is reported, not thrown") {
   REQUIRE(costly > 3 * cheap);
   ForwardOptions bounded;
   bounded.max_steps = 2 * cheap;
-  const WorstCaseEstimate w = worst_case_intervals(plate_setup(), Law::PowerLaw, guesses, times, 5e-4, true, bounded);
+  const fit::WorstCaseEstimate w = fit::worst_case_intervals(plate_setup(), Law::PowerLaw, guesses, times, 5e-4, true, bounded);
   CHECK(w.failed == 1);
   CHECK(w.first_failure == 1);
   CHECK_FALSE(w.ok());

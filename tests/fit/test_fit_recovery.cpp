@@ -26,8 +26,8 @@ TEST_CASE("noise-free readings give back the parameters within 1%") {
       {"squeeze herschel-bulkley", squeeze_setup(), Law::HerschelBulkley, {60, 30.0, 0.5}},
   };
   for (const Case& c : cases) {
-    const FitResult r = fit_law({synthetic(c.setup, c.truth, 0.0, 1)}, c.law);
-    INFO(std::string(c.name) << ": " << fit_status_name(r.status) << " " << r.reason << ", " << r.evaluations << " solves");
+    const fit::FitResult r = fit::fit_law({synthetic(c.setup, c.truth, 0.0, 1)}, c.law);
+    INFO(std::string(c.name) << ": " << fit::fit_status_name(r.status) << " " << r.reason << ", " << r.evaluations << " solves");
     REQUIRE(r.converged());
     CHECK(r.material.consistency == doctest::Approx(c.truth.consistency).epsilon(0.01));
     CHECK(r.material.flow_index == doctest::Approx(c.truth.flow_index).epsilon(0.01));
@@ -51,8 +51,8 @@ TEST_CASE("with reading noise the 95% intervals contain the truth") {
   };
   for (const Case& c : cases) {
     for (unsigned seed : {11u, 12u}) {
-      const FitResult r = fit_law({synthetic(c.setup, c.truth, 5e-4, seed)}, c.law);
-      INFO(std::string(c.name) << " seed " << seed << ": " << fit_status_name(r.status) << " " << r.reason);
+      const fit::FitResult r = fit::fit_law({synthetic(c.setup, c.truth, 5e-4, seed)}, c.law);
+      INFO(std::string(c.name) << " seed " << seed << ": " << fit::fit_status_name(r.status) << " " << r.reason);
       REQUIRE(r.converged());
       for (const auto& p : r.parameters) {
         const double truth = p.name == "yield_stress"  ? c.truth.yield_stress
@@ -69,18 +69,18 @@ TEST_CASE("with reading noise the 95% intervals contain the truth") {
 
 TEST_CASE("model choice: a syrup is not Herschel-Bulkley and a ketchup is not Newtonian") {
   SUBCASE("Newtonian syrup on the channel: best described and reported as Newtonian") {
-    const ModelChoice c = fit_auto({synthetic(channel_setup(), {0, 5.0, 1.0}, 5e-4, 21)});
+    const fit::ModelChoice c = fit::fit_auto({synthetic(channel_setup(), {0, 5.0, 1.0}, 5e-4, 21)});
     REQUIRE(c.chosen >= 0);
     INFO(c.explanation);
     CHECK(c.candidates[std::size_t(c.best_description)].law != Law::HerschelBulkley);
     CHECK(c.candidates[std::size_t(c.best_description)].law != Law::Bingham);
     CHECK(c.candidates[std::size_t(c.chosen)].law == Law::Newtonian);
-    const ParameterEstimate& mu = estimate(c.candidates[std::size_t(c.chosen)], "viscosity");
+    const fit::ParameterEstimate& mu = estimate(c.candidates[std::size_t(c.chosen)], "viscosity");
     CHECK(mu.lower <= 5.0);
     CHECK(mu.upper >= 5.0);
   }
   SUBCASE("shear-thinning dressing on the plate") {
-    const ModelChoice c = fit_auto({synthetic(plate_setup(), {0, 10.0, 0.4}, 5e-4, 23)});
+    const fit::ModelChoice c = fit::fit_auto({synthetic(plate_setup(), {0, 10.0, 0.4}, 5e-4, 23)});
     REQUIRE(c.chosen >= 0);
     INFO(c.explanation);
     CHECK(c.candidates[std::size_t(c.best_description)].law != Law::Newtonian);
@@ -89,15 +89,15 @@ TEST_CASE("model choice: a syrup is not Herschel-Bulkley and a ketchup is not Ne
     // Whatever law AICc names, the reported set is Herschel-Bulkley's: yield stress, consistency and flow index,
     // each with its profile-likelihood interval, and the yield stress's interval holds the truth (a Bingham
     // conditional interval would not: 5-15% high on such pastes).
-    const ModelChoice c = fit_auto({synthetic(channel_setup(), {25, 8.0, 0.4}, 5e-4, 22)});
+    const fit::ModelChoice c = fit::fit_auto({synthetic(channel_setup(), {25, 8.0, 0.4}, 5e-4, 22)});
     REQUIRE(c.chosen >= 0);
     INFO(c.explanation);
     CHECK(c.candidates[std::size_t(c.best_description)].law != Law::Newtonian);
     CHECK(c.candidates[std::size_t(c.best_description)].law != Law::PowerLaw);
-    const FitResult& reported = c.candidates[std::size_t(c.chosen)];
+    const fit::FitResult& reported = c.candidates[std::size_t(c.chosen)];
     CHECK(reported.law == Law::HerschelBulkley);
     for (const char* name : {"yield_stress", "consistency", "flow_index"}) CHECK(estimate(reported, name).profiled);
-    const ParameterEstimate& tau = estimate(reported, "yield_stress");
+    const fit::ParameterEstimate& tau = estimate(reported, "yield_stress");
     CHECK(tau.lower <= 25.0);
     CHECK(tau.upper >= 25.0);
     double weights = 0;
@@ -108,10 +108,10 @@ TEST_CASE("model choice: a syrup is not Herschel-Bulkley and a ketchup is not Ne
 
 TEST_CASE("a sample still spreading at the end gives only an upper bound on the yield stress") {
   // A power-law material has no yield stress: a Bingham fit must not invent one.
-  const FitResult r = fit_law({synthetic(plate_setup(), {0, 10.0, 1.0}, 5e-4, 31)}, Law::Bingham);
-  INFO(fit_status_name(r.status) << ": " << r.reason);
+  const fit::FitResult r = fit::fit_law({synthetic(plate_setup(), {0, 10.0, 1.0}, 5e-4, 31)}, Law::Bingham);
+  INFO(fit::fit_status_name(r.status) << ": " << r.reason);
   REQUIRE(r.converged());
-  const ParameterEstimate& tau = estimate(r, "yield_stress");
+  const fit::ParameterEstimate& tau = estimate(r, "yield_stress");
   CHECK(tau.upper_only);
   CHECK(tau.lower == 0.0);
   CHECK(tau.upper > 0.0);
@@ -120,35 +120,35 @@ TEST_CASE("a sample still spreading at the end gives only an upper bound on the 
 }
 
 TEST_CASE("readings that never move are not identifiable") {
-  FitSeries s = synthetic(channel_setup(), {0, 5.0, 1.0}, 0.0, 1);
+  fit::FitSeries s = synthetic(channel_setup(), {0, 5.0, 1.0}, 0.0, 1);
   for (double& v : s.values) v = 0.0;
   s.sigma = 1e-3;
-  const FitResult r = fit_law({s}, Law::Newtonian);
+  const fit::FitResult r = fit::fit_law({s}, Law::Newtonian);
   CHECK_FALSE(r.converged());
   CHECK_FALSE(r.reason.empty());
 }
 
 TEST_CASE("too few readings are reported, not fitted") {
-  FitSeries s = synthetic(plate_setup(), {15, 8.0, 0.45}, 0.0, 1);
+  fit::FitSeries s = synthetic(plate_setup(), {15, 8.0, 0.45}, 0.0, 1);
   s.times.resize(3);
   s.values.resize(3);
-  const FitResult r = fit_law({s}, Law::HerschelBulkley);
-  CHECK(r.status == FitStatus::InsufficientData);
+  const fit::FitResult r = fit::fit_law({s}, Law::HerschelBulkley);
+  CHECK(r.status == fit::FitStatus::InsufficientData);
 }
 
 TEST_CASE("replicates fit jointly to one material") {
   // Two channel runs of one Bingham batch, each with its own release time.
   const Material truth{30, 2.0, 1.0};
-  const FitResult r = fit_law(
+  const fit::FitResult r = fit::fit_law(
       {synthetic(channel_setup(), truth, 5e-4, 41, 0.3), synthetic(channel_setup(), truth, 5e-4, 42, 0.8)},
       Law::Bingham);
-  INFO(fit_status_name(r.status) << ": " << r.reason);
+  INFO(fit::fit_status_name(r.status) << ": " << r.reason);
   REQUIRE(r.converged());
   REQUIRE(r.time_origins.size() == 2);
   CHECK(estimate(r, "yield_stress").lower <= 30.0);
   CHECK(estimate(r, "yield_stress").upper >= 30.0);
   // Two runs pin the yield stress down better than one.
-  const FitResult one = fit_law({synthetic(channel_setup(), truth, 5e-4, 41, 0.3)}, Law::Bingham);
+  const fit::FitResult one = fit::fit_law({synthetic(channel_setup(), truth, 5e-4, 41, 0.3)}, Law::Bingham);
   REQUIRE(one.converged());
   CHECK(estimate(r, "yield_stress").upper / estimate(r, "yield_stress").lower <
         estimate(one, "yield_stress").upper / estimate(one, "yield_stress").lower);
@@ -160,7 +160,7 @@ TEST_CASE("a single arrested reading gives the yield stress of the plastic limit
   TestSetup plate = plate_setup();
   plate.reading = Reading::Radius;
   const double radius = predict_readings(plate, {30, 5.0, 1.0}, {1e8}).readings[0];
-  const FitResult r = fit_final_reading(plate, radius, 1e-3);
+  const fit::FitResult r = fit::fit_final_reading(plate, radius, 1e-3);
   REQUIRE(r.converged());
   CHECK(r.material.yield_stress == doctest::Approx(30).epsilon(0.02));
   CHECK(estimate(r, "yield_stress").lower < 30);
@@ -171,10 +171,10 @@ TEST_CASE("a plate test and a squeeze test of one batch fit jointly") {
   // Different rigs load the material differently (gravity spreading vs a dead load), which separates the
   // Herschel-Bulkley parameters better than either test alone.
   const Material truth{40, 15.0, 0.5};
-  const FitSeries plate = synthetic(plate_setup(), truth, 5e-4, 51, 0.3, 4.0, 120.0);
-  const FitSeries squeeze = synthetic(squeeze_setup(), truth, 2e-4, 52, 0.2, 10.0, 300.0);
-  const FitResult joint = fit_law({plate, squeeze}, Law::HerschelBulkley);
-  INFO(fit_status_name(joint.status) << ": " << joint.reason);
+  const fit::FitSeries plate = synthetic(plate_setup(), truth, 5e-4, 51, 0.3, 4.0, 120.0);
+  const fit::FitSeries squeeze = synthetic(squeeze_setup(), truth, 2e-4, 52, 0.2, 10.0, 300.0);
+  const fit::FitResult joint = fit::fit_law({plate, squeeze}, Law::HerschelBulkley);
+  INFO(fit::fit_status_name(joint.status) << ": " << joint.reason);
   REQUIRE(joint.converged());
   for (const auto& p : joint.parameters) {
     if (p.name == "time_origin") continue;

@@ -19,10 +19,10 @@ TEST_CASE("the learned prior follows DerSimonian & Laird's random-effects estima
   // Hand-computed from DerSimonian & Laird (1986), eq. 3-4: fixed-effect mean 0.40, Q = 10, sum w = 2000,
   // sum w^2 = 800000, tau^2 = (10 - 4) / (2000 - 400) = 0.00375; random-effects weights 1 / 0.00625 each, mean
   // 0.40, predictive spread sqrt(0.00375 + 0.00625 / 5) = sqrt(0.005) = 0.070711.
-  std::vector<BatchFlowIndex> batches;
+  std::vector<fit::BatchFlowIndex> batches;
   for (double n : {0.30, 0.40, 0.50, 0.35, 0.45})
     batches.push_back({n, n - 1.959964 * 0.05, n + 1.959964 * 0.05, true});
-  const auto prior = learn_flow_index_prior(batches);
+  const auto prior = fit::learn_flow_index_prior(batches);
   REQUIRE(prior);
   CHECK(prior->typical == doctest::Approx(0.40).epsilon(1e-9));
   CHECK(prior->spread == doctest::Approx(std::sqrt(0.005)).epsilon(1e-6));
@@ -34,7 +34,7 @@ TEST_CASE("the learned prior follows DerSimonian & Laird's random-effects estima
     REQUIRE(p);
     CHECK(p->spread == doctest::Approx(std::sqrt(0.0005)).epsilon(1e-6));
     for (auto& b : batches) b = {0.4, 0.39, 0.41, true};
-    CHECK(learn_flow_index_prior(batches)->spread == min_learned_spread);
+    CHECK(learn_flow_index_prior(batches)->spread == fit::min_learned_spread);
   }
   SUBCASE("batches whose readings left n open do not count; too few give no prior and say why") {
     batches[0].determined = false;
@@ -63,18 +63,18 @@ TEST_CASE("montecarlo: a prior learned from a product's history narrows a new ba
   plate.density = 1050;
   plate.reading = Reading::Diameter;
 
-  std::vector<BatchFlowIndex> history;
+  std::vector<fit::BatchFlowIndex> history;
   for (int k = 0; k < 6; ++k) {
-    const FitResult r =
-        fit_law({synthetic_readings(plate_setup(), batch(0.35), long_times, 5e-4, 100u + unsigned(k), 0.3)},
+    const fit::FitResult r =
+        fit::fit_law({fit::synthetic_readings(plate_setup(), batch(0.35), long_times, 5e-4, 100u + unsigned(k), 0.3)},
                 Law::HerschelBulkley);
     REQUIRE(r.converged());
-    const ParameterEstimate& n = estimate(r, "flow_index");
+    const fit::ParameterEstimate& n = estimate(r, "flow_index");
     std::printf("history batch %d: n %.3f [%.3f, %.3f]%s%s\n", k, n.value, n.lower, n.upper, n.lower_open ? " open below" : "", n.upper_open ? " open above" : "");
     history.push_back({n.value, n.lower, n.upper, n.identifiable && !n.lower_open && !n.upper_open});
   }
   std::string why;
-  const auto prior = learn_flow_index_prior(history, &why);
+  const auto prior = fit::learn_flow_index_prior(history, &why);
   INFO(why);
   REQUIRE(prior);
   std::printf("prior learned from 6 plate batches: n %.3f +/- %.3f\n", prior->typical, prior->spread);
@@ -85,15 +85,15 @@ TEST_CASE("montecarlo: a prior learned from a product's history narrows a new ba
   std::vector<double> ratios;
   for (int k = 0; k < trials; ++k) {
     const Material truth = batch(0.35);
-    const std::vector<FitSeries> s = {synthetic_readings(plate, truth, short_times, 5e-4, 500u + unsigned(k), 0.3)};
-    const FitResult without = fit_law(s, Law::HerschelBulkley);
+    const std::vector<fit::FitSeries> s = {fit::synthetic_readings(plate, truth, short_times, 5e-4, 500u + unsigned(k), 0.3)};
+    const fit::FitResult without = fit_law(s, Law::HerschelBulkley);
     REQUIRE(without.converged());
-    const FitResult with = fit_with_prior(s, without, {}, *prior);
+    const fit::FitResult with = fit_with_prior(s, without, {}, *prior);
     REQUIRE(with.converged());
-    if (std::find(with.quality.begin(), with.quality.end(), FitQuality::PriorConflict) != with.quality.end())
+    if (std::find(with.quality.begin(), with.quality.end(), fit::FitQuality::PriorConflict) != with.quality.end())
       ++flagged_same;
-    const ParameterEstimate& a = estimate(without, "yield_stress");
-    const ParameterEstimate& b = estimate(with, "yield_stress");
+    const fit::ParameterEstimate& a = estimate(without, "yield_stress");
+    const fit::ParameterEstimate& b = estimate(with, "yield_stress");
     covered += b.lower <= truth.yield_stress && truth.yield_stress <= b.upper;
     const double wa = a.upper - a.lower, wb = b.upper - b.lower;
     ratios.push_back(wb / wa);
@@ -112,13 +112,13 @@ TEST_CASE("montecarlo: a prior learned from a product's history narrows a new ba
   for (double t = 2.0; t <= 120.0 + 1e-9; t += 2.0) channel_times.push_back(t);
   int flagged = 0;
   for (int k = 0; k < 4; ++k) {
-    const std::vector<FitSeries> s = {
-        synthetic_readings(channel_setup(), batch(0.6), channel_times, 5e-4, 900u + unsigned(k), 0.3)};
-    const FitResult without = fit_law(s, Law::HerschelBulkley);
+    const std::vector<fit::FitSeries> s = {
+        fit::synthetic_readings(channel_setup(), batch(0.6), channel_times, 5e-4, 900u + unsigned(k), 0.3)};
+    const fit::FitResult without = fit_law(s, Law::HerschelBulkley);
     REQUIRE(without.converged());
-    const FitResult with = fit_with_prior(s, without, {}, *prior);
+    const fit::FitResult with = fit_with_prior(s, without, {}, *prior);
     const bool flag =
-        std::find(with.quality.begin(), with.quality.end(), FitQuality::PriorConflict) != with.quality.end();
+        std::find(with.quality.begin(), with.quality.end(), fit::FitQuality::PriorConflict) != with.quality.end();
     flagged += flag;
     if (flag) {
       CHECK_FALSE(with.prior);

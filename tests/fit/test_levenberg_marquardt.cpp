@@ -26,7 +26,7 @@ double log_relative_error(double estimate, double certified) {
   return std::min(11.0, -std::log10(rel));
 }
 
-ResidualFunction residuals_of(const StrdProblem& p) {
+fit::ResidualFunction residuals_of(const StrdProblem& p) {
   return [&p](const Eigen::VectorXd& b, Eigen::VectorXd& r) {
     r.resize(Eigen::Index(p.x.size()));
     for (std::size_t i = 0; i < p.x.size(); ++i) r[Eigen::Index(i)] = p.model(b, p.x[i]) - p.y[i];
@@ -36,8 +36,8 @@ ResidualFunction residuals_of(const StrdProblem& p) {
 
 /// Options for a certification run: the statistical stopping rules that suit a noisy forward model (decrease and
 /// stall relative to the residual variance) are switched off, so the search runs to the cost's numerical minimum.
-LmOptions certification_options(const Eigen::VectorXd& scale) {
-  LmOptions o;
+fit::LmOptions certification_options(const Eigen::VectorXd& scale) {
+  fit::LmOptions o;
   o.max_iterations = 2000;
   o.cost_tolerance = 1e-15;
   o.step_tolerance = 0.0;
@@ -51,7 +51,7 @@ LmOptions certification_options(const Eigen::VectorXd& scale) {
 }
 
 struct Scores {
-  LmResult result;
+  fit::LmResult result;
   double rss_lre = 0;
   double worst_parameter_lre = 0;
   double worst_sd_lre = 0;
@@ -65,12 +65,12 @@ Scores solve(const StrdProblem& p, const std::vector<double>& start) {
   const Eigen::VectorXd x0 = Eigen::Map<const Eigen::VectorXd>(start.data(), n);
   const Eigen::VectorXd lower = Eigen::VectorXd::Constant(n, -std::numeric_limits<double>::infinity());
   const Eigen::VectorXd upper = Eigen::VectorXd::Constant(n, std::numeric_limits<double>::infinity());
-  const ResidualFunction f = residuals_of(p);
+  const fit::ResidualFunction f = residuals_of(p);
   Scores s;
-  const LmResult first = levenberg_marquardt(f, x0, lower, upper, certification_options(x0));
-  s.result = first.model_failed ? first : levenberg_marquardt(f, first.x, lower, upper, certification_options(first.x));
+  const fit::LmResult first = levenberg_marquardt(f, x0, lower, upper, certification_options(x0));
+  s.result = first.model_failed ? first : fit::levenberg_marquardt(f, first.x, lower, upper, certification_options(first.x));
   s.result.iterations += first.iterations;
-  const LmResult& r = s.result;
+  const fit::LmResult& r = s.result;
   s.rss_lre = log_relative_error(r.r.squaredNorm(), p.certified_rss);
   s.worst_parameter_lre = 11.0;
   for (Eigen::Index j = 0; j < n; ++j)
@@ -84,9 +84,9 @@ Scores solve(const StrdProblem& p, const std::vector<double>& start) {
   return s;
 }
 
-bool is_convergence(LmStatus s) {
-  return s == LmStatus::CostTolerance || s == LmStatus::StepTolerance || s == LmStatus::DecreaseTolerance ||
-         s == LmStatus::Stall || s == LmStatus::NoDecrease;
+bool is_convergence(fit::LmStatus s) {
+  return s == fit::LmStatus::CostTolerance || s == fit::LmStatus::StepTolerance || s == fit::LmStatus::DecreaseTolerance ||
+         s == fit::LmStatus::Stall || s == fit::LmStatus::NoDecrease;
 }
 
 /// Digits required of a problem (LRE): the thresholds are the StRD scoring scale, set half a digit or more below
@@ -97,7 +97,7 @@ struct Digits {
 
 void check_certified(const StrdProblem& p, int start_number, Digits want) {
   const Scores s = solve(p, start_number == 1 ? p.start1 : p.start2);
-  const std::string status = lm_status_name(s.result.status);
+  const std::string status = fit::lm_status_name(s.result.status);
   CAPTURE(p.name);
   CAPTURE(start_number);
   CAPTURE(status);
@@ -149,31 +149,31 @@ TEST_CASE("levenberg_marquardt reaches the NIST StRD certified values: MGH09, st
 // The status enum agrees with the flags other code reads (converged, model_failed) on every kind of ending.
 TEST_CASE("levenberg_marquardt status: model failure at the start, while differentiating, and max_iterations") {
   const StrdProblem p = misra1a();
-  const ResidualFunction good = residuals_of(p);
+  const fit::ResidualFunction good = residuals_of(p);
   const Eigen::VectorXd x0 = Eigen::Vector2d(500, 1e-4);
   const Eigen::VectorXd lower = Eigen::Vector2d(0, 0), upper = Eigen::Vector2d(1e4, 1);
-  LmOptions o = certification_options(x0);
+  fit::LmOptions o = certification_options(x0);
 
-  const ResidualFunction never = [](const Eigen::VectorXd&, Eigen::VectorXd&) { return false; };
-  const LmResult at_start = levenberg_marquardt(never, x0, lower, upper, o);
-  CHECK(at_start.status == LmStatus::ModelFailedAtStart);
+  const fit::ResidualFunction never = [](const Eigen::VectorXd&, Eigen::VectorXd&) { return false; };
+  const fit::LmResult at_start = levenberg_marquardt(never, x0, lower, upper, o);
+  CHECK(at_start.status == fit::LmStatus::ModelFailedAtStart);
   CHECK(at_start.model_failed);
   CHECK_FALSE(at_start.converged);
 
   // Evaluates only at the start itself: every finite-difference side fails.
-  const ResidualFunction only_at_start = [&](const Eigen::VectorXd& b, Eigen::VectorXd& r) {
+  const fit::ResidualFunction only_at_start = [&](const Eigen::VectorXd& b, Eigen::VectorXd& r) {
     return b == x0 && good(b, r);
   };
-  const LmResult differentiating = levenberg_marquardt(only_at_start, x0, lower, upper, o);
-  CHECK(differentiating.status == LmStatus::ModelFailedDifferentiating);
+  const fit::LmResult differentiating = levenberg_marquardt(only_at_start, x0, lower, upper, o);
+  CHECK(differentiating.status == fit::LmStatus::ModelFailedDifferentiating);
   CHECK(differentiating.model_failed);
   CHECK_FALSE(differentiating.converged);
 
   o.max_iterations = 2;  // Misra1a from start 1 needs far more (see the certified run above)
-  const LmResult short_run = levenberg_marquardt(good, x0, lower, upper, o);
-  CHECK(short_run.status == LmStatus::MaxIterations);
+  const fit::LmResult short_run = levenberg_marquardt(good, x0, lower, upper, o);
+  CHECK(short_run.status == fit::LmStatus::MaxIterations);
   CHECK_FALSE(short_run.converged);
   CHECK_FALSE(short_run.model_failed);
   CHECK(short_run.iterations == 2);
-  CHECK(std::string(lm_status_name(short_run.status)) == "max_iterations");
+  CHECK(std::string(fit::lm_status_name(short_run.status)) == "max_iterations");
 }

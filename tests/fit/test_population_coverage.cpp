@@ -41,14 +41,14 @@ Material draw_material(std::mt19937& rng) {
   return m;
 }
 
-void record(Tally& t, const FitResult* r, const Material& truth, double t0) {
+void record(Tally& t, const fit::FitResult* r, const Material& truth, double t0) {
   ++t.fits;
   if (r == nullptr) {
     ++t.failed;
     return;
   }
   bool has_tau = false;
-  for (const ParameterEstimate& p : r->parameters) {
+  for (const fit::ParameterEstimate& p : r->parameters) {
     const double value = p.name == "yield_stress" ? truth.yield_stress
                          : p.name == "flow_index" ? truth.flow_index
                          : p.name == "time_origin" ? t0
@@ -79,18 +79,18 @@ TEST_CASE("montecarlo: intervals over a population of shear-thinning yield-stres
   for (int k = 0; k < materials; ++k) {
     const Material truth = draw_material(rng);
     for (const auto& [rig, setup] : {std::pair<std::string, TestSetup>{"channel", channel}, {"plate", plate}}) {
-      FitSeries s = synthetic_readings(setup, truth, times, sigma, 7000u + unsigned(k), t0);
+      fit::FitSeries s = fit::synthetic_readings(setup, truth, times, sigma, 7000u + unsigned(k), t0);
       REQUIRE(s.values.size() == times.size());
       for (const char* mode : {"auto", "herschel-bulkley"}) {
         const auto start = std::chrono::steady_clock::now();
-        std::optional<FitResult> single;
-        std::optional<ModelChoice> choice;
-        const FitResult* r = nullptr;
+        std::optional<fit::FitResult> single;
+        std::optional<fit::ModelChoice> choice;
+        const fit::FitResult* r = nullptr;
         if (std::string(mode) == "auto") {
-          choice = fit_auto({s});
+          choice = fit::fit_auto({s});
           if (choice->chosen >= 0) r = &choice->candidates[std::size_t(choice->chosen)];
         } else {
-          single = fit_law({s}, Law::HerschelBulkley);
+          single = fit::fit_law({s}, Law::HerschelBulkley);
           if (single->converged()) r = &*single;
         }
         Tally& t = tallies[rig + " " + mode];

@@ -21,10 +21,10 @@ struct Check {
   bool covers;
 };
 
-Check predict_channel(const FitResult& fit, const Material& truth, const std::vector<double>& times) {
+Check predict_channel(const fit::FitResult& fit, const Material& truth, const std::vector<double>& times) {
   // The plate's release time does not carry over: predict from the channel's release.
-  const FitResult material = material_only(fit);
-  const PredictionBand band = prediction_band(material, channel_setup(), times, 0, 200);
+  const fit::FitResult material = material_only(fit);
+  const fit::PredictionBand band = prediction_band(material, channel_setup(), times, 0, 200);
   REQUIRE(band.ok);
   const std::vector<double> exact = predict_readings(channel_setup(), truth, times).readings;
   Check c{0.0, true};
@@ -45,9 +45,9 @@ TEST_CASE("a plate fit predicts the channel reading within its band, and better 
   const std::vector<double> times{10.0, 30.0, 60.0};
   int rough_covers = 0, fine_covers = 0;
   for (unsigned seed = 61; seed < 65; ++seed) {
-    const FitResult rough = fit_law({synthetic(plate_setup(), truth, 1e-3, seed, 0.3, 10.0, 120.0)}, Law::Bingham);
-    const FitResult fine =
-        fit_law({synthetic(plate_setup(), truth, 2.5e-4, seed + 100, 0.3, 2.0, 120.0)}, Law::Bingham);
+    const fit::FitResult rough = fit::fit_law({synthetic(plate_setup(), truth, 1e-3, seed, 0.3, 10.0, 120.0)}, Law::Bingham);
+    const fit::FitResult fine =
+        fit::fit_law({synthetic(plate_setup(), truth, 2.5e-4, seed + 100, 0.3, 2.0, 120.0)}, Law::Bingham);
     REQUIRE(rough.converged());
     REQUIRE(fine.converged());
     const Check a = predict_channel(rough, truth, times);
@@ -74,9 +74,9 @@ TEST_CASE("montecarlo: the 95% prediction band on another rig covers the true re
   std::vector<int> covered(times.size(), 0);
   int trials = 0;
   for (unsigned seed = 2000; seed < 2060; ++seed) {
-    const FitResult fit = fit_law({synthetic(plate_setup(), truth, 5e-4, seed, 0.3, 4.0, 120.0)}, Law::Bingham);
+    const fit::FitResult fit = fit::fit_law({synthetic(plate_setup(), truth, 5e-4, seed, 0.3, 4.0, 120.0)}, Law::Bingham);
     if (!fit.converged()) continue;
-    const PredictionBand band = prediction_band(material_only(fit), channel_setup(), times, 0, 200, seed);
+    const fit::PredictionBand band = prediction_band(material_only(fit), channel_setup(), times, 0, 200, seed);
     REQUIRE(band.ok);
     ++trials;
     for (std::size_t i = 0; i < times.size(); ++i) covered[i] += band.lower[i] <= exact[i] && exact[i] <= band.upper[i];
@@ -110,12 +110,12 @@ TEST_CASE("montecarlo: from a noisy plate test of a shear-thinning paste, the ch
   std::vector<double> widths;
   for (int k = 0; k < trials; ++k) {
     const Material truth{5.0 * std::pow(12.0, u(rng)), 2.0 * std::pow(12.5, u(rng)), 0.25 + 0.4 * u(rng)};
-    const FitResult fit =
-        fit_law({synthetic_readings(plate, truth, times, 5e-4, 3000u + unsigned(k), 0.3)}, Law::HerschelBulkley);
+    const fit::FitResult fit =
+        fit::fit_law({fit::synthetic_readings(plate, truth, times, 5e-4, 3000u + unsigned(k), 0.3)}, Law::HerschelBulkley);
     INFO("paste " << k << ": " << truth.yield_stress << " Pa, " << truth.consistency << " Pa.s^n, n "
-                  << truth.flow_index << ": " << fit_status_name(fit.status) << " " << fit.reason);
+                  << truth.flow_index << ": " << fit::fit_status_name(fit.status) << " " << fit.reason);
     REQUIRE(fit.converged());
-    const PredictionBand band = prediction_band(material_only(fit), channel_setup(), {30.0}, 0, 200);
+    const fit::PredictionBand band = prediction_band(material_only(fit), channel_setup(), {30.0}, 0, 200);
     REQUIRE(band.ok);
     const double exact = predict_readings(channel_setup(), truth, {30.0}).readings[0];
     covered += band.lower[0] <= exact && exact <= band.upper[0];

@@ -29,13 +29,13 @@ bool michaelis_menten(const Eigen::VectorXd& x, Eigen::VectorXd& r) {
 }
 
 struct Fitted {
-  LmResult best;
+  fit::LmResult best;
   Eigen::MatrixXd cov;
   double s2 = 0;
 };
 
-Fitted fit(const Eigen::VectorXd& lower, const Eigen::VectorXd& upper) {
-  LmOptions o;
+Fitted fit_puromycin(const Eigen::VectorXd& lower, const Eigen::VectorXd& upper) {
+  fit::LmOptions o;
   o.fd_step = Eigen::Vector2d(1e-4, 1e-7);
   o.cost_tolerance = 1e-14;
   o.step_tolerance = 1e-12;
@@ -44,7 +44,7 @@ Fitted fit(const Eigen::VectorXd& lower, const Eigen::VectorXd& upper) {
   o.broyden_refresh = 1;
   o.max_iterations = 200;
   Fitted f;
-  f.best = levenberg_marquardt(michaelis_menten, Eigen::Vector2d(200, 0.05), lower, upper, o);
+  f.best = fit::levenberg_marquardt(michaelis_menten, Eigen::Vector2d(200, 0.05), lower, upper, o);
   INFO(f.best.message);
   REQUIRE(f.best.converged);
   f.s2 = 2.0 * f.best.cost / (12 - 2);
@@ -60,12 +60,12 @@ double t_quantile(double level, int dof) {
 
 TEST_CASE("profile likelihood reproduces the Puromycin intervals of Bates & Watts (R's profile, MASS)") {
   const Eigen::Vector2d lower(1.0, 1e-4), upper(1000.0, 10.0);
-  const Fitted f = fit(lower, upper);
+  const Fitted f = fit_puromycin(lower, upper);
   // Bates & Watts (1988), table A1.3 fit: Vm = 212.7, K = 0.06412, s = 10.93 on 10 degrees of freedom.
   REQUIRE(f.best.x[0] == doctest::Approx(212.68).epsilon(1e-3));
   REQUIRE(f.best.x[1] == doctest::Approx(0.06412).epsilon(1e-3));
   REQUIRE(std::sqrt(f.s2) == doctest::Approx(10.93).epsilon(1e-3));
-  ProfileOptions po;
+  fit::ProfileOptions po;
   po.tolerance = 1e-4;
   po.max_refits = 30;
   po.max_first_step = 1e3;
@@ -77,12 +77,12 @@ TEST_CASE("profile likelihood reproduces the Puromycin intervals of Bates & Watt
   for (const Level l : {Level{0.95, 197.302128, 229.290065, 0.046925168, 0.086159953},
                         Level{0.99, 191.123536, 236.736446, 0.040841226, 0.097269956}}) {
     CAPTURE(l.level);
-    const ProfileLikelihood profile(michaelis_menten, lower, upper, Eigen::Vector2d(1e-4, 1e-7), f.best.x,
+    const fit::ProfileLikelihood profile(michaelis_menten, lower, upper, Eigen::Vector2d(1e-4, 1e-7), f.best.x,
                                     f.best.cost, f.s2, t_quantile(l.level, 10), f.cov, po);
-    const ProfileSide vm_lo = profile.side(0, -1), vm_hi = profile.side(0, +1);
-    const ProfileSide k_lo = profile.side(1, -1), k_hi = profile.side(1, +1);
-    for (const ProfileSide& s : {vm_lo, vm_hi, k_lo, k_hi}) {
-      CHECK(s.end == ProfileEnd::Crossed);
+    const fit::ProfileSide vm_lo = profile.side(0, -1), vm_hi = profile.side(0, +1);
+    const fit::ProfileSide k_lo = profile.side(1, -1), k_hi = profile.side(1, +1);
+    for (const fit::ProfileSide& s : {vm_lo, vm_hi, k_lo, k_hi}) {
+      CHECK(s.end == fit::ProfileEnd::Crossed);
       INFO("refits " << s.refits);
       CHECK(s.refits <= 12);
     }
@@ -104,18 +104,18 @@ TEST_CASE("a profile side that reaches the box before the cut-off is open") {
   // K confined to at most 0.075: the upper 95% limit (0.0862) lies beyond the box, so that side is open and
   // reports the box limit; the lower side is unchanged.
   const Eigen::Vector2d lower(1.0, 1e-4), upper(1000.0, 0.075);
-  const Fitted f = fit(lower, upper);
-  ProfileOptions po;
+  const Fitted f = fit_puromycin(lower, upper);
+  fit::ProfileOptions po;
   po.tolerance = 1e-3;
   po.max_refits = 30;
   po.max_first_step = 1e3;
   po.step_tolerance = 1e-7;
-  const ProfileLikelihood profile(michaelis_menten, lower, upper, Eigen::Vector2d(1e-4, 1e-7), f.best.x,
+  const fit::ProfileLikelihood profile(michaelis_menten, lower, upper, Eigen::Vector2d(1e-4, 1e-7), f.best.x,
                                   f.best.cost, f.s2, t_quantile(0.95, 10), f.cov, po);
-  const ProfileSide hi = profile.side(1, +1), lo = profile.side(1, -1);
-  CHECK(hi.end == ProfileEnd::Bound);
+  const fit::ProfileSide hi = profile.side(1, +1), lo = profile.side(1, -1);
+  CHECK(hi.end == fit::ProfileEnd::Bound);
   CHECK(hi.limit == 0.075);
-  CHECK(lo.end == ProfileEnd::Crossed);
+  CHECK(lo.end == fit::ProfileEnd::Crossed);
   CHECK(lo.limit == doctest::Approx(0.046925168).epsilon(2e-3));
 }
 
@@ -123,11 +123,11 @@ TEST_CASE("a refit below the optimum is reported as a better point") {
   // Profiling from a point that is not the optimum (Vm 5% low, its own conditional optimum in K) finds the lower
   // cost of the true optimum along the way.
   const Eigen::Vector2d lower(1.0, 1e-4), upper(1000.0, 10.0);
-  const Fitted f = fit(lower, upper);
+  const Fitted f = fit_puromycin(lower, upper);
   Eigen::Vector2d off(0.95 * f.best.x[0], f.best.x[1]);
   Eigen::VectorXd r;
   michaelis_menten(off, r);
-  const ProfileLikelihood profile(michaelis_menten, lower, upper, Eigen::Vector2d(1e-4, 1e-7), off,
+  const fit::ProfileLikelihood profile(michaelis_menten, lower, upper, Eigen::Vector2d(1e-4, 1e-7), off,
                                   0.5 * r.squaredNorm(), f.s2, t_quantile(0.95, 10), f.cov);
   profile.side(1, +1);
   profile.side(1, -1);

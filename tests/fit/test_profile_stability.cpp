@@ -19,15 +19,15 @@ TEST_CASE("montecarlo: the yield stress's profile limits do not jump when the re
   int worst_seed = -1;
   double worst = 0.0;
   for (unsigned seed = 1000; seed < 1008; ++seed) {
-    const FitSeries s = synthetic(plate_setup(), truth, 5e-4, seed);
-    FitSeries nudged = s;
+    const fit::FitSeries s = synthetic(plate_setup(), truth, 5e-4, seed);
+    fit::FitSeries nudged = s;
     for (double& v : nudged.values) v += 2e-5;
-    const FitResult a = fit_law({s}, Law::HerschelBulkley);
-    const FitResult b = fit_law({nudged}, Law::HerschelBulkley);
+    const fit::FitResult a = fit::fit_law({s}, Law::HerschelBulkley);
+    const fit::FitResult b = fit::fit_law({nudged}, Law::HerschelBulkley);
     REQUIRE(a.converged());
     REQUIRE(b.converged());
-    const ParameterEstimate& pa = estimate(a, "yield_stress");
-    const ParameterEstimate& pb = estimate(b, "yield_stress");
+    const fit::ParameterEstimate& pa = estimate(a, "yield_stress");
+    const fit::ParameterEstimate& pb = estimate(b, "yield_stress");
     const double width = pa.upper - pa.lower;
     const double moved = std::max(std::abs(pb.upper - pa.upper), std::abs(pb.lower - pa.lower)) / width;
     std::printf("seed %u: yield stress %.4g [%.4g, %.4g] -> [%.4g, %.4g], limits moved %.3f of the width\n", seed,

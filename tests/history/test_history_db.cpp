@@ -367,18 +367,18 @@ TEST_CASE("a fit outcome becomes a stored result with its material parameters, v
   const fs::path toml = dir.write("test.toml", kToml);
   dir.write("a.csv", kCsvA);
   dir.write("b.csv", kCsvB);
-  spreadfit::FitOutcome o;
+  spreadfit::report::FitOutcome o;
   o.tests.push_back(spreadfit::io::load_test_description(toml));
-  spreadfit::FitResult r;
+  spreadfit::fit::FitResult r;
   r.law = spreadfit::Law::Bingham;
-  r.status = spreadfit::FitStatus::Converged;
+  r.status = spreadfit::fit::FitStatus::Converged;
   r.parameters = {{"yield_stress", "Pa", 24.0, 22.0, 26.0, false, true},
                   {"viscosity", "Pa.s", 1.5, 1.25, 1.75, false, true},
                   {"time_origin", "s", 0.1, 0.0, 0.2, false, true},
                   {"time_origin", "s", 0.2, 0.1, 0.3, false, true}};
   o.candidates.push_back(r);
   o.chosen = 0;
-  o.verdict.status = spreadfit::Verdict::Status::Pass;
+  o.verdict.status = spreadfit::qc::Verdict::Status::Pass;
 
   const StoredResult s = spreadfit::history::stored_result(o);
   CHECK(s.sample_id == "HX1-0001");
@@ -398,8 +398,8 @@ TEST_CASE("a fit outcome becomes a stored result with its material parameters, v
 
   SUBCASE("a failed fit is kept without law or parameters") {
     o.chosen = -1;
-    o.candidates.front().status = spreadfit::FitStatus::NotConverged;
-    o.verdict.status = spreadfit::Verdict::Status::None;
+    o.candidates.front().status = spreadfit::fit::FitStatus::NotConverged;
+    o.verdict.status = spreadfit::qc::Verdict::Status::None;
     const StoredResult failed = spreadfit::history::stored_result(o);
     CHECK(failed.law.empty());
     CHECK(failed.parameters.empty());

@@ -38,8 +38,8 @@ TEST_CASE("slump limits solve back to the yield stresses that give them by Pashi
   // other parameter involved, so the possible and assured ranges coincide.
   const double low = pashias_slump(500, 1100, 0.1), high = pashias_slump(100, 1100, 0.1);
   const Material others{0, 5.0, 1.0};
-  const ParameterLimits limits =
-      solve_parameter_limits(slump_setup(), 300, {others}, {"yield_stress", 10, 1000, true, 17}, low, high);
+  const qc::ParameterLimits limits =
+      qc::solve_parameter_limits(slump_setup(), 300, {others}, {"yield_stress", 10, 1000, true, 17}, low, high);
   REQUIRE(limits.ok());
   REQUIRE(limits.possible);
   REQUIRE(limits.assured);
@@ -55,8 +55,8 @@ TEST_CASE("slump limits solve back to the yield stresses that give them by Pashi
 TEST_CASE("reading limits out of reach of the search range give no possible value") {
   const Material others{0, 5.0, 1.0};
   const double unreachable = pashias_slump(5, 1100, 0.1);  // needs a yield stress below the search range
-  const ParameterLimits limits =
-      solve_parameter_limits(slump_setup(), 300, {others}, {"yield_stress", 100, 1000, true, 9}, unreachable, 0.1);
+  const qc::ParameterLimits limits =
+      qc::solve_parameter_limits(slump_setup(), 300, {others}, {"yield_stress", 100, 1000, true, 9}, unreachable, 0.1);
   REQUIRE(limits.ok());
   CHECK_FALSE(limits.possible);
   CHECK_FALSE(limits.assured);
@@ -73,11 +73,11 @@ TEST_CASE("channel: yield-stress limits become reading limits and solve back to 
     consistencies.push_back({0, k, 1.0});
     for (double tau : {20.0, 35.0}) grid.push_back({tau, k, 1.0});
   }
-  const ReadingRange range = reading_range(setup, grid, 30);
+  const qc::ReadingRange range = qc::reading_range(setup, grid, 30);
   REQUIRE(range.ok());
   CHECK(range.low < range.high);
-  const ParameterLimits limits =
-      solve_parameter_limits(setup, 30, consistencies, {"yield_stress", 2, 200, true, 17}, range.low, range.high);
+  const qc::ParameterLimits limits =
+      qc::solve_parameter_limits(setup, 30, consistencies, {"yield_stress", 2, 200, true, 17}, range.low, range.high);
   REQUIRE(limits.ok());
   REQUIRE(limits.assured);
   REQUIRE(limits.possible);
@@ -86,9 +86,9 @@ TEST_CASE("channel: yield-stress limits become reading limits and solve back to 
   CHECK(limits.possible->lo < 19);
   CHECK(limits.possible->hi > 36);
   SUBCASE("with the consistency fixed, possible and assured coincide") {
-    const ParameterLimits one =
-        solve_parameter_limits(setup, 30, {{0, 2.0, 1.0}}, {"yield_stress", 2, 200, true, 17},
-                               *reading_at(setup, {35, 2.0, 1.0}, 30), *reading_at(setup, {20, 2.0, 1.0}, 30));
+    const qc::ParameterLimits one =
+        qc::solve_parameter_limits(setup, 30, {{0, 2.0, 1.0}}, {"yield_stress", 2, 200, true, 17},
+                               *qc::reading_at(setup, {35, 2.0, 1.0}, 30), *qc::reading_at(setup, {20, 2.0, 1.0}, 30));
     REQUIRE(one.possible);
     CHECK(one.possible->lo == doctest::Approx(20).epsilon(1e-4));
     CHECK(one.possible->hi == doctest::Approx(35).epsilon(1e-4));
@@ -97,10 +97,10 @@ TEST_CASE("channel: yield-stress limits become reading limits and solve back to 
 
 TEST_CASE("bad search ranges and limits are refused") {
   const Material m{0, 5.0, 1.0};
-  CHECK_THROWS_AS(solve_parameter_limits(slump_setup(), 300, {}, {"yield_stress", 10, 1000, true, 9}, 0, 0.1),
+  CHECK_THROWS_AS(qc::solve_parameter_limits(slump_setup(), 300, {}, {"yield_stress", 10, 1000, true, 9}, 0, 0.1),
                   std::invalid_argument);
-  CHECK_THROWS_AS(solve_parameter_limits(slump_setup(), 300, {m}, {"yield_stress", 0, 1000, true, 9}, 0, 0.1),
+  CHECK_THROWS_AS(qc::solve_parameter_limits(slump_setup(), 300, {m}, {"yield_stress", 0, 1000, true, 9}, 0, 0.1),
                   std::invalid_argument);
-  CHECK_THROWS_AS(solve_parameter_limits(slump_setup(), 300, {m}, {"yield_stress", 10, 1000, true, 9}, 0.1, 0.05),
+  CHECK_THROWS_AS(qc::solve_parameter_limits(slump_setup(), 300, {m}, {"yield_stress", 10, 1000, true, 9}, 0.1, 0.05),
                   std::invalid_argument);
 }

@@ -13,7 +13,7 @@
 #include "src/report/contour.hpp"
 
 using namespace spreadfit;
-using contour::Point;
+using report::contour::Point;
 using std::numbers::pi;
 
 namespace {
@@ -48,20 +48,20 @@ Grid sample(std::vector<double> x, std::vector<double> y, const std::function<do
   return g;
 }
 
-double length(const std::vector<contour::Segment>& s) {
+double length(const std::vector<report::contour::Segment>& s) {
   double total = 0;
   for (const auto& p : s) total += std::hypot(p.b.x - p.a.x, p.b.y - p.a.y);
   return total;
 }
 
-double area(const std::vector<contour::Polygon>& polygons) {
+double area(const std::vector<report::contour::Polygon>& polygons) {
   double total = 0;
-  for (const auto& p : polygons) total += contour::signed_area(p);
+  for (const auto& p : polygons) total += report::contour::signed_area(p);
   return total;
 }
 
 // Largest |r - radius| over the segments' ends and middles (the middle is where a chord strays most from its arc).
-double radial_error(const std::vector<contour::Segment>& segments, double radius) {
+double radial_error(const std::vector<report::contour::Segment>& segments, double radius) {
   double worst = 0;
   for (const auto& s : segments)
     for (Point p : {s.a, s.b, Point{0.5 * (s.a.x + s.b.x), 0.5 * (s.a.y + s.b.y)}})
@@ -78,7 +78,7 @@ TEST_CASE("contour: a plane's contour lies exactly on its line, as one straight 
   const Grid g = sample(uneven(-2, 3, 17), uneven(-1, 2.5, 13), [&](double x, double y) { return a * x + b * y; });
   for (double c : {-1.7, -0.25, 0.0, 0.9}) {
     CAPTURE(c);
-    const auto segments = contour::segments(g.x, g.y, g.z, c);
+    const auto segments = report::contour::segments(g.x, g.y, g.z, c);
     REQUIRE(!segments.empty());
     constexpr double tolerance = 1e-13;  // a few rounding errors of values of order 1
     double worst = 0;
@@ -87,7 +87,7 @@ TEST_CASE("contour: a plane's contour lies exactly on its line, as one straight 
     INFO(segments.size() << " segments, worst |a x + b y - c| " << worst);
     CHECK(worst <= tolerance);
     // One open chain whose ends are on the grid's boundary, and as long as the straight line between them.
-    const auto chains = contour::chain(segments);
+    const auto chains = report::contour::chain(segments);
     REQUIRE(chains.size() == 1);
     CHECK_FALSE(chains.front().closed);
     CHECK(chains.front().points.size() == segments.size() + 1);
@@ -112,8 +112,8 @@ TEST_CASE("contour: the circle of x^2 + y^2 closes into one loop and converges a
     // An off-centre window so that no grid line is a symmetry line of the circle.
     const Grid g =
         sample(even(-1.37, 1.61, cells), even(-1.52, 1.29, cells), [](double x, double y) { return x * x + y * y; });
-    const auto segments = contour::segments(g.x, g.y, g.z, level);
-    const auto chains = contour::chain(segments);
+    const auto segments = report::contour::segments(g.x, g.y, g.z, level);
+    const auto chains = report::contour::chain(segments);
     INFO(cells << " cells a side: " << segments.size() << " segments, " << chains.size() << " chains");
     REQUIRE(chains.size() == 1);
     CHECK(chains.front().closed);
@@ -135,27 +135,27 @@ TEST_CASE("contour: a saddle cell is resolved by its centre average, on the hype
   // One cell of the bilinear z = x y on [-1, 1]^2: corners 1, -1, 1, -1 and centre average 0. Along each edge z is
   // linear, so the edge points are exactly where the hyperbola x y = c meets the edges (x = +-1: y = c/x).
   const Grid g = sample({-1, 1}, {-1, 1}, [](double x, double y) { return x * y; });
-  auto has = [](const std::vector<contour::Segment>& s, Point p, Point q) {
+  auto has = [](const std::vector<report::contour::Segment>& s, Point p, Point q) {
     return std::any_of(s.begin(), s.end(),
                        [&](const auto& seg) { return (seg.a == p && seg.b == q) || (seg.a == q && seg.b == p); });
   };
   SUBCASE("level above the centre average: the two high corners are cut off") {
-    const auto s = contour::segments(g.x, g.y, g.z, 0.5);
+    const auto s = report::contour::segments(g.x, g.y, g.z, 0.5);
     REQUIRE(s.size() == 2);
     CHECK(has(s, {1, 0.5}, {0.5, 1}));      // around (1, 1)
     CHECK(has(s, {-1, -0.5}, {-0.5, -1}));  // around (-1, -1)
   }
   SUBCASE("level below the centre average: the two low corners are cut off") {
-    const auto s = contour::segments(g.x, g.y, g.z, -0.5);
+    const auto s = report::contour::segments(g.x, g.y, g.z, -0.5);
     REQUIRE(s.size() == 2);
     CHECK(has(s, {1, -0.5}, {0.5, -1}));  // around (1, -1)
     CHECK(has(s, {-1, 0.5}, {-0.5, 1}));  // around (-1, 1)
   }
   SUBCASE("the band between the two levels is the cell less the four corner triangles the lines cut off") {
     // Each cut-off triangle has legs 0.5 and 0.5: area 0.125 (its two points above).
-    CHECK(area(contour::band(g.x, g.y, g.z, -0.5, 0.5)) == doctest::Approx(4 - 4 * 0.125).epsilon(1e-14));
+    CHECK(area(report::contour::band(g.x, g.y, g.z, -0.5, 0.5)) == doctest::Approx(4 - 4 * 0.125).epsilon(1e-14));
     // Above 0.5 only the two high corner triangles; the shading and the lines follow the same saddle rule.
-    CHECK(area(contour::band(g.x, g.y, g.z, 0.5, 2.0)) == doctest::Approx(2 * 0.125).epsilon(1e-14));
+    CHECK(area(report::contour::band(g.x, g.y, g.z, 0.5, 2.0)) == doctest::Approx(2 * 0.125).epsilon(1e-14));
   }
   SUBCASE("neighbouring saddle cells agree: every chain closes or ends on the grid's boundary") {
     // sin(3x) sin(3y) has a saddle at every zero crossing of both factors; a dangling end inside the grid would mean
@@ -163,7 +163,7 @@ TEST_CASE("contour: a saddle cell is resolved by its centre average, on the hype
     const Grid w = sample(even(-2, 2.3, 23), even(-2.1, 2, 21),
                           [](double x, double y) { return std::sin(3 * x) * std::sin(3 * y); });
     for (double level : {-0.3, 0.0, 0.01, 0.45}) {
-      const auto chains = contour::chain(contour::segments(w.x, w.y, w.z, level));
+      const auto chains = report::contour::chain(report::contour::segments(w.x, w.y, w.z, level));
       for (const auto& c : chains) {
         if (c.closed) continue;
         for (Point p : {c.points.front(), c.points.back()}) {
@@ -180,8 +180,8 @@ TEST_CASE("contour: cells with a missing value give no segments and no band") {
   Grid holed = full;
   holed.z[2][3] = std::nan("");  // node (x = 3, y = 2): the four cells around it are skipped
   const double level = 5.5;      // the line x + y = 5.5 crosses those cells
-  const auto all = contour::segments(full.x, full.y, full.z, level);
-  const auto kept = contour::segments(holed.x, holed.y, holed.z, level);
+  const auto all = report::contour::segments(full.x, full.y, full.z, level);
+  const auto kept = report::contour::segments(holed.x, holed.y, holed.z, level);
   INFO(all.size() << " segments without the hole, " << kept.size() << " with it");
   CHECK(kept.size() < all.size());
   auto strictly_inside_hole = [](Point p) { return p.x > 2 && p.x < 4 && p.y > 1 && p.y < 3; };
@@ -190,24 +190,24 @@ TEST_CASE("contour: cells with a missing value give no segments and no band") {
     CHECK_FALSE(strictly_inside_hole(s.b));
   }
   // The band loses exactly the part of the four skipped cells (x + y <= 5.5 below the anti-diagonal).
-  const double band_full = area(contour::band(full.x, full.y, full.z, 0, level));
-  const double band_holed = area(contour::band(holed.x, holed.y, holed.z, 0, level));
+  const double band_full = area(report::contour::band(full.x, full.y, full.z, 0, level));
+  const double band_holed = area(report::contour::band(holed.x, holed.y, holed.z, 0, level));
   // Closed-form geometry: in the block [2,4] x [1,3], x + y <= 5.5 is the block less the triangle with legs 1.5.
   CHECK(band_full - band_holed == doctest::Approx(4 - 0.5 * 1.5 * 1.5).epsilon(1e-12));
   // Nothing finite, nothing drawn.
   Grid empty = full;
   for (auto& row : empty.z) std::fill(row.begin(), row.end(), std::nan(""));
-  CHECK(contour::segments(empty.x, empty.y, empty.z, level).empty());
-  CHECK(contour::band(empty.x, empty.y, empty.z, 0, level).empty());
-  CHECK(std::isnan(contour::finite_range(empty.z).first));
+  CHECK(report::contour::segments(empty.x, empty.y, empty.z, level).empty());
+  CHECK(report::contour::band(empty.x, empty.y, empty.z, 0, level).empty());
+  CHECK(std::isnan(report::contour::finite_range(empty.z).first));
 }
 
 TEST_CASE("contour: band areas match the closed-form geometry") {
   SUBCASE("a plane: two triangles of the unit square, exact on an uneven grid") {
     // x + y <= c within the unit square (c <= 1) is a right triangle of area c^2 / 2.
     const Grid g = sample(uneven(0, 1, 9), uneven(0, 1, 7), [](double x, double y) { return x + y; });
-    const auto polygons = contour::band(g.x, g.y, g.z, 0.3, 0.8);
-    for (const auto& p : polygons) CHECK(contour::signed_area(p) > 0);  // anticlockwise, no slivers
+    const auto polygons = report::contour::band(g.x, g.y, g.z, 0.3, 0.8);
+    for (const auto& p : polygons) CHECK(report::contour::signed_area(p) > 0);  // anticlockwise, no slivers
     CHECK(area(polygons) == doctest::Approx((0.8 * 0.8 - 0.3 * 0.3) / 2).epsilon(1e-13));
   }
   SUBCASE("a paraboloid: the annulus pi (r2^2 - r1^2), within perimeter x contour error") {
@@ -218,9 +218,9 @@ TEST_CASE("contour: band areas match the closed-form geometry") {
     for (int cells : {20, 40, 80}) {
       const Grid g =
           sample(even(-1.37, 1.61, cells), even(-1.52, 1.29, cells), [](double x, double y) { return x * x + y * y; });
-      const double delta = std::max(radial_error(contour::segments(g.x, g.y, g.z, r1 * r1), r1),
-                                    radial_error(contour::segments(g.x, g.y, g.z, r2 * r2), r2));
-      const double error = std::abs(area(contour::band(g.x, g.y, g.z, r1 * r1, r2 * r2)) - exact);
+      const double delta = std::max(radial_error(report::contour::segments(g.x, g.y, g.z, r1 * r1), r1),
+                                    radial_error(report::contour::segments(g.x, g.y, g.z, r2 * r2), r2));
+      const double error = std::abs(area(report::contour::band(g.x, g.y, g.z, r1 * r1, r2 * r2)) - exact);
       INFO(cells << " cells a side: area error " << error << ", contour error " << delta);
       CHECK(error <= 2 * pi * (r1 + r2) * delta * (1 + 1e-6));
       CHECK(error < 1e-3 * exact);
@@ -235,7 +235,7 @@ TEST_CASE("contour: round levels step by 1, 2 or 5 times a power of ten, strictl
   // Readings in metres over several scales, a range across zero, and a narrow one.
   for (const Range r : {Range{0.0331, 0.1307}, Range{0.00052, 0.0191}, Range{-0.93, 0.81}, Range{12.5, 12.9},
                         Range{1, 1e4}, Range{0.2, 0.3}}) {
-    const auto levels = contour::round_levels(r.lo, r.hi, 7);
+    const auto levels = report::contour::round_levels(r.lo, r.hi, 7);
     INFO("range " << r.lo << " to " << r.hi << ": " << levels.size() << " levels");
     // About 7 levels: 5 to 9 (common practice, no source: enough lines to read a map, few enough to label).
     CHECK(levels.size() >= 5);
@@ -251,15 +251,15 @@ TEST_CASE("contour: round levels step by 1, 2 or 5 times a power of ten, strictl
       if (k > 0) CHECK(levels[k] - levels[k - 1] == doctest::Approx(step));
     }
   }
-  CHECK(contour::round_levels(3, 3).empty());
-  CHECK(contour::round_levels(std::nan(""), 3).empty());
+  CHECK(report::contour::round_levels(3, 3).empty());
+  CHECK(report::contour::round_levels(std::nan(""), 3).empty());
 }
 
 TEST_CASE("contour: a grid that breaks the convention is refused") {
   const std::vector<std::vector<double>> z = {{0, 1}, {1, 2}};
-  CHECK_THROWS_AS(contour::segments({0, 1}, {1, 0}, z, 0.5), std::invalid_argument);        // y descending
-  CHECK_THROWS_AS(contour::segments({0}, {0, 1}, {{0}, {1}}, 0.5), std::invalid_argument);  // one column
-  CHECK_THROWS_AS(contour::segments({0, 1, 2}, {0, 1}, z, 0.5), std::invalid_argument);     // rows too short
-  CHECK_THROWS_AS(contour::segments({0, 1}, {0, 1}, z, std::nan("")), std::invalid_argument);
-  CHECK_THROWS_AS(contour::band({0, 1}, {0, 1}, z, 1.5, 0.5), std::invalid_argument);  // low > high
+  CHECK_THROWS_AS(report::contour::segments({0, 1}, {1, 0}, z, 0.5), std::invalid_argument);        // y descending
+  CHECK_THROWS_AS(report::contour::segments({0}, {0, 1}, {{0}, {1}}, 0.5), std::invalid_argument);  // one column
+  CHECK_THROWS_AS(report::contour::segments({0, 1, 2}, {0, 1}, z, 0.5), std::invalid_argument);     // rows too short
+  CHECK_THROWS_AS(report::contour::segments({0, 1}, {0, 1}, z, std::nan("")), std::invalid_argument);
+  CHECK_THROWS_AS(report::contour::band({0, 1}, {0, 1}, z, 1.5, 0.5), std::invalid_argument);  // low > high
 }

@@ -51,8 +51,8 @@ double yield_stress_at(double radius) {
 
 // Radius over yield stress 2-200 Pa (log) and flow index 0.3-1 (linear; the plastic limit does not depend on it),
 // two grid points marked failed, the reading limits 7-8.5 cm and a yield-stress spec of 20-35 Pa.
-ReadingMap plate_map(int points = 21) {
-  ReadingMap m;
+report::ReadingMap plate_map(int points = 21) {
+  report::ReadingMap m;
   m.title = "radius at arrest on plate, herschel-bulkley";
   m.notes = {"consistency held at 8 Pa s^n", "plastic limit of the spread (Roussel & Coussot 2005)"};
   m.x_name = "yield stress [Pa]";
@@ -74,9 +74,9 @@ ReadingMap plate_map(int points = 21) {
 
 // Slump of a 20 mm cylinder (Pashias et al. 1996): s/H0 = 1 - 2 tau'(1 - ln(2 tau')), tau' = tau_y / (rho g H0),
 // no slump from tau' = 0.5 on; over yield stress 1-100 Pa (log) and density 900-1400 kg/m^3 (linear).
-ReadingMap slump_map() {
+report::ReadingMap slump_map() {
   constexpr double height = 0.02;
-  ReadingMap m;
+  report::ReadingMap m;
   m.title = "slump of a 20 mm cylinder";
   m.x_name = "yield stress [Pa]";
   m.y_name = "density [kg/m3]";
@@ -149,7 +149,7 @@ TEST_CASE("map axes: a log scale ticks 1, 2, 5 x 10^k in plain numbers, each at 
   // Definition of a logarithmic axis: pixel = p0 + log(v / lo) / log(hi / lo) (p1 - p0).
   constexpr double tolerance = 1e-9;  // px, rounding only
   SUBCASE("two decades: the 1-2-5 sequence") {
-    const svg::LogScale s(2, 200, 100, 800);
+    const report::svg::LogScale s(2, 200, 100, 800);
     std::vector<std::string> labels;
     for (double t : s.ticks()) {
       labels.push_back(s.tick_label(t));
@@ -160,14 +160,14 @@ TEST_CASE("map axes: a log scale ticks 1, 2, 5 x 10^k in plain numbers, each at 
     CHECK(s(200) == doctest::Approx(800));
   }
   SUBCASE("six decades: powers of ten only, small ones without an exponent") {
-    const svg::LogScale s(0.001, 1000, 500, 40);  // a y axis: pixels decrease upward
+    const report::svg::LogScale s(0.001, 1000, 500, 40);  // a y axis: pixels decrease upward
     std::vector<std::string> labels;
     for (double t : s.ticks()) labels.push_back(s.tick_label(t));
     CHECK(labels == std::vector<std::string>{"0.001", "0.01", "0.1", "1", "10", "100", "1000"});
     CHECK(s(1) == doctest::Approx(270));  // the middle decade boundary of six
   }
   SUBCASE("a narrow range gets round linear ticks inside it") {
-    const svg::LogScale s(20, 35, 0, 100);
+    const report::svg::LogScale s(20, 35, 0, 100);
     REQUIRE(s.ticks().size() >= 4);
     for (double t : s.ticks()) {
       CHECK(t >= 20);
@@ -176,21 +176,21 @@ TEST_CASE("map axes: a log scale ticks 1, 2, 5 x 10^k in plain numbers, each at 
     }
   }
   SUBCASE("a range of a factor of 3.5 holding one 1-2-5 tick gets enough ticks to read") {
-    const svg::LogScale s(13, 45, 0, 100);
+    const report::svg::LogScale s(13, 45, 0, 100);
     std::vector<std::string> labels;
     for (double t : s.ticks()) labels.push_back(s.tick_label(t));
     CHECK(labels == std::vector<std::string>{"15", "20", "25", "30", "35", "40", "45"});
   }
   SUBCASE("a range without a logarithm falls back to 1 to 10") {
-    const svg::LogScale s(-3, 0, 0, 100);
+    const report::svg::LogScale s(-3, 0, 0, 100);
     CHECK(s.lo() == 1);
     CHECK(s.hi() == 10);
   }
 }
 
 TEST_CASE("map: plate radius over yield stress and flow index, with limits, a spec box and failed points") {
-  const ReadingMap m = plate_map();
-  const std::string svg = reading_map_svg(m);
+  const report::ReadingMap m = plate_map();
+  const std::string svg = report::reading_map_svg(m);
   const XmlReader x(svg);  // throws, failing the test, when not well-formed
 
   SUBCASE("contour labels keep clear of the limit lines") {
@@ -220,7 +220,7 @@ TEST_CASE("map: plate radius over yield stress and flow index, with limits, a sp
   SUBCASE("title, notes, caution and the count of failed points are shown") {
     CHECK(some_text_is(x, m.title));
     CHECK(some_text_is(x, m.notes.front()));
-    CHECK(some_text_is(x, bench_caution));
+    CHECK(some_text_is(x, report::bench_caution));
     const auto failed_note = texts_of(x, "failed-note");
     REQUIRE(failed_note.size() == 1);
     CHECK(failed_note.front().find("failed at 2 of 441 grid points") != std::string::npos);
@@ -303,7 +303,7 @@ TEST_CASE("map: plate radius over yield stress and flow index, with limits, a sp
 
 TEST_CASE("map: a slump under 3 cm is labelled in mm") {
   // Pashias et al. (1996): at most about 19 mm of slump from a 20 mm cylinder over these grids.
-  const std::string svg = reading_map_svg(slump_map());
+  const std::string svg = report::reading_map_svg(slump_map());
   const XmlReader x(svg);
   bool legend_in_mm = false;
   for (const XmlNode& n : x.nodes())
@@ -322,9 +322,9 @@ TEST_CASE("map: a slump under 3 cm is labelled in mm") {
 }
 
 TEST_CASE("map: a grid where the model failed everywhere still gives a readable page") {
-  ReadingMap m = plate_map(5);
+  report::ReadingMap m = plate_map(5);
   for (auto& row : m.reading) std::fill(row.begin(), row.end(), std::nan(""));
-  const std::string svg = reading_map_svg(m);
+  const std::string svg = report::reading_map_svg(m);
   const XmlReader x(svg);
   CHECK(with_class(x, "contour").empty());
   CHECK(with_class(x, "in-limits").empty());
@@ -335,23 +335,23 @@ TEST_CASE("map: a grid where the model failed everywhere still gives a readable 
 }
 
 TEST_CASE("map: input that breaks the conventions is refused") {
-  ReadingMap m = plate_map(5);
+  report::ReadingMap m = plate_map(5);
   SUBCASE("a logarithmic axis with a zero") {
     m.x.front() = 0;
-    CHECK_THROWS_AS(reading_map_svg(m), std::invalid_argument);
+    CHECK_THROWS_AS(report::reading_map_svg(m), std::invalid_argument);
   }
   SUBCASE("a descending axis") {
     std::reverse(m.y.begin(), m.y.end());
-    CHECK_THROWS_AS(reading_map_svg(m), std::invalid_argument);
+    CHECK_THROWS_AS(report::reading_map_svg(m), std::invalid_argument);
   }
   SUBCASE("a row of the wrong length") {
     m.reading.back().pop_back();
-    CHECK_THROWS_AS(reading_map_svg(m), std::invalid_argument);
+    CHECK_THROWS_AS(report::reading_map_svg(m), std::invalid_argument);
   }
   SUBCASE("reading limits upside down or not finite") {
     m.reading_limits = {{0.09, 0.07}};
-    CHECK_THROWS_AS(reading_map_svg(m), std::invalid_argument);
+    CHECK_THROWS_AS(report::reading_map_svg(m), std::invalid_argument);
     m.reading_limits = {{std::nan(""), 0.07}};
-    CHECK_THROWS_AS(reading_map_svg(m), std::invalid_argument);
+    CHECK_THROWS_AS(report::reading_map_svg(m), std::invalid_argument);
   }
 }

@@ -49,8 +49,8 @@ io::TestDescription channel_test(const std::string& csv, const std::string& unit
 }
 
 struct ChannelPlot {
-  std::vector<FitSeries> series;
-  FitOutcome outcome;
+  std::vector<fit::FitSeries> series;
+  report::FitOutcome outcome;
   std::string svg;
 };
 
@@ -64,9 +64,9 @@ const ChannelPlot& channel_plot() {
     f.series.front().sigma = 3e-4;
     f.series.front().label = "data/RS-0001.csv";
     f.outcome.tests = {channel_test("data/RS-0001.csv", "mm")};
-    f.outcome.candidates = {fit_law(f.series, Law::Bingham)};
+    f.outcome.candidates = {fit::fit_law(f.series, Law::Bingham)};
     f.outcome.chosen = f.outcome.candidates.front().converged() ? 0 : -1;
-    if (f.outcome.result()) f.svg = fit_plot_svg(f.outcome, f.series);
+    if (f.outcome.result()) f.svg = report::fit_plot_svg(f.outcome, f.series);
     return f;
   }();
   return fixture;
@@ -88,22 +88,22 @@ std::vector<std::pair<double, double>> points_of(const XmlNode& n) {
 }  // namespace
 
 TEST_CASE("stdout table: long intervals stay in their column and each release time names its file") {
-  FitOutcome o;
+  report::FitOutcome o;
   o.tests = {channel_test("data/run-a.csv", "cm"), channel_test("data/run-b.csv", "cm")};
-  FitResult r;
+  fit::FitResult r;
   r.law = Law::HerschelBulkley;
-  r.status = FitStatus::Converged;
+  r.status = fit::FitStatus::Converged;
   r.rmse = 1e-3;
   r.points = 20;
-  ParameterEstimate ys{"yield_stress", "Pa", 18.2, 17.51, 18.73, false, true};
-  ParameterEstimate n{"flow_index", "-", 0.4123, 0.05567, 2.416, false, false};  // undetermined: the longest cell
-  ParameterEstimate k{"consistency", "Pa.s^n", 9.1, 0.1, 1234.5, false, false};
-  ParameterEstimate t1{"time_origin", "s", -1.2, -2.0, -0.4, false, true};
-  ParameterEstimate t2{"time_origin", "s", 0.3, -0.5, 1.1, false, true};
+  fit::ParameterEstimate ys{"yield_stress", "Pa", 18.2, 17.51, 18.73, false, true};
+  fit::ParameterEstimate n{"flow_index", "-", 0.4123, 0.05567, 2.416, false, false};  // undetermined: the longest cell
+  fit::ParameterEstimate k{"consistency", "Pa.s^n", 9.1, 0.1, 1234.5, false, false};
+  fit::ParameterEstimate t1{"time_origin", "s", -1.2, -2.0, -0.4, false, true};
+  fit::ParameterEstimate t2{"time_origin", "s", 0.3, -0.5, 1.1, false, true};
   r.parameters = {ys, k, n, t1, t2};
   o.candidates = {r};
   o.chosen = 0;
-  const std::string table = summary_table(o);
+  const std::string table = report::summary_table(o);
   INFO(table);
   std::istringstream in(table);
   std::string line;
@@ -123,26 +123,26 @@ TEST_CASE("stdout table: long intervals stay in their column and each release ti
   }
   CHECK(table.find("time_origin (run-a.csv)") != std::string::npos);
   CHECK(table.find("time_origin (run-b.csv)") != std::string::npos);
-  CHECK(time_origin_labels(o) == std::vector<std::string>{"time_origin (run-a.csv)", "time_origin (run-b.csv)"});
+  CHECK(report::time_origin_labels(o) == std::vector<std::string>{"time_origin (run-a.csv)", "time_origin (run-b.csv)"});
 }
 
 TEST_CASE("units are written with a middle dot and superscripts") {
-  CHECK(svg::unit_text("Pa.s^n") == "Pa\u00b7s\u207f");
-  CHECK(svg::unit_text("Pa.s") == "Pa\u00b7s");
-  CHECK(svg::unit_text("m^3") == "m\u00b3");
-  CHECK(svg::unit_text("mm") == "mm");
-  CHECK(svg::unit_text("-") == "-");
+  CHECK(report::svg::unit_text("Pa.s^n") == "Pa\u00b7s\u207f");
+  CHECK(report::svg::unit_text("Pa.s") == "Pa\u00b7s");
+  CHECK(report::svg::unit_text("m^3") == "m\u00b3");
+  CHECK(report::svg::unit_text("mm") == "mm");
+  CHECK(report::svg::unit_text("-") == "-");
 }
 
 TEST_CASE("fit report of a channel released before the clock: from the release, on the readings' range, in mm") {
   const ChannelPlot& f = channel_plot();
-  const FitResult* r = f.outcome.result();
+  const fit::FitResult* r = f.outcome.result();
   REQUIRE(r != nullptr);
   REQUIRE(r->time_origins.size() == 1);
   INFO("release " << r->time_origins.front() << " s, sigma " << r->sigma);
   REQUIRE(r->time_origins.front() < 0);
   const XmlReader x(f.svg);
-  const FitSeries& s = f.series.front();
+  const fit::FitSeries& s = f.series.front();
 
   SUBCASE("the curve and the band start at the fitted release, left of the clock's zero") {
     const auto curve = with_class(x, "fit");
@@ -213,7 +213,7 @@ TEST_CASE("fit report of a channel released before the clock: from the release, 
 
 TEST_CASE("fit report of two rigs: each panel has a time axis that fits its own series") {
   // Readings only (a failed fit): a plate read to 60 s and a channel read to 120 s.
-  std::vector<FitSeries> series(2);
+  std::vector<fit::FitSeries> series(2);
   series[0].setup = testing::plate_setup();
   series[1].setup = testing::channel_setup();
   for (double t = 5; t <= 60 + 1e-9; t += 5) series[0].times.push_back(t), series[0].values.push_back(0.05 + t * 1e-4);
@@ -221,13 +221,13 @@ TEST_CASE("fit report of two rigs: each panel has a time axis that fits its own 
     series[1].times.push_back(t), series[1].values.push_back(0.06 + t * 1e-4);
   series[0].label = "plate.csv";
   series[1].label = "channel.csv";
-  FitOutcome o;
+  report::FitOutcome o;
   o.tests = {channel_test("channel.csv", "cm")};
-  FitResult attempt;
+  fit::FitResult attempt;
   attempt.law = Law::Bingham;
-  attempt.status = FitStatus::NotConverged;
+  attempt.status = fit::FitStatus::NotConverged;
   o.candidates = {attempt};
-  const std::string svg = fit_plot_svg(o, series);
+  const std::string svg = report::fit_plot_svg(o, series);
   const XmlReader x(svg);
   const auto titles = with_class(x, "panel-title");
   REQUIRE(titles.size() == 2);
@@ -245,7 +245,7 @@ TEST_CASE("fit report of two rigs: each panel has a time axis that fits its own 
 
 TEST_CASE("fit report of a slump test shows the measured slump") {
   // Pashias et al. (1996): the slump relation that fit_final_reading inverts; 4 cm of a 10 cm cylinder.
-  FitOutcome o;
+  report::FitOutcome o;
   io::TestDescription t;
   t.path = "slump.toml";
   t.sample_id = "RS-0002";
@@ -256,9 +256,9 @@ TEST_CASE("fit report of a slump test shows the measured slump") {
   t.final_reading = 0.04;
   t.resolution = 1e-3;
   o.tests = {t};
-  o.candidates = {fit_final_reading(t.setup, 0.04, 1e-3)};
+  o.candidates = {fit::fit_final_reading(t.setup, 0.04, 1e-3)};
   o.chosen = o.candidates.front().converged() ? 0 : -1;
-  const std::string svg = fit_plot_svg(o, {});
+  const std::string svg = report::fit_plot_svg(o, {});
   const XmlReader x(svg);
   REQUIRE(with_class(x, "final-reading").size() == 1);
   CHECK(tooltip(x, *with_class(x, "final-reading").front()) == "measured slump: 4 cm");
@@ -275,7 +275,7 @@ TEST_CASE("control chart: a left-out batch is drawn and named, and the limits co
   // Individuals chart limits: mean +/- 2.66 x mean moving range, 2.66 = 3 / d2 with d2 = 1.128 for n = 2
   // (Montgomery, Introduction to Statistical Quality Control, individuals chart; from memory).
   const std::vector<double> values = {30, 32, 31, 29};
-  ControlChart c = individuals_chart("yield_stress", "Pa", {"B1", "B2", "B4", "B5"}, values);
+  qc::ControlChart c = qc::individuals_chart("yield_stress", "Pa", {"B1", "B2", "B4", "B5"}, values);
   c.left_out = {{"B3", "power-law gives no yield_stress", 2}};
   c.spec_low = 20;
   c.spec_high = 35;
@@ -283,7 +283,7 @@ TEST_CASE("control chart: a left-out batch is drawn and named, and the limits co
   CHECK(c.centre == doctest::Approx(mean));
   CHECK(c.upper == doctest::Approx(mean + 2.66 * mr));
   CHECK(c.position(2) == 3);  // B4 comes after the left-out B3
-  const std::string svg = control_chart_svg(c, "Yield stress of product RS, 5 batches");
+  const std::string svg = report::control_chart_svg(c, "Yield stress of product RS, 5 batches");
   const XmlReader x(svg);
   const auto left = with_class(x, "left-out");
   REQUIRE(left.size() == 1);
@@ -304,11 +304,11 @@ TEST_CASE("control chart of a viscosity: on a log scale, every limit positive") 
   // Spread by factors: a linear chart would put the lower limit below zero (mean 7.17, mean moving range 2.74).
   const std::vector<double> values = {7.9, 5.7, 11.1, 8.0, 5.3, 5.0};
   std::string why;
-  REQUIRE(log_scale_suits("viscosity", values, why));
+  REQUIRE(qc::log_scale_suits("viscosity", values, why));
   CHECK(why.find("log scale") == 0);
-  const ControlChart linear = individuals_chart("viscosity", "Pa.s", {"a", "b", "c", "d", "e", "f"}, values);
+  const qc::ControlChart linear = qc::individuals_chart("viscosity", "Pa.s", {"a", "b", "c", "d", "e", "f"}, values);
   CHECK(linear.lower < 0);
-  const ControlChart c = individuals_chart("viscosity", "Pa.s", {"a", "b", "c", "d", "e", "f"}, values, 8, true);
+  const qc::ControlChart c = qc::individuals_chart("viscosity", "Pa.s", {"a", "b", "c", "d", "e", "f"}, values, 8, true);
   // Geometric mean and the moving range of the logarithms, by their definitions.
   double sum = 0, mr = 0;
   for (std::size_t i = 0; i < values.size(); ++i) {
@@ -320,7 +320,7 @@ TEST_CASE("control chart of a viscosity: on a log scale, every limit positive") 
   CHECK(c.lower == doctest::Approx(std::exp(centre - 2.66 * mean_mr)));
   CHECK(c.upper == doctest::Approx(std::exp(centre + 2.66 * mean_mr)));
   CHECK(c.lower > 0);
-  const std::string svg = control_chart_svg(c, "Viscosity of product RS, 6 batches");
+  const std::string svg = report::control_chart_svg(c, "Viscosity of product RS, 6 batches");
   const XmlReader x(svg);
   CHECK(some_text_is(x, "viscosity [Pa\u00b7s], log scale"));
   for (const auto& t : all_texts(x)) CHECK(t.find('-') != 0);  // no negative tick or limit

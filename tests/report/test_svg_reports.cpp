@@ -34,8 +34,8 @@ namespace {
 const std::string awkward_id = "TS<12>&\"co\"-'0412'";
 
 struct PlotFixture {
-  std::vector<FitSeries> series;
-  FitOutcome outcome;
+  std::vector<fit::FitSeries> series;
+  report::FitOutcome outcome;
   std::string svg;  // fit_plot_svg of the above
 };
 
@@ -56,11 +56,11 @@ const PlotFixture& converged_plot() {
     f.series = {testing::synthetic(testing::plate_setup(), {15, 8.0, 0.45}, 5e-4, 7)};
     f.series.front().label = "data/plate-run1.csv";
     f.outcome.tests = {plate_test(awkward_id)};
-    f.outcome.candidates = {fit_law(f.series, Law::Bingham)};
+    f.outcome.candidates = {fit::fit_law(f.series, Law::Bingham)};
     f.outcome.chosen = f.outcome.candidates.front().converged() ? 0 : -1;
     const std::vector<io::SpecLimit> limits = {{"yield_stress", 1.0, 1000.0, 1}};
-    f.outcome.verdict = judge(f.outcome.candidates.front(), limits);
-    if (f.outcome.result()) f.svg = fit_plot_svg(f.outcome, f.series);
+    f.outcome.verdict = qc::judge(f.outcome.candidates.front(), limits);
+    if (f.outcome.result()) f.svg = report::fit_plot_svg(f.outcome, f.series);
     return f;
   }();
   return fixture;
@@ -69,33 +69,33 @@ const PlotFixture& converged_plot() {
 }  // namespace
 
 TEST_CASE("escaping turns markup characters into references and keeps UTF-8 text") {
-  CHECK(svg::escape("a<b>&\"c\"'d'") == "a&lt;b&gt;&amp;&quot;c&quot;&apos;d&apos;");
-  CHECK(svg::escape("21.5 \u00b0C \u00b1 0.5") == "21.5 \u00b0C \u00b1 0.5");
+  CHECK(report::svg::escape("a<b>&\"c\"'d'") == "a&lt;b&gt;&amp;&quot;c&quot;&apos;d&apos;");
+  CHECK(report::svg::escape("21.5 \u00b0C \u00b1 0.5") == "21.5 \u00b0C \u00b1 0.5");
   SUBCASE("characters XML cannot carry become the replacement character") {
-    CHECK(svg::escape(std::string("a\x01"
+    CHECK(report::svg::escape(std::string("a\x01"
                                   "b")) ==
           "a\xEF\xBF\xBD"
           "b");
-    CHECK(svg::escape("tab\tand\nnewline") == "tab\tand\nnewline");
+    CHECK(report::svg::escape("tab\tand\nnewline") == "tab\tand\nnewline");
   }
   SUBCASE("bytes that are not UTF-8 become the replacement character") {
-    CHECK(svg::escape("\xff") == "\xEF\xBF\xBD");
-    CHECK(svg::escape("\xC3") == "\xEF\xBF\xBD");                          // truncated sequence
-    CHECK(svg::escape("\xC0\xAF") == "\xEF\xBF\xBD\xEF\xBF\xBD");          // overlong '/'
-    CHECK(svg::escape("\xED\xA0\x80").find("\xED") == std::string::npos);  // a surrogate
+    CHECK(report::svg::escape("\xff") == "\xEF\xBF\xBD");
+    CHECK(report::svg::escape("\xC3") == "\xEF\xBF\xBD");                          // truncated sequence
+    CHECK(report::svg::escape("\xC0\xAF") == "\xEF\xBF\xBD\xEF\xBF\xBD");          // overlong '/'
+    CHECK(report::svg::escape("\xED\xA0\x80").find("\xED") == std::string::npos);  // a surrogate
   }
 }
 
 TEST_CASE("numbers are written compactly, without exponent or negative zero") {
-  CHECK(svg::number(12.0) == "12");
-  CHECK(svg::number(12.5) == "12.5");
-  CHECK(svg::number(0.126, 2) == "0.13");
-  CHECK(svg::number(-0.001) == "0");
-  CHECK(svg::number(-3.25) == "-3.25");
-  CHECK(svg::number(1.5e7) == "15000000");
-  CHECK(svg::number(0.00042, 5) == "0.00042");
-  CHECK_THROWS_AS(svg::number(std::nan("")), std::invalid_argument);
-  CHECK_THROWS_AS(svg::number(INFINITY), std::invalid_argument);
+  CHECK(report::svg::number(12.0) == "12");
+  CHECK(report::svg::number(12.5) == "12.5");
+  CHECK(report::svg::number(0.126, 2) == "0.13");
+  CHECK(report::svg::number(-0.001) == "0");
+  CHECK(report::svg::number(-3.25) == "-3.25");
+  CHECK(report::svg::number(1.5e7) == "15000000");
+  CHECK(report::svg::number(0.00042, 5) == "0.00042");
+  CHECK_THROWS_AS(report::svg::number(std::nan("")), std::invalid_argument);
+  CHECK_THROWS_AS(report::svg::number(INFINITY), std::invalid_argument);
 }
 
 TEST_CASE("scale ticks are round numbers that cover the data") {
@@ -104,7 +104,7 @@ TEST_CASE("scale ticks are round numbers that cover the data") {
   };
   for (const Range r : {Range{0, 60}, Range{6.13, 14.87}, Range{-0.93, 0.81}, Range{0.00012, 0.00019},
                         Range{1234, 98765}, Range{5, 5}}) {
-    const svg::LinearScale s(r.lo, r.hi, 100, 500, 6);
+    const report::svg::LinearScale s(r.lo, r.hi, 100, 500, 6);
     INFO("range " << r.lo << " to " << r.hi << ": step " << s.step() << ", " << s.ticks().size() << " ticks");
     CHECK(s.lo() <= r.lo);
     CHECK(s.hi() >= r.hi);
@@ -122,21 +122,21 @@ TEST_CASE("scale ticks are round numbers that cover the data") {
 }
 
 TEST_CASE("wrapped lines fit the width and join back into the text") {
-  const std::string text = bench_caution;
+  const std::string text = report::bench_caution;
   const double width = 500, size = 12;
-  const auto lines = svg::wrap(text, width, size);
+  const auto lines = report::svg::wrap(text, width, size);
   CHECK(lines.size() >= 2);
   std::string joined;
   for (const auto& l : lines) {
-    CHECK(svg::text_width(l, size) <= width);
+    CHECK(report::svg::text_width(l, size) <= width);
     joined += (joined.empty() ? "" : " ") + l;
   }
   CHECK(joined == text);
-  CHECK(svg::wrap("", width, size).empty());
+  CHECK(report::svg::wrap("", width, size).empty());
 }
 
 TEST_CASE("a document closes what is still open and refuses an unmatched close") {
-  svg::Document doc(120, "a <small> test");
+  report::svg::Document doc(120, "a <small> test");
   doc.open("g", {{"class", "outer"}});
   doc.add_text("text", {{"x", 1.5}, {"y", 2.0}}, "x < y & z");
   doc.add_text_lines({{"font-size", 10.0}}, {"first line", "second line"}, 5, 20, 12);
@@ -147,17 +147,17 @@ TEST_CASE("a document closes what is still open and refuses an unmatched close")
   CHECK(some_text_is(x, "x < y & z"));
   CHECK(some_text_is(x, "first line second line"));
   CHECK(collapsed(x.nodes()[1].content) == "a <small> test");
-  svg::Document empty(10, "t");
+  report::svg::Document empty(10, "t");
   CHECK_THROWS_AS(empty.close(), std::logic_error);
   CHECK_THROWS_AS(empty.finish(0), std::invalid_argument);
 }
 
 TEST_CASE("fit plot of a converged fit: readings, curve, band, residuals, header and caution") {
   const PlotFixture& f = converged_plot();
-  const FitResult& fit = f.outcome.candidates.front();
-  INFO(fit_status_name(fit.status) << " " << fit.reason << ", " << fit.evaluations << " solves");
+  const fit::FitResult& fit = f.outcome.candidates.front();
+  INFO(fit::fit_status_name(fit.status) << " " << fit.reason << ", " << fit.evaluations << " solves");
   REQUIRE(f.outcome.result() != nullptr);
-  REQUIRE(f.outcome.verdict.status == Verdict::Status::Pass);
+  REQUIRE(f.outcome.verdict.status == qc::Verdict::Status::Pass);
   const std::string& svg = f.svg;
   const XmlReader x(svg);  // throws, failing the test, when not well-formed
   const std::size_t readings = f.series.front().times.size();
@@ -173,7 +173,7 @@ TEST_CASE("fit plot of a converged fit: readings, curve, band, residuals, header
     const auto verdict = with_class(x, "verdict");
     REQUIRE(verdict.size() == 1);
     CHECK(verdict.front()->content == "PASS");
-    CHECK(some_text_is(x, bench_caution));
+    CHECK(some_text_is(x, report::bench_caution));
   }
   SUBCASE("one marker, error bar and residual per reading") {
     CHECK(with_class(x, "reading").size() == readings);
@@ -203,15 +203,15 @@ TEST_CASE("fit plot of a converged fit: readings, curve, band, residuals, header
 
 TEST_CASE("fit plot of a failed fit still shows the readings with a no-result note") {
   const PlotFixture& good = converged_plot();
-  FitOutcome failed;
+  report::FitOutcome failed;
   failed.tests = {plate_test("TS12-0413")};
-  FitResult attempt;
+  fit::FitResult attempt;
   attempt.law = Law::HerschelBulkley;
-  attempt.status = FitStatus::NotConverged;
+  attempt.status = fit::FitStatus::NotConverged;
   attempt.reason = "iteration limit reached";
   failed.candidates = {attempt};
   failed.chosen = -1;
-  const std::string svg = fit_plot_svg(failed, good.series);
+  const std::string svg = report::fit_plot_svg(failed, good.series);
   const XmlReader x(svg);
   CHECK(with_class(x, "reading").size() == good.series.front().times.size());
   CHECK(with_class(x, "residual").empty());
@@ -219,7 +219,7 @@ TEST_CASE("fit plot of a failed fit still shows the readings with a no-result no
   CHECK(with_class(x, "no-result").size() == 1);
   CHECK(some_text_is(x, "herschel-bulkley: not converged \u2014 iteration limit reached"));
   CHECK(with_class(x, "verdict").front()->content == "NO SPEC");
-  CHECK(some_text_is(x, bench_caution));
+  CHECK(some_text_is(x, report::bench_caution));
   check_renders(svg, svg_width(x), "failed-fit-plot");
 }
 
@@ -230,14 +230,14 @@ TEST_CASE("control chart marks the point beyond the limits and the run, and labe
                                 10.2, 11.1, 11.4, 11.2, 11.0, 11.3, 11.5, 11.1, 11.2, 11.4, 11.3};
   std::vector<std::string> labels;
   for (std::size_t i = 0; i < values.size(); ++i) labels.push_back("B-" + std::to_string(401 + i));
-  const ControlChart chart = individuals_chart("yield_stress", "Pa", labels, values);
+  const qc::ControlChart chart = qc::individuals_chart("yield_stress", "Pa", labels, values);
   REQUIRE(chart.beyond_limits[5]);
   const auto beyond_count = std::size_t(std::count(chart.beyond_limits.begin(), chart.beyond_limits.end(), true));
   const auto run_count = std::size_t(std::count(chart.in_run.begin(), chart.in_run.end(), true));
   INFO("beyond " << beyond_count << ", in run " << run_count << ", limits " << chart.lower << " to " << chart.upper);
   REQUIRE(run_count >= 8);
 
-  const std::string svg = control_chart_svg(chart, "Yield stress of TS12 & <trial> batches");
+  const std::string svg = report::control_chart_svg(chart, "Yield stress of TS12 & <trial> batches");
   const XmlReader x(svg);
   const auto beyond = with_class(x, "beyond-limits");
   REQUIRE(beyond.size() == beyond_count);
@@ -261,7 +261,7 @@ TEST_CASE("control chart marks the point beyond the limits and the run, and labe
   CHECK(collapsed(with_class(x, "title").front()->content) == "Yield stress of TS12 & <trial> batches");
   CHECK(with_class(x, "UCL").size() == 1);
   CHECK(with_class(x, "LCL").size() == 1);
-  CHECK(some_text_is(x, bench_caution));
+  CHECK(some_text_is(x, report::bench_caution));
   check_renders(svg, svg_width(x), "control-chart");
 }
 
@@ -272,8 +272,8 @@ TEST_CASE("control chart of many batches labels a subset that does not crowd") {
     values.push_back(20 + std::sin(0.7 * i) + 0.3 * std::cos(2.3 * i));
     labels.push_back("TS12-" + std::to_string(1000 + i));
   }
-  const ControlChart chart = individuals_chart("viscosity", "Pa.s", labels, values);
-  const std::string svg = control_chart_svg(chart, "Viscosity");
+  const qc::ControlChart chart = qc::individuals_chart("viscosity", "Pa.s", labels, values);
+  const std::string svg = report::control_chart_svg(chart, "Viscosity");
   const XmlReader x(svg);
   const auto batch = with_class(x, "batch");
   INFO(batch.size() << " of " << labels.size() << " ids shown");
