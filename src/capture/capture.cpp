@@ -310,9 +310,10 @@ int hidden_margin(const cv::Mat& background, const cv::Mat& holes, const cv::Rec
 }  // namespace
 
 CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, const CaptureOptions& o) {
-  const auto* plate = std::get_if<PlateRig>(&rig);
+  const io::CapturedOutline outline = io::captured_outline(rig);
+  if (outline == io::CapturedOutline::None) throw std::invalid_argument("capture reads plate and channel tests only");
+  const auto* plate = std::get_if<PlateRig>(&rig);  // set exactly when outline is PlateDiameter
   const auto* channel = std::get_if<ChannelRig>(&rig);
-  if (!plate && !channel) throw std::invalid_argument("capture reads plate and channel tests only");
 
   CaptureResult result;
   result.reading = plate ? Reading::Diameter : Reading::Front;

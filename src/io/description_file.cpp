@@ -659,9 +659,10 @@ void DescriptionReader::read_capture(const toml::table& root, TestDescription& o
   if (!capture)
     fail(0, "capture", "missing table [capture] (expected at least video = \"...\" and the scale, see the README)");
   check_keys(*capture, "capture", kCaptureKeys);
-  const bool plate = std::holds_alternative<PlateRig>(out.setup.rig);
-  const bool channel = std::holds_alternative<ChannelRig>(out.setup.rig);
-  if (!plate && !channel)
+  const CapturedOutline outline = captured_outline(out.setup.rig);
+  const bool plate = outline == CapturedOutline::PlateDiameter;
+  const bool channel = outline == CapturedOutline::ChannelFront;
+  if (outline == CapturedOutline::None)
     fail(line_of(*capture), "capture",
          "a " + std::string(rig_kind_name(out.setup.rig)) +
              " rig has no video capture (expected a plate or a channel rig)");
@@ -882,6 +883,14 @@ TestDescription DescriptionReader::read() {
 
 std::map<std::string, ProductSpec> load_spec_catalogue(const std::filesystem::path& file) {
   return DescriptionReader(file).read_catalogue();
+}
+
+CapturedOutline captured_outline(const Rig& rig) {
+  return std::visit(overloaded{[](const ChannelRig&) { return CapturedOutline::ChannelFront; },
+                               [](const PlateRig&) { return CapturedOutline::PlateDiameter; },
+                               [](const SqueezeRig&) { return CapturedOutline::None; },
+                               [](const SlumpRig&) { return CapturedOutline::None; }},
+                    rig);
 }
 
 TestDescription load_test_description(const std::filesystem::path& file, const LoadOptions& options) {

@@ -70,6 +70,11 @@ struct FitSettings {
   double ignore_before = 0;      ///< [s]; readings at times < ignore_before are not fitted
 };
 
+/// What `spreadfit capture` measures on a rig's video: the plate's spread diameter, the channel's front past the
+/// gate, or nothing (a squeeze or slump test has no outline to follow). One answer per rig kind, by exhaustive visit.
+enum class CapturedOutline { None, PlateDiameter, ChannelFront };
+CapturedOutline captured_outline(const Rig& rig);
+
 /// The [capture] table: how `spreadfit capture` reads the test's video.
 struct CaptureSettings {
   enum class Scale { Board, Ring, Channel };

@@ -545,3 +545,13 @@ TEST_CASE("io: a reading larger than the sample's volume allows is refused with 
     CHECK(what.find("larger than the rig allows") != std::string::npos);
   }
 }
+
+TEST_CASE("capture follows a plate's diameter and a channel's front; a squeeze or slump rig has no outline") {
+  // The readings a video can give (README, "capture"): the defining property of each rig kind, one answer each.
+  using spreadfit::io::captured_outline;
+  using spreadfit::io::CapturedOutline;
+  CHECK(captured_outline(PlateRig{}) == CapturedOutline::PlateDiameter);
+  CHECK(captured_outline(ChannelRig{}) == CapturedOutline::ChannelFront);
+  CHECK(captured_outline(SqueezeRig{}) == CapturedOutline::None);
+  CHECK(captured_outline(SlumpRig{}) == CapturedOutline::None);
+}
