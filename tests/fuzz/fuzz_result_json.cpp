@@ -8,7 +8,7 @@
 extern "C" int LLVMFuzzerTestOneInput(const std::uint8_t* data, std::size_t size) {
   const auto file = spreadfit::fuzz::scratch_file("r.json", data, size);
   try {
-    (void)spreadfit::load_fitted_material(file);
+    (void)spreadfit::fit::load_fitted_material(file);
   } catch (const spreadfit::io::InputError&) {
   }
   return 0;
