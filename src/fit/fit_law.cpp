@@ -624,22 +624,48 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
   return out;
 }
 
+int ModelChoice::index_of(Law law) const {
+  for (std::size_t i = 0; i < candidates.size(); ++i)
+    if (candidates[i].law == law) return int(i);
+  return -1;
+}
+
+const FitResult* ModelChoice::candidate(Law law) const {
+  const int i = index_of(law);
+  return i >= 0 ? &candidates[std::size_t(i)] : nullptr;
+}
+
+namespace {
+/// The laws a law's fit starts from: its special cases with one parameter fewer (Newtonian for the power law and
+/// Bingham; both of those for Herschel-Bulkley).
+std::vector<Law> simpler_relatives(Law law) {
+  switch (law) {
+    case Law::Newtonian: return {};
+    case Law::PowerLaw: return {Law::Newtonian};
+    case Law::Bingham: return {Law::Newtonian};
+    case Law::HerschelBulkley: return {Law::PowerLaw, Law::Bingham};
+  }
+  return {};
+}
+}  // namespace
+
 ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& options) {
   ModelChoice choice;
   // Every law is fitted with quadratic intervals, for the comparison by AICc; nested laws start from their
   // simpler relatives (Newtonian -> power law, Bingham -> Herschel-Bulkley).
   FitOptions quick = options;
   quick.profile_intervals = false;
-  const FitResult newtonian = fit_law(series, Law::Newtonian, quick);
-  const FitResult power = fit_law(series, Law::PowerLaw, quick, {newtonian});
-  const FitResult bingham = fit_law(series, Law::Bingham, quick, {newtonian});
-  const FitResult hb = fit_law(series, Law::HerschelBulkley, quick, {power, bingham});
-  choice.candidates = {newtonian, power, bingham, hb};
-  auto index_of = [&](Law law) {
-    for (std::size_t i = 0; i < choice.candidates.size(); ++i)
-      if (choice.candidates[i].law == law) return int(i);
-    return -1;
-  };
+  // all_laws() lists every law after its simpler relatives, so each start is fitted before the law it starts.
+  for (const Law law : all_laws()) {
+    std::vector<FitResult> starts;
+    for (const Law relative : simpler_relatives(law)) starts.push_back(*choice.candidate(relative));
+    choice.candidates.push_back(fit_law(series, law, quick, starts));
+  }
+  auto index_of = [&](Law law) { return choice.index_of(law); };
+  // The starts of the general fit below: the candidates as fitted, before the general fit replaces its own.
+  const std::vector<FitResult> liquid_starts{*choice.candidate(Law::Newtonian)};
+  const std::vector<FitResult> general_starts{*choice.candidate(Law::HerschelBulkley), *choice.candidate(Law::Bingham),
+                                              *choice.candidate(Law::PowerLaw)};
   double best = std::numeric_limits<double>::infinity();
   for (const FitResult& r : choice.candidates)
     if (r.converged()) best = std::min(best, r.aicc);
@@ -675,7 +701,7 @@ ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& opt
   FitOptions general_options = options;
   if (choice.candidates[std::size_t(reported)].converged()) general_options.global_evaluations = 0;
   FitResult general = fit_law(series, choice.candidates[std::size_t(reported)].law, general_options,
-                              liquid ? std::vector<FitResult>{newtonian} : std::vector<FitResult>{hb, bingham, power});
+                              liquid ? liquid_starts : general_starts);
   // The general fit's solves include its own only; a caller adds the candidates' (fit.evaluations in the JSON).
   general.evaluations += choice.candidates[std::size_t(reported)].evaluations;
   const bool usable = general.status == FitStatus::Converged;

@@ -34,6 +34,11 @@ struct ModelChoice {
   int best_description = -1;          ///< the law AICc prefers (index into candidates)
   std::vector<double> weights;        ///< Akaike weights of the candidates (0 for a failed fit)
   std::string explanation;            ///< plain words: which law describes the readings best and what is reported
+
+  /// Index into candidates of the fit of `law`; -1 when that law was not tried.
+  int index_of(Law law) const;
+  /// The fit of `law`; nullptr when that law was not tried.
+  const FitResult* candidate(Law law) const;
 };
 
 /// Fits every law and names the best description by AICc, preferring the simpler law when the evidence is weak

@@ -5,14 +5,15 @@
 #include <limits>
 #include <stdexcept>
 
+#include "src/fit/parameter_names.hpp"
+
 namespace spreadfit::fit {
 
 namespace {
-// Physical bounds (common practice for foods and cosmetics, no source): yield stress 0.01 Pa - 10 kPa,
-// consistency / viscosity 1e-4 - 1e5 Pa s^n, flow index 0.1 - 2.
-constexpr double tau_min = 1e-2, tau_max = 1e4;
-constexpr double k_min = 1e-4, k_max = 1e5;
-constexpr double n_min = 0.1, n_max = 2.0;
+// The material parameters' box comes from the parameter table (src/fit/parameter_names.hpp), each searched on its
+// logarithm or linearly as the table says.
+double to_fit_space(const ParameterInfo& p, double si) { return p.log_space ? std::log(si) : si; }
+double from_fit_space(const ParameterInfo& p, double x) { return p.log_space ? std::exp(x) : x; }
 // Reading weight when no resolution is stated: the variance is then estimated from the residuals, so this only
 // fixes the scale of the weighted sum.
 constexpr double nominal_sigma = 1e-3;
@@ -26,13 +27,13 @@ FitProblem::FitProblem(const std::vector<FitSeries>& series, Law law, const FitO
     lo.push_back(a);
     hi.push_back(b);
   };
-  const bool has_tau = law == Law::Bingham || law == Law::HerschelBulkley;
-  const bool has_n = law == Law::PowerLaw || law == Law::HerschelBulkley;
-  if (has_tau) add("yield_stress", std::log(tau_min), std::log(tau_max));
-  add(has_n ? "consistency" : "viscosity", std::log(k_min), std::log(k_max));
-  if (has_n) add("flow_index", std::log(n_min), std::log(n_max));
+  const std::span<const Parameter> layout = law_parameters(law);
+  for (std::size_t i = 0; i < layout.size(); ++i) {
+    const ParameterInfo& p = parameter_info(layout[i]);
+    add(std::string(p.name), to_fit_space(p, p.fit_lower), to_fit_space(p, p.fit_upper));
+    if (p.id == Parameter::FlowIndex && options.flow_index_prior) prior_index_ = int(i);
+  }
   material_count_ = int(names_.size());
-  if (has_n && options.flow_index_prior) prior_index_ = material_count_ - 1;
 
   for (const FitSeries& s : series_) {
     std::vector<double> t, v;
@@ -66,7 +67,7 @@ FitProblem::FitProblem(const std::vector<FitSeries>& series, Law law, const FitO
         low = std::max(low, -5.0);
         high = std::min(high, 2.0);
       }
-      add("time_origin", low, high);
+      add(std::string(parameter_name(Parameter::TimeOrigin)), low, high);
     } else {
       origin_index_.push_back(-1);
     }
@@ -79,11 +80,14 @@ FitProblem::FitProblem(const std::vector<FitSeries>& series, Law law, const FitO
 
 Material FitProblem::material(const Eigen::VectorXd& theta) const {
   Material m;
-  int i = 0;
-  if (law_ == Law::Bingham || law_ == Law::HerschelBulkley) m.yield_stress = std::exp(theta[i++]);
-  m.consistency = std::exp(theta[i++]);
-  // exp(log(2)) may round above 2, which the law's own range check refuses.
-  if (law_ == Law::PowerLaw || law_ == Law::HerschelBulkley) m.flow_index = std::min(std::exp(theta[i++]), n_max);
+  Eigen::Index i = 0;
+  for (const Parameter id : law_parameters(law_)) {
+    const ParameterInfo& p = parameter_info(id);
+    double value = from_fit_space(p, theta[i++]);
+    // exp(log(2)) may round above 2, which the law's own range check refuses.
+    if (id == Parameter::FlowIndex) value = std::min(value, p.fit_upper);
+    m.*p.member = value;
+  }
   return m;
 }
 
@@ -95,10 +99,12 @@ std::vector<double> FitProblem::time_origins(const Eigen::VectorXd& theta) const
 
 Eigen::VectorXd FitProblem::parameters(const Material& m, const std::vector<double>& t0) const {
   Eigen::VectorXd theta(size());
-  int i = 0;
-  if (law_ == Law::Bingham || law_ == Law::HerschelBulkley) theta[i++] = std::log(std::max(m.yield_stress, tau_min));
-  theta[i++] = std::log(m.consistency);
-  if (law_ == Law::PowerLaw || law_ == Law::HerschelBulkley) theta[i++] = std::log(m.flow_index);
+  Eigen::Index i = 0;
+  // A value below the box (a yield stress of 0) starts at its lower bound.
+  for (const Parameter id : law_parameters(law_)) {
+    const ParameterInfo& p = parameter_info(id);
+    theta[i++] = to_fit_space(p, std::max(m.*p.member, p.fit_lower));
+  }
   for (std::size_t s = 0; s < origin_index_.size(); ++s)
     if (origin_index_[s] >= 0) theta[origin_index_[s]] = s < t0.size() ? t0[s] : 0.0;
   return theta.cwiseMax(lower_).cwiseMin(upper_);

@@ -1,4 +1,5 @@
 #include "src/fit/flow_index_prior.hpp"
+#include "src/fit/parameter_names.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -62,7 +63,7 @@ std::optional<FlowIndexPrior> learn_flow_index_prior(const std::vector<BatchFlow
 
 FitResult fit_with_prior(const std::vector<FitSeries>& series, const FitResult& without, const FitOptions& options,
                          const FlowIndexPrior& prior) {
-  const ParameterEstimate* n = find(without, "flow_index");
+  const ParameterEstimate* n = find(without, std::string(parameter_name(Parameter::FlowIndex)));
   if (!n || !without.converged()) return without;
   FitResult out = without;
   out.without_prior = *n;
@@ -100,7 +101,8 @@ FitResult fit_with_prior(const std::vector<FitSeries>& series, const FitResult& 
   r.evaluations += without.evaluations;
   // How much it helped: the judged parameter's interval, before and after (in log width, as the parameters span
   // decades).
-  for (const char* name : {"yield_stress", "consistency"}) {
+  for (const Parameter judged : {Parameter::YieldStress, Parameter::Consistency}) {
+    const std::string name(parameter_name(judged));
     const ParameterEstimate* a = find(without, name);
     const ParameterEstimate* b = find(r, name);
     if (!a || !b || a->upper_only || b->upper_only || !(a->lower > 0) || !(b->lower > 0)) continue;
@@ -108,7 +110,7 @@ FitResult fit_with_prior(const std::vector<FitSeries>& series, const FitResult& 
     r.prior_note = fmt::format("the product's flow-index prior ({:.3g} +/- {:.2g}, {}) {} the {} interval from "
                                "{:.4g}-{:.4g} to {:.4g}-{:.4g} {} ({:.0f}% of its width on a log scale)",
                                prior.typical, prior.spread, prior.source, ratio < 1.0 ? "narrowed" : "moved",
-                               name == std::string("yield_stress") ? "yield stress" : "consistency", a->lower,
+                               parameter_info(judged).plain_name, a->lower,
                                a->upper, b->lower, b->upper, b->unit, 100.0 * ratio);
     break;
   }

@@ -1,4 +1,5 @@
 #include "src/history/history_db.hpp"
+#include "src/fit/parameter_names.hpp"
 
 #include <fmt/format.h>
 
@@ -155,7 +156,7 @@ StoredResult stored_result(const report::FitOutcome& o) {
   if (const fit::FitResult* r = o.result()) {
     s.law = std::string(law_name(r->law));
     for (const auto& p : r->parameters)
-      if (p.name != "time_origin") s.parameters.emplace_back(p.name, p.value, p.lower, p.upper, p.unit);
+      if (!fit::is_parameter(p.name, fit::Parameter::TimeOrigin)) s.parameters.emplace_back(p.name, p.value, p.lower, p.upper, p.unit);
   }
   s.verdict = std::string(qc::verdict_status_name(o.verdict.status));
   s.input_hash = input_hash(o.tests);

@@ -1,4 +1,5 @@
 #include "src/qc/control_chart.hpp"
+#include "src/fit/parameter_names.hpp"
 
 #include <algorithm>
 #include <cmath>
@@ -84,7 +85,9 @@ bool log_scale_suits(const std::string& parameter, const std::vector<double>& va
     why = "linear scale: not every value is positive";
     return false;
   }
-  if (parameter == "viscosity" || parameter == "consistency") {
+  // K, the viscosity or consistency, spans decades between products and batches.
+  const fit::ParameterInfo* p = fit::find_material_parameter(parameter);
+  if (p && p->member == &Material::consistency) {
     why = "log scale: a " + parameter +
           " varies by factors (it is fitted as its logarithm), so the limits are "
           "set on the logarithms and stay positive";

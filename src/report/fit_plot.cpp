@@ -1,4 +1,5 @@
 #include "src/report/fit_plot.hpp"
+#include "src/fit/parameter_names.hpp"
 #include "src/report/interval_text.hpp"
 
 #include <fmt/format.h>
@@ -337,7 +338,7 @@ double header(Document& doc, const FitOutcome& outcome, const std::vector<View>&
     y = svg::text_lines(doc, svg::wrap(model, text_width, 13), page_margin, y, 13, ink);
     std::string parameters;
     for (const auto& p : r->parameters) {
-      if (p.name == "time_origin") continue;
+      if (fit::is_parameter(p.name, fit::Parameter::TimeOrigin)) continue;
       if (!parameters.empty()) parameters += ";  ";
       parameters += parameter_text(p);
     }

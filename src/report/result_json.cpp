@@ -1,4 +1,5 @@
 #include "src/report/result_json.hpp"
+#include "src/fit/parameter_names.hpp"
 
 #include "src/version.hpp"
 
@@ -56,9 +57,9 @@ nlohmann::json result_json(const FitOutcome& o) {
   j["parameters"] = json::object();
   if (r) {
     int origins = 0;
-    for (const auto& p : r->parameters) origins += p.name == "time_origin";
+    for (const auto& p : r->parameters) origins += fit::is_parameter(p.name, fit::Parameter::TimeOrigin);
     for (const auto& p : r->parameters) {
-      if (p.name == "time_origin" && origins > 1) continue;  // listed per series under fit.time_origins
+      if (fit::is_parameter(p.name, fit::Parameter::TimeOrigin) && origins > 1) continue;  // listed per series under fit.time_origins
       json e = {{"value", p.value}, {"unit", p.unit}, {"ci95", {p.lower, p.upper}}};
       if (p.upper_only) e["upper_bound_only"] = true;
       if (p.lower_open && !p.upper_only) e["lower_open"] = true;
@@ -142,12 +143,12 @@ nlohmann::json result_json(const FitOutcome& o) {
     for (fit::FitQuality q : r->quality) quality.push_back(std::string(fit_quality_name(q)));
     fit["quality"] = quality;
     if (r->prior)
-      fit["prior"] = {{"parameter", "flow_index"}, {"typical", r->prior->typical}, {"spread", r->prior->spread},
+      fit["prior"] = {{"parameter", fit::parameter_name(fit::Parameter::FlowIndex)}, {"typical", r->prior->typical}, {"spread", r->prior->spread},
                       {"source", r->prior->source}};
     if (!r->prior_note.empty()) fit["prior_note"] = r->prior_note;
     if (r->without_prior) {
       const fit::ParameterEstimate& n = *r->without_prior;
-      fit["flow_index_without_prior"] = {{"value", n.value}, {"ci95", {n.lower, n.upper}},
+      fit[std::string(fit::parameter_name(fit::Parameter::FlowIndex)) + "_without_prior"] = {{"value", n.value}, {"ci95", {n.lower, n.upper}},
                                          {"determined", n.identifiable && !n.lower_open && !n.upper_open}};
     }
   }

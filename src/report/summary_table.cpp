@@ -1,4 +1,5 @@
 #include "src/report/summary_table.hpp"
+#include "src/fit/parameter_names.hpp"
 
 #include <fmt/format.h>
 
@@ -65,12 +66,13 @@ std::vector<std::string> time_origin_labels(const FitOutcome& o) {
   const fit::FitResult* r = o.result();
   const std::size_t origins =
       r ? std::size_t(std::count_if(r->parameters.begin(), r->parameters.end(),
-                                    [](const fit::ParameterEstimate& p) { return p.name == "time_origin"; }))
+                                    [](const fit::ParameterEstimate& p) { return fit::is_parameter(p.name, fit::Parameter::TimeOrigin); }))
         : 0;
+  const std::string_view time_origin = fit::parameter_name(fit::Parameter::TimeOrigin);
   std::vector<std::string> labels;
   for (std::size_t k = 0; k < origins; ++k)
-    labels.push_back(origins > 1 && k < files.size() ? fmt::format("time_origin ({})", files[k])
-                                                     : std::string("time_origin"));
+    labels.push_back(origins > 1 && k < files.size() ? fmt::format("{} ({})", time_origin, files[k])
+                                                     : std::string(time_origin));
   return labels;
 }
 
@@ -104,7 +106,7 @@ std::string summary_table(const FitOutcome& o) {
     std::vector<std::vector<std::string>> rows;
     for (const auto& p : r->parameters) {
       std::string name = p.name;
-      if (p.name == "time_origin" && origin < origin_labels.size()) name = origin_labels[origin++];
+      if (fit::is_parameter(p.name, fit::Parameter::TimeOrigin) && origin < origin_labels.size()) name = origin_labels[origin++];
       rows.push_back(row_of(name, p));
     }
     s += parameter_rows(rows);

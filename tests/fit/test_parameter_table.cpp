@@ -2,11 +2,17 @@
 // unit is the one the plausible ranges and the laws use.
 #include <doctest/doctest.h>
 
+#include <cmath>
 #include <set>
+#include <span>
+#include <vector>
 #include <stdexcept>
 
 #include "models/rheology.hpp"
+#include "src/fit/fit_problem.hpp"
 #include "src/fit/parameter_names.hpp"
+#include "src/io/units.hpp"
+#include "fit_test_support.hpp"
 #include "src/io/plausible_ranges.hpp"
 
 using namespace spreadfit;
@@ -53,4 +59,122 @@ TEST_CASE("parameter table: units and words agree with the plausible ranges") {
   CHECK(fit::find_material_parameter("flow_index")->unit == io::plausible::flow_index.unit);
   CHECK(fit::find_material_parameter("yield_stress")->plain_name == io::plausible::yield_stress.what);
   CHECK(fit::find_material_parameter("flow_index")->plain_name == io::plausible::flow_index.what);
+}
+
+TEST_CASE("parameter table: names unique, ids in order, name -> id -> name round trip") {
+  std::set<std::string_view> names;
+  std::size_t row = 0;
+  for (const fit::ParameterInfo& p : fit::parameter_table()) {
+    CAPTURE(p.name);
+    names.insert(p.name);
+    CHECK(std::size_t(p.id) == row++);  // the table is indexed by id
+    CHECK(&fit::parameter_info(p.id) == &p);
+    REQUIRE(fit::parameter_from_name(p.name).has_value());
+    CHECK(*fit::parameter_from_name(p.name) == p.id);
+    CHECK(fit::parameter_name(*fit::parameter_from_name(p.name)) == p.name);
+    CHECK(fit::is_parameter(p.name, p.id));
+    // A material parameter sets a Material member; the release time does not.
+    CHECK((p.member != nullptr) == (p.id != fit::Parameter::TimeOrigin));
+    CHECK(fit::parameter_plain_name(std::string(p.name)) == p.plain_name);
+  }
+  CHECK(names.size() == fit::parameter_table().size());
+  CHECK(fit::material_parameters().size() == fit::parameter_table().size() - 1);
+  CHECK_FALSE(fit::parameter_from_name("density").has_value());
+  CHECK_FALSE(fit::parameter_from_name("").has_value());
+}
+
+TEST_CASE("parameter table: bounds ordered and finite, positive where searched on the logarithm") {
+  for (const fit::ParameterInfo& p : fit::parameter_table()) {
+    CAPTURE(p.name);
+    if (!p.has_fixed_bounds) {
+      // Only the release time takes its box from the readings (FitProblem).
+      CHECK(p.id == fit::Parameter::TimeOrigin);
+      continue;
+    }
+    CHECK(std::isfinite(p.fit_lower));
+    CHECK(std::isfinite(p.fit_upper));
+    CHECK(p.fit_lower < p.fit_upper);
+    if (p.log_space) CHECK(p.fit_lower > 0.0);
+    // The fit's box lies inside the possible range of an input value, so any fitted value could be given back to
+    // simulate (src/io/plausible_ranges.hpp).
+    REQUIRE(p.plausible != nullptr);
+    CHECK(p.fit_lower >= p.plausible->refuse_below);
+    CHECK(p.fit_upper <= p.plausible->refuse_above);
+    CHECK(p.plausible->unit == p.unit);
+    CHECK(p.plausible->what == p.plain_name);
+  }
+  // The flow index box ends where the law's validity range ends: n in (0, 2] (models/rheology.hpp validate).
+  CHECK(fit::parameter_info(fit::Parameter::FlowIndex).fit_upper == 2.0);
+  Material m;
+  m.flow_index = fit::parameter_info(fit::Parameter::FlowIndex).fit_upper;
+  CHECK_NOTHROW(validate(m));
+}
+
+TEST_CASE("parameter table: each unit parses with the units parser as the row's dimension") {
+  // A value of 1 written in the unit is 1 in SI: the unit strings are the SI units of their dimensions (SI
+  // Brochure, 9th ed.: Pa for stress, Pa s for dynamic viscosity, s for time; the flow index is a pure number).
+  for (const fit::ParameterInfo& p : fit::parameter_table()) {
+    CAPTURE(p.name);
+    if (p.dimension == io::Dimension::Dimensionless) {
+      CHECK(io::parse_quantity("1", p.dimension) == 1.0);
+      continue;
+    }
+    CHECK(io::parse_quantity("1 " + std::string(p.unit), p.dimension) == 1.0);
+    CHECK(io::si_unit_symbol(p.dimension) == p.unit);
+  }
+}
+
+TEST_CASE("parameter table: each law's layout") {
+  // Herschel-Bulkley (1926) tau = tau_y + K gammadot^n; the other laws fix tau_y = 0 and/or n = 1
+  // (models/rheology.hpp), so a law has the yield stress iff it is Bingham or Herschel-Bulkley, the flow index iff
+  // it is the power law or Herschel-Bulkley, and K always (named viscosity when n is fixed at 1).
+  for (const Law law : all_laws()) {
+    CAPTURE(law_name(law));
+    const std::span<const fit::Parameter> layout = fit::law_parameters(law);
+    const bool has_tau = law == Law::Bingham || law == Law::HerschelBulkley;
+    const bool has_n = law == Law::PowerLaw || law == Law::HerschelBulkley;
+    std::vector<fit::Parameter> expected;
+    if (has_tau) expected.push_back(fit::Parameter::YieldStress);
+    expected.push_back(has_n ? fit::Parameter::Consistency : fit::Parameter::Viscosity);
+    if (has_n) expected.push_back(fit::Parameter::FlowIndex);
+    CHECK(std::vector<fit::Parameter>(layout.begin(), layout.end()) == expected);
+    // The same names the models layer gives the law, in the same order.
+    const std::vector<std::string> names = law_parameter_names(law);
+    REQUIRE(names.size() == layout.size());
+    for (std::size_t i = 0; i < layout.size(); ++i) CHECK(names[i] == fit::parameter_name(layout[i]));
+  }
+}
+
+TEST_CASE("parameter table: the fit's parameter vector and box are the table's") {
+  // One series without a release-time fit, so the vector holds the material parameters alone.
+  fit::FitSeries series;
+  series.setup = testing::plate_setup();
+  series.times = {2.0, 4.0, 6.0, 8.0};
+  series.values = {0.05, 0.06, 0.065, 0.07};
+  fit::FitOptions options;
+  options.fit_time_origin = false;
+  for (const Law law : all_laws()) {
+    CAPTURE(law_name(law));
+    const fit::FitProblem problem({series}, law, options);
+    const std::span<const fit::Parameter> layout = fit::law_parameters(law);
+    REQUIRE(problem.size() == int(layout.size()));
+    REQUIRE(problem.material_parameters() == int(layout.size()));
+    for (std::size_t i = 0; i < layout.size(); ++i) {
+      const fit::ParameterInfo& p = fit::parameter_info(layout[i]);
+      CAPTURE(p.name);
+      CHECK(problem.names()[i] == p.name);
+      const double lo = p.log_space ? std::log(p.fit_lower) : p.fit_lower;
+      const double hi = p.log_space ? std::log(p.fit_upper) : p.fit_upper;
+      CHECK(problem.lower()[Eigen::Index(i)] == lo);
+      CHECK(problem.upper()[Eigen::Index(i)] == hi);
+    }
+    // The material a parameter vector stands for: each table row's member from its own coordinate.
+    Material m{20.0, 3.0, 0.6};
+    if (law == Law::Newtonian || law == Law::Bingham) m.flow_index = 1.0;
+    if (law == Law::Newtonian || law == Law::PowerLaw) m.yield_stress = 0.0;
+    const Material back = problem.material(problem.parameters(m, {}));
+    CHECK(back.yield_stress == doctest::Approx(m.yield_stress).epsilon(1e-12));
+    CHECK(back.consistency == doctest::Approx(m.consistency).epsilon(1e-12));
+    CHECK(back.flow_index == doctest::Approx(m.flow_index).epsilon(1e-12));
+  }
 }
