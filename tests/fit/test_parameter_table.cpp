@@ -2,7 +2,11 @@
 // unit is the one the plausible ranges and the laws use.
 #include <doctest/doctest.h>
 
+#include <unistd.h>
+
 #include <cmath>
+#include <filesystem>
+#include <fstream>
 #include <set>
 #include <span>
 #include <vector>
@@ -11,6 +15,8 @@
 #include "models/rheology.hpp"
 #include "src/fit/fit_problem.hpp"
 #include "src/fit/parameter_names.hpp"
+#include "src/io/description_file.hpp"
+#include "src/io/input_error.hpp"
 #include "src/io/units.hpp"
 #include "fit_test_support.hpp"
 #include "src/io/plausible_ranges.hpp"
@@ -177,4 +183,37 @@ TEST_CASE("parameter table: the fit's parameter vector and box are the table's")
     CHECK(back.consistency == doctest::Approx(m.consistency).epsilon(1e-12));
     CHECK(back.flow_index == doctest::Approx(m.flow_index).epsilon(1e-12));
   }
+}
+
+TEST_CASE("parameter table: the spec keys a catalogue accepts are the table's, each with its example") {
+  // The description reader (src/io) sits below the table's layer, so it keeps its own list of spec keys; this
+  // checks that list against the table: every row marked spec_key is read, with its example as the limits, and
+  // the release time, which no spec names, is refused.
+  const std::filesystem::path file =
+      std::filesystem::temp_directory_path() / ("spreadfit-parameter-table-" + std::to_string(::getpid()) + ".toml");
+  std::string toml = "[P1]\n";
+  std::vector<std::string_view> expected;
+  for (const fit::ParameterInfo& p : fit::parameter_table())
+    if (p.spec_key) {
+      toml += std::string(p.name) + " = " + std::string(p.spec_example) + "\n";
+      expected.push_back(p.name);
+    }
+  {
+    std::ofstream(file) << toml;
+  }
+  const auto catalogue = io::load_spec_catalogue(file);
+  REQUIRE(catalogue.count("P1") == 1);
+  const auto& limits = catalogue.at("P1").limits;
+  REQUIRE(limits.size() == expected.size());
+  for (std::size_t i = 0; i < limits.size(); ++i) {
+    CAPTURE(limits[i].parameter);
+    CHECK(limits[i].parameter == expected[i]);
+    CHECK(limits[i].low > 0.0);
+    CHECK(limits[i].low < limits[i].high);
+  }
+  {
+    std::ofstream(file) << "[P1]\n" << fit::parameter_name(fit::Parameter::TimeOrigin) << " = [1, 2]\n";
+  }
+  CHECK_THROWS_AS(io::load_spec_catalogue(file), io::InputError);
+  std::filesystem::remove(file);
 }
