@@ -15,6 +15,7 @@
 
 #include "models/forward.hpp"
 #include "src/io/input_error.hpp"
+#include "src/io/parameter_table.hpp"
 #include "src/io/test_time.hpp"
 #include "src/io/plausible_ranges.hpp"
 #include "src/io/units.hpp"
@@ -55,12 +56,22 @@ const Names kReadingsKeys{"file", "files", "final", "reading", "resolution"};
 const Names kFitKeys{"model", "time_origin", "ignore_before"};
 const Names kModelNames{"newtonian", "power-law", "bingham", "herschel-bulkley", "auto"};
 const Names kTimeOrigins{"fit", "zero"};
-const Names kSpecKeys{"viscosity", "yield_stress", "consistency", "flow_index"};
+/// The parameters a spec limits: the parameter table's rows marked spec_key, by its names.
+const Names kSpecKeys = [] {
+  Names keys;
+  for (const ParameterInfo& p : parameter_table())
+    if (p.spec_key) keys.push_back(p.name);
+  return keys;
+}();
 const Names kCaptureKeys{"video", "scale", "board", "square", "release", "every", "times"};
 const Names kScaleNames{"board", "ring", "channel"};
-const Names kCatalogueKeys{"viscosity",       "yield_stress",          "consistency",
-                           "flow_index",      "reference_temperature", "activation_energy",
-                           "yield_stress_activation_energy", "flow_index_prior"};
+const Names kCatalogueKeys = [] {
+  Names keys = kSpecKeys;
+  for (const std::string_view key :
+       {"reference_temperature", "activation_energy", "yield_stress_activation_energy", "flow_index_prior"})
+    keys.push_back(key);
+  return keys;
+}();
 
 std::string_view type_name(const toml::node& node) {
   switch (node.type()) {
@@ -811,14 +822,10 @@ void DescriptionReader::read_spec_table(const toml::table& spec, const std::stri
     const toml::node& node = *spec.get(key->str());
     const std::string parameter(key->str());
     const std::string field = section + "." + parameter;
-    const Dimension d = parameter == "viscosity"      ? Dimension::Viscosity
-                        : parameter == "yield_stress" ? Dimension::Stress
-                        : parameter == "consistency"  ? Dimension::Consistency
-                                                      : Dimension::Dimensionless;
-    const char* example = d == Dimension::Viscosity      ? "[\"0.8 Pa.s\", \"1.5 Pa.s\"]"
-                          : d == Dimension::Stress       ? "[\"20 Pa\", \"35 Pa\"]"
-                          : d == Dimension::Consistency  ? "[\"2 Pa.s^n\", \"12 Pa.s^n\"]"
-                                                         : "[0.3, 0.6]";
+    // A spec key is a row of the parameter table (kSpecKeys), which gives its dimension and example.
+    const ParameterInfo& row = parameter_info(*parameter_from_name(parameter));
+    const Dimension d = row.dimension;
+    const std::string_view example = row.spec_example;
     const toml::array* bounds = node.as_array();
     if (!bounds || bounds->size() != 2)
       fail(line_of(node), field,

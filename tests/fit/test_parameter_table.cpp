@@ -186,9 +186,8 @@ TEST_CASE("parameter table: the fit's parameter vector and box are the table's")
 }
 
 TEST_CASE("parameter table: the spec keys a catalogue accepts are the table's, each with its example") {
-  // The description reader (src/io) sits below the table's layer, so it keeps its own list of spec keys; this
-  // checks that list against the table: every row marked spec_key is read, with its example as the limits, and
-  // the release time, which no spec names, is refused.
+  // Every row marked spec_key is read from a catalogue, with its example as the limits, and the release time,
+  // which no spec names, is refused.
   const std::filesystem::path file =
       std::filesystem::temp_directory_path() / ("spreadfit-parameter-table-" + std::to_string(::getpid()) + ".toml");
   std::string toml = "[P1]\n";
