@@ -56,11 +56,12 @@ const Names kReadingsKeys{"file", "files", "final", "reading", "resolution"};
 const Names kFitKeys{"model", "time_origin", "ignore_before"};
 const Names kModelNames{"newtonian", "power-law", "bingham", "herschel-bulkley", "auto"};
 const Names kTimeOrigins{"fit", "zero"};
-/// The parameters a spec limits: the parameter table's rows marked spec_key, by its names.
+/// The parameters a spec limits: the parameter table's rows marked spec_key, by its names, in the order messages
+/// list them.
 const Names kSpecKeys = [] {
   Names keys;
-  for (const ParameterInfo& p : parameter_table())
-    if (p.spec_key) keys.push_back(p.name);
+  for (const Parameter id : {Parameter::Viscosity, Parameter::YieldStress, Parameter::Consistency, Parameter::FlowIndex})
+    if (parameter_info(id).spec_key) keys.push_back(parameter_name(id));
   return keys;
 }();
 const Names kCaptureKeys{"video", "scale", "board", "square", "release", "every", "times"};
