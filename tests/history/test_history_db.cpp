@@ -2,6 +2,7 @@
 // round-trips results, replaces a re-run instead of duplicating it, runs in WAL mode, loses nothing when several
 // processes write at once, and refuses files that are not its own; and the history command's table and CSV.
 #include <doctest/doctest.h>
+#include <fmt/format.h>
 #include <sqlite3.h>
 #include <sys/wait.h>
 #include <unistd.h>
@@ -418,7 +419,7 @@ const fs::path& command_history() {
   static const fs::path db = [] {
     const fs::path file = dir.path() / "history.db";
     for (int k = 1; k <= 10; ++k)
-      spreadfit::history::record(file, sample_result("S" + std::to_string(k), "HX1", k == 10 ? 40.0 : 20.0 + k % 2));
+      spreadfit::history::record(file, sample_result(fmt::format("S{}", k), "HX1", k == 10 ? 40.0 : 20.0 + k % 2));
     spreadfit::history::record(file, sample_result("T1", "HX2", 11.0));
     return file;
   }();
