@@ -17,6 +17,7 @@
 #include "src/io/units.hpp"
 #include "src/qc/spec_translation.hpp"
 #include "src/report/reading_map_svg.hpp"
+#include "src/report/svg_document.hpp"
 #include "src/cli/progress.hpp"
 
 namespace spreadfit::cli {
@@ -215,8 +216,9 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
     map.y_log = log_axis(yr);
     map.x = axis_values(xr, map_extent(xr, widen), options.map_points);
     map.y = axis_values(yr, map_extent(yr, widen), options.map_points);
-    map.x_name = fmt::format("{} [{}]", plain(xr.name), fit::parameter_unit(xr.name));
-    map.y_name = fmt::format("{} [{}]", plain(yr.name), fit::parameter_unit(yr.name));
+    // Units as a reader writes them (Pa\u00b7s\u207f, not the interface's "Pa.s^n"), like every other report.
+    map.x_name = fmt::format("{} [{}]", plain(xr.name), report::svg::unit_text(fit::parameter_unit(xr.name)));
+    map.y_name = fmt::format("{} [{}]", plain(yr.name), report::svg::unit_text(fit::parameter_unit(yr.name)));
     map.reading_name = reading;
     map.title = fmt::format("{} at {} s on the {} ({}), {}", reading, at.front(), rig_name,
                             options.test.filename().string(), law_name(law));
@@ -224,9 +226,9 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
     for (std::size_t i = 2; i < ranges.size(); ++i) {
       held = fit::with_parameter(held, ranges[i].name, range_value(ranges[i], 0.5));
       map.notes.push_back(fmt::format("{} held at the middle of its range, {}", ranges[i].name,
-                                      with_unit(range_value(ranges[i], 0.5), ranges[i].name)));
+                                      report::svg::unit_text(with_unit(range_value(ranges[i], 0.5), ranges[i].name))));
     }
-    for (const std::string& s : options.set) map.notes.push_back("fixed: " + s);
+    for (const std::string& s : options.set) map.notes.push_back("fixed: " + report::svg::unit_text(s));
     if (!between) {
       map.x_limits = std::pair{xr.lo, xr.hi};
       map.y_limits = std::pair{yr.lo, yr.hi};

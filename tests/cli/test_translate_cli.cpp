@@ -137,6 +137,26 @@ TEST_CASE("translate --between: slump limits become the yield-stress limits of P
   }
 }
 
+TEST_CASE("translate --map: units as a reader writes them, Pa\u00b7s\u207f for a consistency, never a caret") {
+  // The interface writes the consistency's unit "Pa.s^n" (README, "Units"); a picture shows it with a middle dot
+  // and a superscript n, as the fit report does (svg::unit_text). The static slump depends on the yield stress alone
+  // (Pashias et al. 1996), so the map is of a real reading whatever the consistency.
+  TempDir dir;
+  const auto rig = dir.write("slump.toml", slump_rig);
+  const auto map = dir.path() / "map.svg";
+  const Run run = run_spreadfit(dir, "translate " + quoted(rig.string()) +
+                                         " --model herschel-bulkley --vary 'yield_stress=100 Pa:500 Pa' --vary "
+                                         "'consistency=2 Pa.s^n:20 Pa.s^n' --vary flow_index=0.3:0.6 --at 300 "
+                                         "--points 2 --map " +
+                                         quoted(map.string()) + " --map-points 5");
+  INFO(run.out << run.err);
+  REQUIRE(run.exit_code == 0);
+  const std::string svg = read_text(map);
+  CHECK(svg.find("consistency [Pa\u00b7s\u207f]") != std::string::npos);
+  CHECK(svg.find("^") == std::string::npos);
+  spreadfit::svg_test::check_renders(svg, 900, "translate-map-consistency");
+}
+
 TEST_CASE("translate: bad --between, --solve, --map and --map-points exit 2 naming the option") {
   TempDir dir;
   const auto rig = dir.write("slump.toml", slump_rig);
