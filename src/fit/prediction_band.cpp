@@ -4,6 +4,8 @@
 #include <algorithm>
 #include <cmath>
 #include <random>
+#include <stdexcept>
+#include <tuple>
 
 #include "src/fit/parameter_names.hpp"
 #include "src/parallel_for.hpp"
@@ -20,7 +22,7 @@ void unpack(const FitResult& fit, const Eigen::VectorXd& x, std::size_t series_i
   for (std::size_t i = 0; i < fit.names.size(); ++i) {
     const std::string& name = fit.names[i];
     const double v = x[Eigen::Index(i)];
-    if (name != "time_origin") {
+    if (!is_parameter(name, Parameter::TimeOrigin)) {
       m = with_parameter(m, name, std::exp(v));
     } else {
       if (origin == series_index || (origin == 0 && t0 == 0.0)) t0 = v;
@@ -48,11 +50,18 @@ Outcome run(const TestSetup& setup, const Material& m, double t0, const std::vec
 
 }  // namespace
 
+std::pair<double, double> central_95_range(std::vector<double> values) {
+  if (values.empty()) throw std::invalid_argument("central_95_range: no values");
+  std::sort(values.begin(), values.end());
+  const double last = double(values.size() - 1);
+  return {values[std::size_t(std::floor(0.025 * last))], values[std::size_t(std::ceil(0.975 * last))]};
+}
+
 FitResult material_only(const FitResult& fit) {
   FitResult out = fit;
   std::vector<Eigen::Index> keep;
   for (std::size_t i = 0; i < fit.names.size(); ++i)
-    if (fit.names[i] != "time_origin") keep.push_back(Eigen::Index(i));
+    if (!is_parameter(fit.names[i], Parameter::TimeOrigin)) keep.push_back(Eigen::Index(i));
   const Eigen::Index k = Eigen::Index(keep.size());
   out.names.clear();
   out.estimate.resize(k);
@@ -138,9 +147,7 @@ PredictionBand prediction_band(const FitResult& fit, const TestSetup& setup, con
     std::vector<double> column(draws.size());
     for (std::size_t i = 0; i < times.size(); ++i) {
       for (std::size_t k = 0; k < draws.size(); ++k) column[k] = draws[k][i];
-      std::sort(column.begin(), column.end());
-      band.lower[i] = column[std::size_t(0.025 * double(column.size() - 1))];
-      band.upper[i] = column[std::size_t(std::ceil(0.975 * double(column.size() - 1)))];
+      std::tie(band.lower[i], band.upper[i]) = central_95_range(column);
     }
   }
   // The band reaches every point of the likelihood region the profile walks found (FitResult::ridge).

@@ -7,6 +7,7 @@
 // shear-thinning paste, the channel band at 30 s held the truth in 29 of 30 pastes at a median 14% of the reading.
 #pragma once
 
+#include <utility>
 #include <vector>
 
 #include "src/fit/fit_types.hpp"
@@ -22,6 +23,12 @@ struct PredictionBand {
   int failed = 0;                       ///< draws whose forward solve failed: left out
   bool ok = true;
 };
+
+/// The central 95% range of a sample: its order statistics at 2.5% and 97.5% of the way from the smallest to the
+/// largest, the index rounded outward (down at the low end, up at the high end), so that at least 95% of the
+/// sample lies in the range (common practice, no source). The band and every text that quotes a range of draws
+/// use it, so a header and the band it describes agree. `values` is taken by value and sorted; non-empty.
+std::pair<double, double> central_95_range(std::vector<double> values);
 
 /// The fit restricted to its material parameters: release times belong to the original test, so they are dropped
 /// from `names`, `estimate` and `covariance` (the marginal covariance of the rest) before predicting another rig.

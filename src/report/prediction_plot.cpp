@@ -5,9 +5,12 @@
 #include <algorithm>
 #include <cmath>
 #include <filesystem>
+#include <tuple>
+#include <utility>
 #include <vector>
 
 #include "src/fit/parameter_names.hpp"
+#include "src/fit/prediction_band.hpp"
 #include "src/report/fit_outcome.hpp"
 #include "src/report/svg_document.hpp"
 
@@ -74,10 +77,7 @@ std::string material_text(const fit::FitResult& fit, const std::string& source) 
       std::vector<double> values;
       values.reserve(fit.draws.size());
       for (const Eigen::VectorXd& d : fit.draws) values.push_back(d[k]);
-      std::sort(values.begin(), values.end());
-      const auto at = [&](double q) { return values[std::size_t(std::lround(q * double(values.size() - 1)))]; };
-      low = at(0.025);
-      high = at(0.975);
+      std::tie(low, high) = fit::central_95_range(std::move(values));
     } else {
       const double se = std::sqrt(fit.covariance(k, k));
       low = fit.estimate[k] - 1.96 * se;

@@ -6,6 +6,8 @@
 #include <cmath>
 #include <cstdio>
 #include <random>
+#include <stdexcept>
+#include <vector>
 
 #include "src/fit/fit_law.hpp"
 #include "src/fit/prediction_band.hpp"
@@ -127,4 +129,32 @@ TEST_CASE("montecarlo: from a noisy plate test of a shear-thinning paste, the ch
               covered, trials, rate, widths[widths.size() / 2]);
   CHECK(rate >= 0.87);
   CHECK(widths[widths.size() / 2] < 0.30);
+}
+
+TEST_CASE("central_95_range: at least 95% of any sample inside, the normal distribution's 2.5% and 97.5% points") {
+  // Defining property (common practice, no source): the order statistics with the index rounded outward hold at
+  // least 95% of the sample, whatever its size, and the range does not depend on the order the values come in.
+  std::mt19937 shuffle(7);
+  for (const std::size_t n : {std::size_t(1), std::size_t(10), std::size_t(41), std::size_t(200),
+                              std::size_t(201), std::size_t(1000)}) {
+    std::vector<double> values(n);
+    for (std::size_t i = 0; i < n; ++i) values[i] = double(i);
+    std::shuffle(values.begin(), values.end(), shuffle);
+    const auto [low, high] = fit::central_95_range(values);
+    const auto inside = std::count_if(values.begin(), values.end(), [&](double v) { return low <= v && v <= high; });
+    INFO("n = " << n << ": " << low << " to " << high);
+    CHECK(double(inside) >= 0.95 * double(n));
+    CHECK(low == std::floor(0.025 * double(n - 1)));
+    CHECK(high == std::ceil(0.975 * double(n - 1)));
+  }
+  // A large standard-normal sample: the range approaches the normal distribution's 2.5% and 97.5% points,
+  // -/+1.959964 (Abramowitz & Stegun 1964, table 26.1), within the sampling error of a 100,000-point sample.
+  std::mt19937 rng(11);
+  std::normal_distribution<double> normal(0.0, 1.0);
+  std::vector<double> sample(100000);
+  for (double& v : sample) v = normal(rng);
+  const auto [low, high] = fit::central_95_range(sample);
+  CHECK(low == doctest::Approx(-1.959964).epsilon(0.02));
+  CHECK(high == doctest::Approx(1.959964).epsilon(0.02));
+  CHECK_THROWS_AS(fit::central_95_range({}), std::invalid_argument);
 }
