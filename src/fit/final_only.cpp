@@ -5,9 +5,11 @@
 #include <limits>
 #include <fmt/format.h>
 #include <numbers>
+#include <string>
 
 #include "models/closed_forms.hpp"
 #include "models/slump.hpp"
+#include "src/fit/parameter_names.hpp"
 
 namespace spreadfit::fit {
 
@@ -91,12 +93,12 @@ FitResult fit_final_reading(const TestSetup& setup, double reading, std::optiona
         "surface tension, ignored here, shortens the spread, so this yield stress reads high",
         deepest * 1e3, 3.0 * capillary_length * 1e3));
   const double se = dlog_tau * out.sigma;
-  out.parameters.push_back(ParameterEstimate{.name = "yield_stress",
-                                             .unit = "Pa",
+  out.parameters.push_back(ParameterEstimate{.name = std::string(parameter_name(Parameter::YieldStress)),
+                                             .unit = std::string(parameter_info(Parameter::YieldStress).unit),
                                              .value = tau,
                                              .lower = tau * std::exp(-1.96 * se),
                                              .upper = tau * std::exp(1.96 * se)});
-  out.names = {"yield_stress"};
+  out.names = {std::string(parameter_name(Parameter::YieldStress))};
   out.material.yield_stress = tau;
   out.correlation = Eigen::MatrixXd::Identity(1, 1);
   out.status = FitStatus::Converged;

@@ -209,7 +209,7 @@ bool arrested_yield_stress(const std::vector<FitSeries>& series, const FitProble
   tau.lower = tau.value * std::exp(-half);
   tau.upper = tau.value * std::exp(half);
   for (ParameterEstimate& e : out.parameters)
-    if (e.name == "yield_stress") {
+    if (is_parameter(e.name, Parameter::YieldStress)) {
       e = tau;
       out.warnings.push_back(fmt::format(
           "the sample was at rest from the first reading on (readings within {:.2g} mm, as scattered as the "
@@ -270,7 +270,7 @@ int interval_estimates(const FitProblem& problem, const Eigen::VectorXd& x_best,
       e.value = std::exp(x);
       e.lower = std::exp(lo);
       e.upper = std::exp(hi);
-      if (e.name == "flow_index") e.upper = std::min(e.upper, 2.0);
+      if (is_parameter(e.name, Parameter::FlowIndex)) e.upper = std::min(e.upper, 2.0);
     } else {
       e.value = x;
       e.lower = lo;
@@ -278,7 +278,7 @@ int interval_estimates(const FitProblem& problem, const Eigen::VectorXd& x_best,
     }
     e.lower_open = lo_open;
     e.upper_open = hi_open;
-    if (e.name == "yield_stress" && lo_open) {
+    if (is_parameter(e.name, Parameter::YieldStress) && lo_open) {
       // A yield stress the readings do not need: the honest statement is an upper bound.
       e.upper_only = true;
       e.lower = 0.0;
@@ -516,7 +516,7 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
     std::vector<LmResult> basins;
     const int n_index = [&] {
       for (int i = 0; i < problem.material_parameters(); ++i)
-        if (problem.names()[i] == "flow_index") return i;
+        if (is_parameter(problem.names()[i], Parameter::FlowIndex)) return i;
       return -1;
     }();
     if (coarse_ok && n_index >= 0) {
@@ -748,7 +748,7 @@ ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& opt
     bool settled = false;
     if (pl.converged())
       for (const auto& p : pl.parameters)
-        if (p.name == "flow_index") settled = p.identifiable && p.lower >= 0.8 && p.upper <= 1.25;
+        if (is_parameter(p.name, Parameter::FlowIndex)) settled = p.identifiable && p.lower >= 0.8 && p.upper <= 1.25;
     if (!settled)
       choice.candidates[std::size_t(choice.chosen)].warnings.push_back(
           "these readings cannot tell whether the viscosity depends on shear rate (a power-law fit leaves the "
