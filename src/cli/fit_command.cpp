@@ -143,11 +143,16 @@ report::FitOutcome fit_material(std::vector<io::TestDescription> tests, const st
     options.fit_time_origin = first.fit.fit_time_origin;
     options.ignore_before = first.fit.ignore_before;
     const std::optional<Law> law = forced ? forced : first.fit.model;
+    // With a flow-index prior the reported fit is usually the refit with it (fit_with_prior), and the likelihood
+    // draws of the fit before it (about 400 of its solves) would be thrown away: the first pass draws none, and the
+    // fit reported gets its draws below.
+    fit::FitOptions first_pass = options;
+    if (prior) first_pass.likelihood_draws = 0;
     if (law) {
-      o.candidates.push_back(fit::fit_law(series, *law, options));
+      o.candidates.push_back(fit::fit_law(series, *law, first_pass));
       o.chosen = o.candidates.front().converged() ? 0 : -1;
     } else {
-      fit::ModelChoice choice = fit_auto(series, options);
+      fit::ModelChoice choice = fit_auto(series, first_pass);
       o.candidates = std::move(choice.candidates);
       o.chosen = choice.chosen;
       o.best_description = choice.best_description;
@@ -159,6 +164,7 @@ report::FitOutcome fit_material(std::vector<io::TestDescription> tests, const st
       const bool has_n = r.law == Law::PowerLaw || r.law == Law::HerschelBulkley;
       if (prior && has_n) r = fit::fit_with_prior(series, r, options, *prior);
       else if (has_n && !prior_absent.empty()) r.warnings.push_back(prior_absent);
+      if (prior) r = fit::with_likelihood_draws(series, std::move(r), options);  // kept as is when it has them
     }
   }
   // Inline [spec] limits override the catalogue's, parameter by parameter.

@@ -624,6 +624,21 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
   return out;
 }
 
+FitResult with_likelihood_draws(const std::vector<FitSeries>& series, FitResult fit, const FitOptions& options) {
+  if (options.likelihood_draws <= 0 || !options.profile_intervals || !fit.draws.empty() || !fit.converged())
+    return fit;
+  FitOptions again = options;
+  again.global_evaluations = 0;  // `fit` is the start
+  const FitResult refit = fit_law(series, fit.law, again, {fit});
+  fit.evaluations += refit.evaluations;
+  if (refit.converged()) {
+    fit.draws = refit.draws;
+    fit.ridge = refit.ridge;
+    fit.draws_effective_size = refit.draws_effective_size;
+  }
+  return fit;
+}
+
 int ModelChoice::index_of(Law law) const {
   for (std::size_t i = 0; i < candidates.size(); ++i)
     if (candidates[i].law == law) return int(i);

@@ -28,6 +28,13 @@ namespace spreadfit::fit {
 FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOptions& options = {},
                   const std::vector<FitResult>& hints = {});
 
+/// `fit` with the likelihood draws and ridge of FitOptions::likelihood_draws (src/fit/likelihood_draws.hpp) when it
+/// was fitted without them: a refit from it (no global search), whose draws, ridge and effective size are copied
+/// into it; everything else of `fit` is kept. Unchanged when it already has draws, did not converge, or the options
+/// ask for none. For a caller that fits twice (with a flow-index prior, src/fit/flow_index_prior.hpp) and so skips
+/// the draws of the first fit unless that fit is the one reported.
+FitResult with_likelihood_draws(const std::vector<FitSeries>& series, FitResult fit, const FitOptions& options);
+
 struct ModelChoice {
   std::vector<FitResult> candidates;  ///< every law tried, in all_laws() order
   int chosen = -1;                    ///< the reported result (index into candidates), -1 if none converged

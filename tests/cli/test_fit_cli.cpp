@@ -379,3 +379,35 @@ TEST_CASE("plan: a larger fill on the plate determines a Bingham viscosity bette
   CHECK(run.out.find("recommended: large.toml") != std::string::npos);
   CHECK(run.out.find("yield_stress") != std::string::npos);
 }
+
+TEST_CASE("fit with a flow-index prior: the reported fit carries its likelihood draws whichever way the prior went") {
+  // predict's band and the report's band are drawn from the result's likelihood draws (README, "Result JSON"), so
+  // a converged result with profile intervals has them: when the prior entered the fit, and when the law has no
+  // flow index for it to act on (the fit without it is reported; so too when the readings contradict the prior,
+  // fit::with_likelihood_draws, tested in tests/fit/test_prediction_band.cpp).
+  TempDir dir;
+  const auto test = plate_test(dir, "LT9-0007",
+                               "--model herschel-bulkley --set yield_stress=12 --set consistency=6 --set flow_index=0.45 "
+                               "--set time_origin=0",
+                               "");
+  struct Case {
+    std::string what, model, prior;
+    bool applied;
+  };
+  for (const Case& c : {Case{"prior applied", "herschel-bulkley", "[0.45, 0.05]", true},
+                        Case{"law without a flow index", "bingham", "[0.45, 0.05]", false}}) {
+    INFO(c.what);
+    const auto specs = dir.write("specs.toml", "[LT9]\nflow_index_prior = " + c.prior + "\n");
+    const auto json_file = dir.path() / "out.json";
+    const Run run = run_spreadfit(dir, "fit " + quoted(test.string()) + " --model " + c.model + " --specs " +
+                                           quoted(specs.string()) + " --json " + quoted(json_file.string()));
+    INFO(run.out << run.err);
+    REQUIRE(run.exit_code == 0);
+    const auto j = nlohmann::json::parse(read_text(json_file));
+    REQUIRE(j["fit"]["converged"] == true);
+    CHECK(j["fit"].contains("prior") == c.applied);
+    REQUIRE(j["fit"]["log_space"].contains("draws"));
+    CHECK(j["fit"]["log_space"]["draws"].size() == 200);  // FitOptions::likelihood_draws
+    CHECK(j["fit"]["log_space"]["draws"][0].size() == j["fit"]["log_space"]["parameters"].size());
+  }
+}

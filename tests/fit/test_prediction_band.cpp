@@ -158,3 +158,28 @@ TEST_CASE("central_95_range: at least 95% of any sample inside, the normal distr
   CHECK(high == doctest::Approx(1.959964).epsilon(0.02));
   CHECK_THROWS_AS(fit::central_95_range({}), std::invalid_argument);
 }
+
+TEST_CASE("with_likelihood_draws gives a fit fitted without draws the draws of a full fit, and keeps the rest") {
+  // Defining property of fit::with_likelihood_draws: the estimates, intervals and status of the result it is given
+  // stay as they are; the draws (FitOptions::likelihood_draws of them) and the ridge come from a refit from it.
+  const Material truth{.yield_stress = 12, .consistency = 6, .flow_index = 0.45};
+  const fit::FitSeries s = synthetic(plate_setup(), truth, 5e-4, 3);
+  fit::FitOptions none;
+  none.likelihood_draws = 0;
+  const fit::FitResult bare = fit::fit_law({s}, Law::HerschelBulkley, none);
+  REQUIRE(bare.converged());
+  CHECK(bare.draws.empty());
+  const fit::FitResult drawn = fit::with_likelihood_draws({s}, bare, fit::FitOptions{});
+  CHECK(drawn.draws.size() == 200);
+  CHECK(drawn.draws_effective_size > 0);
+  CHECK(drawn.estimate == bare.estimate);
+  REQUIRE(drawn.parameters.size() == bare.parameters.size());
+  for (std::size_t i = 0; i < bare.parameters.size(); ++i) {
+    CHECK(drawn.parameters[i].lower == bare.parameters[i].lower);
+    CHECK(drawn.parameters[i].upper == bare.parameters[i].upper);
+  }
+  CHECK(drawn.evaluations > bare.evaluations);
+  // A result that has its draws, or options that ask for none, are left alone.
+  CHECK(fit::with_likelihood_draws({s}, drawn, fit::FitOptions{}).evaluations == drawn.evaluations);
+  CHECK(fit::with_likelihood_draws({s}, bare, none).draws.empty());
+}
