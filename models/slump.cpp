@@ -8,6 +8,7 @@
 #include <stdexcept>
 
 #include "models/closed_forms.hpp"
+#include "models/input_check.hpp"
 
 // Why the larger final height decides the regime.
 // Both relations describe a yielded sample brought to rest by its yield stress, each under its own simplification:
@@ -28,12 +29,6 @@ namespace {
 
 using std::numbers::pi;
 
-std::string number(double value) {  // shortest round-trip text
-  std::array<char, 32> buffer{};
-  const auto result = std::to_chars(buffer.data(), buffer.data() + buffer.size(), value);
-  return std::string(buffer.data(), result.ptr);
-}
-
 std::string fixed(double value, int decimals) {
   std::array<char, 64> buffer{};
   const auto result =
@@ -41,22 +36,18 @@ std::string fixed(double value, int decimals) {
   return std::string(buffer.data(), result.ptr);
 }
 
-[[noreturn]] void fail(const std::string& field, double value, const char* expected) {
-  throw std::invalid_argument(field + " = " + number(value) + ": expected " + expected);
-}
-
 void validate_inputs(const SlumpRig& rig, double density, double gravity, const SlumpOptions& o) {
-  if (!std::isfinite(rig.radius) || rig.radius <= 0) fail("radius", rig.radius, "a finite value > 0 m");
-  if (!std::isfinite(rig.height) || rig.height <= 0) fail("height", rig.height, "a finite value > 0 m");
-  if (!std::isfinite(density) || density <= 0) fail("density", density, "a finite value > 0 kg/m^3");
-  if (!std::isfinite(gravity) || gravity <= 0) fail("gravity", gravity, "a finite value > 0 m/s^2");
+  if (!std::isfinite(rig.radius) || rig.radius <= 0) reject_input("radius", rig.radius, "a finite value > 0 m");
+  if (!std::isfinite(rig.height) || rig.height <= 0) reject_input("height", rig.height, "a finite value > 0 m");
+  if (!std::isfinite(density) || density <= 0) reject_input("density", density, "a finite value > 0 kg/m^3");
+  if (!std::isfinite(gravity) || gravity <= 0) reject_input("gravity", gravity, "a finite value > 0 m/s^2");
   if (!std::isfinite(o.surface_tension) || o.surface_tension < 0)
-    fail("surface_tension", o.surface_tension, "a finite value >= 0 N/m");
+    reject_input("surface_tension", o.surface_tension, "a finite value >= 0 N/m");
   if (!std::isfinite(o.capillary_lengths) || o.capillary_lengths < 0)
-    fail("capillary_lengths", o.capillary_lengths, "a finite value >= 0");
-  if (!std::isfinite(o.aspect_band) || o.aspect_band < 1) fail("aspect_band", o.aspect_band, "a finite value >= 1");
+    reject_input("capillary_lengths", o.capillary_lengths, "a finite value >= 0");
+  if (!std::isfinite(o.aspect_band) || o.aspect_band < 1) reject_input("aspect_band", o.aspect_band, "a finite value >= 1");
   if (!std::isfinite(o.thin_layer_ratio) || o.thin_layer_ratio < 0)
-    fail("thin_layer_ratio", o.thin_layer_ratio, "a finite value >= 0");
+    reject_input("thin_layer_ratio", o.thin_layer_ratio, "a finite value >= 0");
 }
 
 }  // namespace

@@ -5,7 +5,6 @@
 #include <boost/math/quadrature/gauss.hpp>
 #include <boost/math/tools/roots.hpp>
 #include <boost/numeric/odeint.hpp>
-#include <charconv>
 #include <cmath>
 #include <cstdint>
 #include <exception>
@@ -16,6 +15,7 @@
 #include <utility>
 
 #include "models/closed_forms.hpp"
+#include "models/input_check.hpp"
 
 // Derivation of the yield-stress form (checked against film_flux and a direct integration in the tests).
 //
@@ -54,36 +54,25 @@ namespace {
 
 using std::numbers::pi;
 
-/// Shortest round-trip text of a value (std::to_string would print 1e-9 as 0.000000).
-std::string number(double value) {
-  std::array<char, 32> buffer{};
-  const auto result = std::to_chars(buffer.data(), buffer.data() + buffer.size(), value);
-  return std::string(buffer.data(), result.ptr);
-}
-
-[[noreturn]] void fail(const std::string& field, double value, const char* expected) {
-  throw std::invalid_argument(field + " = " + number(value) + ": expected " + expected);
-}
-
 void validate_rig(const SqueezeRig& rig) {
-  if (!std::isfinite(rig.volume) || rig.volume <= 0) fail("volume", rig.volume, "a finite value > 0 m^3");
-  if (!std::isfinite(rig.force) || rig.force <= 0) fail("force", rig.force, "a finite value > 0 N");
+  if (!std::isfinite(rig.volume) || rig.volume <= 0) reject_input("volume", rig.volume, "a finite value > 0 m^3");
+  if (!std::isfinite(rig.force) || rig.force <= 0) reject_input("force", rig.force, "a finite value > 0 N");
   if (!std::isfinite(rig.initial_gap) || rig.initial_gap < 0)
-    fail("initial_gap", rig.initial_gap, "a finite value >= 0 m (0 selects (4V/pi)^(1/3))");
+    reject_input("initial_gap", rig.initial_gap, "a finite value >= 0 m (0 selects (4V/pi)^(1/3))");
 }
 
 void validate_options(const SqueezeOptions& o) {
-  if (!std::isfinite(o.rel_tol) || o.rel_tol <= 0 || o.rel_tol >= 1) fail("rel_tol", o.rel_tol, "a value in (0, 1)");
-  if (o.max_steps < 1) fail("max_steps", static_cast<double>(o.max_steps), "at least 1");
+  if (!std::isfinite(o.rel_tol) || o.rel_tol <= 0 || o.rel_tol >= 1) reject_input("rel_tol", o.rel_tol, "a value in (0, 1)");
+  if (o.max_steps < 1) reject_input("max_steps", static_cast<double>(o.max_steps), "at least 1");
   if (!std::isfinite(o.arrest_tolerance) || o.arrest_tolerance <= 0 || o.arrest_tolerance >= 1)
-    fail("arrest_tolerance", o.arrest_tolerance, "a value in (0, 1)");
+    reject_input("arrest_tolerance", o.arrest_tolerance, "a value in (0, 1)");
 }
 
 void validate_times(const std::vector<double>& times) {
   for (std::size_t i = 0; i < times.size(); ++i) {
     const std::string field = "times[" + std::to_string(i) + "]";
-    if (!std::isfinite(times[i]) || times[i] < 0) fail(field, times[i], "a finite value >= 0 s");
-    if (i > 0 && times[i] < times[i - 1]) fail(field, times[i], "times in non-decreasing order");
+    if (!std::isfinite(times[i]) || times[i] < 0) reject_input(field, times[i], "a finite value >= 0 s");
+    if (i > 0 && times[i] < times[i - 1]) reject_input(field, times[i], "times in non-decreasing order");
   }
 }
 
@@ -238,12 +227,12 @@ Ended integrate_log_state(const Rhs& f, double y0, const std::vector<double>& ti
       while (stepper.current_time() < tau) {
         if (steps >= o.max_steps)
           return {SolveStatus::StepLimit, "SqueezeOptions::max_steps = " + std::to_string(o.max_steps) +
-                                              " time steps per solve reached before t = " + number(times[i]) + " s"};
+                                              " time steps per solve reached before t = " + shortest_text(times[i]) + " s"};
         stepper.do_step(system);
         ++steps;
         if (!std::isfinite(stepper.current_state()))
           return {SolveStatus::NonFiniteState, "the state became non-finite at t = " +
-                                                   number(t_c * std::expm1(stepper.current_time())) + " s"};
+                                                   shortest_text(t_c * std::expm1(stepper.current_time())) + " s"};
       }
       double y = 0;
       stepper.calc_state(tau, y);
@@ -271,7 +260,7 @@ double squeeze_initial_gap(const SqueezeRig& rig) {
 double squeeze_rate(const SqueezeRig& rig, const Material& m, double gap) {
   validate_rig(rig);
   validate(m);
-  if (!std::isfinite(gap) || gap <= 0) fail("gap", gap, "a finite value > 0 m");
+  if (!std::isfinite(gap) || gap <= 0) reject_input("gap", gap, "a finite value > 0 m");
   if (m.yield_stress == 0) return power_law_rate(rig.volume, rig.force, m, gap);
   const YieldSqueeze model(rig, m);
   if (gap <= model.arrest_gap()) return 0.0;
