@@ -70,7 +70,9 @@ std::string material_text(const fit::FitResult& fit, const std::string& source) 
     const auto k = Eigen::Index(i);
     std::string name = fit.names[i];
     std::replace(name.begin(), name.end(), '_', ' ');
-    const std::string unit = fit::parameter_unit(fit.names[i]) == "-" ? "" : " " + fit::parameter_unit(fit.names[i]);
+    // fmt, not " " + std::string: GCC 12 warns falsely (-Wrestrict) on that concatenation.
+    const std::string unit =
+        fit::parameter_unit(fit.names[i]) == "-" ? std::string() : fmt::format(" {}", fit::parameter_unit(fit.names[i]));
     text += fmt::format("{} {} {:.4g}{}", i == 0 ? ": " : "; ", name, std::exp(fit.estimate[k]), unit);
     double low = NAN, high = NAN;
     if (!fit.draws.empty()) {
