@@ -399,7 +399,8 @@ struct LateChange {
 };
 
 /// The late frame's change: the sample's whole spread (and the ring or gate, gone since the still start). The
-/// threshold is 5 noise deviations on each of the three colours, and at least 10 grey levels.
+/// threshold is 5 times the noise of |d| over the three colours (sqrt(3) times one colour's), and at least 10
+/// grey levels.
 LateChange late_change(const Decoded& video, const StillStart& still, cv::Size frame_size) {
   LateChange c;
   c.late = video.readings.back().image;
@@ -759,8 +760,8 @@ struct MeasureContext {
 };
 
 /// One kept frame measured: its sample fraction against the reference, the mask (f > 1/2, in a channel also a
-/// strong change in the gate band; grown from the sure sample, holes filled, in a channel only what counts),
-/// its outline, and the diameter of its area (plate) or the front along the middle band (channel).
+/// strong change in the gate band; the parts touching the sure sample, holes filled, in a channel only what
+/// counts), its outline, and the diameter of its area (plate) or the front along the middle band (channel).
 CapturedReading measure_frame(const Kept& k, const MeasureContext& x) {
   const SampleMasks& m = x.masks;
   const cv::Rect& roi = x.late.roi;
