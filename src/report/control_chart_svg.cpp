@@ -285,23 +285,44 @@ double chart_legend(Document& doc, const qc::ControlChart& chart, const ChartCou
 }
 
 // --- chart: batch labels, value axis, shading, levels, the values and their markers, the left-out batches ---------
-double chart_panel(Document& doc, const qc::ControlChart& chart, const ChartNames& names, double y) {
+
+// A charted value's id, or its place when the chart has no label for it.
+std::string batch_label(const qc::ControlChart& chart, std::size_t i) {
+  return i < chart.labels.size() ? chart.labels[i] : fmt::format("#{}", i + 1);
+}
+
+// Whether a value can be drawn: finite, and positive on a log scale.
+bool visible(const qc::ControlChart& chart, double v) { return std::isfinite(v) && (!chart.log_scale || v > 0); }
+
+// Every batch's id in time order, the charted and the left-out ones in their places.
+std::vector<std::string> all_batch_labels(const qc::ControlChart& chart) {
   const std::size_t n = chart.values.size(), batches = chart.batches();
-  auto label_of = [&](std::size_t i) { return i < chart.labels.size() ? chart.labels[i] : fmt::format("#{}", i + 1); };
-  const std::string& unit_symbol = names.unit_symbol;
-  const std::string& unit = names.unit;
-  const std::string& parameter = names.parameter;
-  // --- chart ----------------------------------------------------------------------------------------------------
   std::vector<std::string> all_labels(batches);
   for (std::size_t i = 0; i < n; ++i)
-    if (chart.position(i) < batches) all_labels[chart.position(i)] = label_of(i);
+    if (chart.position(i) < batches) all_labels[chart.position(i)] = batch_label(chart, i);
   for (const qc::LeftOutBatch& b : chart.left_out)
     if (b.position < batches) all_labels[b.position] = b.label;
-  double widest_label = 0;
-  for (const auto& l : all_labels) widest_label = std::max(widest_label, svg::text_width(axis_label(l), label_font));
-  const double slant = label_slant * 3.14159265358979 / 180;
-  const double plot_left = std::max(88.0, std::cos(slant) * widest_label + 14);
-  const double top = y, bottom = y + panel_height;
+  return all_labels;
+}
+
+// The panel's place and scales: the left edge leaves room for the widest slanted batch id, the value axis spans
+// the values, the centre line and the control and spec limits, and every batch gets an equal column.
+struct PanelLayout {
+  double plot_left = 88, top = 0, bottom = 0;
+  double slant = 0;         // [rad] of the batch ids
+  double widest_label = 0;  // [px] the longest batch id as written on the axis
+  double spacing = 0;       // [px] one batch's column
+  ValueAxis value;
+  double x_at(std::size_t place) const { return plot_left + (double(place) + 0.5) * spacing; }
+};
+
+PanelLayout panel_layout(const qc::ControlChart& chart, const std::vector<std::string>& all_labels, double y) {
+  PanelLayout l;
+  for (const auto& label : all_labels)
+    l.widest_label = std::max(l.widest_label, svg::text_width(axis_label(label), label_font));
+  l.slant = label_slant * 3.14159265358979 / 180;
+  l.plot_left = std::max(88.0, std::cos(l.slant) * l.widest_label + 14);
+  l.top = y, l.bottom = y + panel_height;
   double lo = INFINITY, hi = -INFINITY;
   const auto include = [&](double v) {
     if (std::isfinite(v) && (!chart.log_scale || v > 0)) lo = std::min(lo, v), hi = std::max(hi, v);
@@ -311,30 +332,34 @@ double chart_panel(Document& doc, const qc::ControlChart& chart, const ChartName
   if (chart.spec_low) include(*chart.spec_low);
   if (chart.spec_high) include(*chart.spec_high);
   if (!std::isfinite(lo)) lo = chart.log_scale ? 1 : 0, hi = chart.log_scale ? 10 : 1;
-  const ValueAxis value = value_axis(chart.log_scale, lo, hi, bottom, top);
-  const double spacing = (plot_right - plot_left) / double(std::max<std::size_t>(batches, 1));
-  auto x_at = [&](std::size_t place) { return plot_left + (double(place) + 0.5) * spacing; };
-  auto x_of = [&](std::size_t i) { return x_at(chart.position(i)); };
-  const auto visible = [&](double v) { return std::isfinite(v) && (!chart.log_scale || v > 0); };
+  l.value = value_axis(chart.log_scale, lo, hi, l.bottom, l.top);
+  l.spacing = (plot_right - l.plot_left) / double(std::max<std::size_t>(chart.batches(), 1));
+  return l;
+}
 
-  // Shading beyond the limits, grid, axis.
-  if (visible(chart.upper) && value.pixel(chart.upper) > top)
-    doc.add("rect", {{"x", plot_left},
-                     {"y", top},
-                     {"width", plot_right - plot_left},
-                     {"height", value.pixel(chart.upper) - top},
+// Shading beyond the control limits, then the value axis with its grid and name.
+void draw_shading_and_axis(Document& doc, const qc::ControlChart& chart, const ChartNames& names,
+                           const PanelLayout& l) {
+  const ValueAxis& value = l.value;
+  if (visible(chart, chart.upper) && value.pixel(chart.upper) > l.top)
+    doc.add("rect", {{"x", l.plot_left},
+                     {"y", l.top},
+                     {"width", plot_right - l.plot_left},
+                     {"height", value.pixel(chart.upper) - l.top},
                      {"fill", "#fbeceb"}});
-  if (visible(chart.lower) && value.pixel(chart.lower) < bottom)
-    doc.add("rect", {{"x", plot_left},
+  if (visible(chart, chart.lower) && value.pixel(chart.lower) < l.bottom)
+    doc.add("rect", {{"x", l.plot_left},
                      {"y", value.pixel(chart.lower)},
-                     {"width", plot_right - plot_left},
-                     {"height", bottom - value.pixel(chart.lower)},
+                     {"width", plot_right - l.plot_left},
+                     {"height", l.bottom - value.pixel(chart.lower)},
                      {"fill", "#fbeceb"}});
-  draw_value_axis(
-      doc, value, plot_left, plot_right,
-      (chart.unit.empty() ? parameter : parameter + " [" + unit_symbol + "]") + (chart.log_scale ? ", log scale" : ""));
+  draw_value_axis(doc, value, l.plot_left, plot_right,
+                  (chart.unit.empty() ? names.parameter : names.parameter + " [" + names.unit_symbol + "]") +
+                      (chart.log_scale ? ", log scale" : ""));
+}
 
-  // Centre line, control limits and spec limits, labelled at the right (labels pushed apart when close).
+// Centre line, control limits and spec limits, labelled at the right (labels pushed apart when close).
+void draw_levels(Document& doc, const qc::ControlChart& chart, const PanelLayout& l) {
   struct Level {
     double v;
     std::string name;
@@ -348,17 +373,17 @@ double chart_panel(Document& doc, const qc::ControlChart& chart, const ChartName
   if (chart.spec_low) levels.push_back({*chart.spec_low, "LSL", spec_colour, "2 3"});
   std::vector<std::pair<double, std::size_t>> label_rows;
   for (std::size_t k = 0; k < levels.size(); ++k) {
-    const Level& l = levels[k];
-    if (!visible(l.v)) continue;
-    const double py = value.pixel(l.v);
-    doc.add("line", {{"class", "level " + l.name},
-                     {"x1", plot_left},
+    const Level& level = levels[k];
+    if (!visible(chart, level.v)) continue;
+    const double py = l.value.pixel(level.v);
+    doc.add("line", {{"class", "level " + level.name},
+                     {"x1", l.plot_left},
                      {"y1", py},
                      {"x2", plot_right},
                      {"y2", py},
-                     {"stroke", l.colour},
+                     {"stroke", level.colour},
                      {"stroke-width", 1.6},
-                     {"stroke-dasharray", l.dash}});
+                     {"stroke-dasharray", level.dash}});
     label_rows.emplace_back(py, k);
   }
   std::sort(label_rows.begin(), label_rows.end());
@@ -375,8 +400,13 @@ double chart_panel(Document& doc, const qc::ControlChart& chart, const ChartName
                   {"font-weight", "bold"}},
                  fmt::format("{} {:.4g}", levels[k].name, levels[k].v));
   }
+}
 
-  // Values joined in batch order (a gap where a value is missing or left out), then the markers over the line.
+// Values joined in batch order (a gap where a value is missing or left out), then the markers over the line,
+// each with a tooltip naming the batch, its value and its flags.
+void draw_values(Document& doc, const qc::ControlChart& chart, const ChartNames& names, const PanelLayout& l) {
+  const std::size_t n = chart.values.size();
+  auto x_of = [&](std::size_t i) { return l.x_at(chart.position(i)); };
   std::vector<std::pair<double, double>> run_of_points;
   auto flush = [&] {
     if (run_of_points.size() >= 2)
@@ -390,40 +420,47 @@ double chart_panel(Document& doc, const qc::ControlChart& chart, const ChartName
   };
   for (std::size_t i = 0; i < n; ++i) {
     if (i > 0 && chart.position(i) != chart.position(i - 1) + 1) flush();
-    if (visible(chart.values[i]))
-      run_of_points.emplace_back(x_of(i), value.pixel(chart.values[i]));
+    if (visible(chart, chart.values[i]))
+      run_of_points.emplace_back(x_of(i), l.value.pixel(chart.values[i]));
     else
       flush();
   }
   flush();
   for (std::size_t i = 0; i < n; ++i) {
-    if (!visible(chart.values[i])) continue;
+    if (!visible(chart, chart.values[i])) continue;
     const bool b = flag(chart.beyond_limits, i), r = flag(chart.in_run, i);
-    std::string tip = fmt::format("{}: {:.4g}{}", label_of(i), chart.values[i], unit);
+    std::string tip = fmt::format("{}: {:.4g}{}", batch_label(chart, i), chart.values[i], names.unit);
     if (b) tip += fmt::format(", beyond the {} control limit", chart.values[i] > chart.centre ? "upper" : "lower");
     if (r) tip += fmt::format(", in a run of {} or more on one side of the centre line", chart.run_length);
-    point_marker(doc, x_of(i), value.pixel(chart.values[i]), b, r, tip);
+    point_marker(doc, x_of(i), l.value.pixel(chart.values[i]), b, r, tip);
   }
-  // Left-out batches: a hollow mark on the chart's bottom edge at their place, with the reason.
+}
+
+// Left-out batches: a hollow mark on the chart's bottom edge at their place, with the reason; then the frame.
+void draw_left_out_and_frame(Document& doc, const qc::ControlChart& chart, const PanelLayout& l) {
   for (const qc::LeftOutBatch& b : chart.left_out)
-    left_out_marker(doc, x_at(b.position), bottom - 8,
+    left_out_marker(doc, l.x_at(b.position), l.bottom - 8,
                     fmt::format("{}: not charted ({}); not in the limits", b.label, b.reason));
-  doc.add("rect", {{"x", plot_left},
-                   {"y", top},
-                   {"width", plot_right - plot_left},
+  doc.add("rect", {{"x", l.plot_left},
+                   {"y", l.top},
+                   {"width", plot_right - l.plot_left},
                    {"height", panel_height},
                    {"fill", "none"},
                    {"stroke", frame},
                    {"stroke-width", 1.0}});
+}
 
-  // Batch ids along the bottom, slanted; every k-th when they would crowd.
-  const std::size_t every = std::max<std::size_t>(1, std::size_t(std::ceil(22.0 / spacing)));
+// Batch ids along the bottom, slanted; every k-th when they would crowd (22 px apart at least); then the axis
+// name. Returns the y below it.
+double draw_batch_axis(Document& doc, const std::vector<std::string>& all_labels, const PanelLayout& l) {
+  const std::size_t batches = all_labels.size();
+  const std::size_t every = std::max<std::size_t>(1, std::size_t(std::ceil(22.0 / l.spacing)));
   for (std::size_t i = 0; i < batches; ++i) {
-    const double x = x_at(i);
+    const double x = l.x_at(i);
     doc.add("line",
-            {{"x1", x}, {"y1", bottom}, {"x2", x}, {"y2", bottom + (i % every == 0 ? 5 : 3)}, {"stroke", frame}});
+            {{"x1", x}, {"y1", l.bottom}, {"x2", x}, {"y2", l.bottom + (i % every == 0 ? 5 : 3)}, {"stroke", frame}});
     if (i % every != 0) continue;
-    const double ly = bottom + 15;
+    const double ly = l.bottom + 15;
     doc.add_text("text",
                  {{"class", "batch"},
                   {"x", x + 3},
@@ -435,18 +472,25 @@ double chart_panel(Document& doc, const qc::ControlChart& chart, const ChartName
                    fmt::format("rotate(-{} {} {})", svg::number(label_slant), svg::number(x + 3), svg::number(ly))}},
                  axis_label(all_labels[i]));
   }
-  y = bottom + 15 + std::sin(slant) * widest_label + 12;
+  double y = l.bottom + 15 + std::sin(l.slant) * l.widest_label + 12;
   doc.add_text("text",
-               {{"x", 0.5 * (plot_left + plot_right)},
+               {{"x", 0.5 * (l.plot_left + plot_right)},
                 {"y", y + 8},
                 {"font-size", 12.0},
                 {"fill", ink},
                 {"text-anchor", "middle"}},
                every == 1 ? "batch, in time order" : fmt::format("batch, in time order (one id in {} shown)", every));
-  y += 24;
+  return y + 24;
+}
 
-  // --- footer ---------------------------------------------------------------------------------------------------
-  return y;
+double chart_panel(Document& doc, const qc::ControlChart& chart, const ChartNames& names, double y) {
+  const std::vector<std::string> all_labels = all_batch_labels(chart);
+  const PanelLayout layout = panel_layout(chart, all_labels, y);
+  draw_shading_and_axis(doc, chart, names, layout);
+  draw_levels(doc, chart, layout);
+  draw_values(doc, chart, names, layout);
+  draw_left_out_and_frame(doc, chart, layout);
+  return draw_batch_axis(doc, all_labels, layout);
 }
 
 }  // namespace
