@@ -4,6 +4,8 @@
 #include <stdexcept>
 #include <string>
 
+#include "models/film_velocity_kernel.hpp"
+
 namespace spreadfit {
 
 std::string_view law_name(Law law) {
@@ -64,33 +66,10 @@ double film_flux(const Material& m, double G, double h) {
   return n / (n + 1.0) * Y * std::exp(std::log(G * Y / m.consistency) / n) * (h - n * Y / (2.0 * n + 1.0));
 }
 
-double film_velocity(const Material& m, double G, double h) {
-  if (!(h > 0)) return 0.0;
-  return film_flux(m, G, h) / h;
-}
+double film_velocity(const Material& m, double G, double h) { return FilmVelocityKernel(m).velocity(G, h); }
 
 FilmVelocity film_velocity_with_derivatives(const Material& m, double G, double h) {
-  FilmVelocity out;
-  if (!(h > 0)) return out;
-  const double n = m.flow_index, K = m.consistency, tau = m.yield_stress;
-  if (!(G > 0)) {
-    // u = (G/K)^(1/n) h^(1/n+1) n/(2n+1) without a yield stress: linear in G only for n = 1.
-    if (tau == 0.0 && n == 1.0) out.du_dG = h * h / (3.0 * K);
-    return out;
-  }
-  const double Y = h - tau / G;
-  if (Y <= 0) return out;
-  const double c = n / (n + 1.0), a = n / (2.0 * n + 1.0);
-  const double P = n == 1.0 ? G * Y / K : std::exp(std::log(G * Y / K) / n);
-  const double rest = h - a * Y;
-  const double q = c * Y * P * rest;
-  const double dq_dY = c * P * ((1.0 + 1.0 / n) * rest - a * Y);
-  const double dq_dh = dq_dY + c * Y * P;
-  const double dq_dG = dq_dY * tau / (G * G) + q / (n * G);
-  out.u = q / h;
-  out.du_dh = (dq_dh - out.u) / h;
-  out.du_dG = dq_dG / h;
-  return out;
+  return FilmVelocityKernel(m).with_derivatives(G, h);
 }
 
 }  // namespace spreadfit

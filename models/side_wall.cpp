@@ -2,7 +2,6 @@
 
 #include <cmath>
 #include <numbers>
-#include <vector>
 #include <algorithm>
 
 namespace spreadfit {
@@ -38,64 +37,50 @@ double side_wall_flux_factor_exact(double h_over_w) {
 
 namespace spreadfit {
 
-namespace {
 // The factor sits in the innermost loop of every channel solve (one call per node per right-hand side), so it is
-// tabulated once on depth/width in [0, table_end] and read by cubic Hermite interpolation (C1, so the predicted
-// reading stays smooth in the parameters); interpolation error < 1e-8 (checked in the tests).
-constexpr int table_size = 4097;
-constexpr double table_end = 4.0;
-struct Table {
-  double step = table_end / (table_size - 1);
-  std::vector<double> f, df;
-  Table() : f(table_size), df(table_size) {
-    for (int i = 0; i < table_size; ++i) {
-      const double x = i * step, e = 1e-6;
-      f[i] = side_wall_flux_factor_exact(x);
-      df[i] = i == 0 ? (side_wall_flux_factor_exact(e) - f[0]) / e
-                     : (side_wall_flux_factor_exact(x + e) - side_wall_flux_factor_exact(x - e)) / (2 * e);
-    }
+// tabulated once on depth/width in [0, SideWallTable::end] and read by cubic Hermite interpolation (C1, so the
+// predicted reading stays smooth in the parameters); interpolation error < 1e-8 (checked in the tests). The node
+// derivatives are central differences of the series.
+SideWallTable::SideWallTable() {
+  for (int i = 0; i < size; ++i) {
+    const double x = i * step, e = 1e-6;
+    const double f = side_wall_flux_factor_exact(x);
+    const double df = i == 0 ? (side_wall_flux_factor_exact(e) - f) / e
+                             : (side_wall_flux_factor_exact(x + e) - side_wall_flux_factor_exact(x - e)) / (2 * e);
+    node_[i] = {f, step * df};
   }
-};
-
-const Table& table() {
-  static const Table t;
-  return t;
-}
-}  // namespace
-
-double side_wall_flux_factor(double h_over_w) {
-  if (!(h_over_w > 0)) return 1.0;
-  if (h_over_w >= table_end) return side_wall_flux_factor_exact(h_over_w);
-  const Table& tab = table();
-  const double u = h_over_w / tab.step;
-  const int i = std::min(int(u), table_size - 2);
-  const double t = u - i, h = tab.step;
-  const double t2 = t * t, t3 = t2 * t;
-  return (2 * t3 - 3 * t2 + 1) * tab.f[i] + (t3 - 2 * t2 + t) * h * tab.df[i] + (-2 * t3 + 3 * t2) * tab.f[i + 1] +
-         (t3 - t2) * h * tab.df[i + 1];
 }
 
-SideWallFactor side_wall_flux_factor_with_slope(double h_over_w) {
+SideWallFactor SideWallTable::factor_with_slope(double r) const {
   SideWallFactor out;
-  if (!(h_over_w > 0)) return out;
-  if (h_over_w >= table_end) {
-    const double e = 1e-6 * h_over_w;
-    out.f = side_wall_flux_factor_exact(h_over_w);
-    out.df = (side_wall_flux_factor_exact(h_over_w + e) - side_wall_flux_factor_exact(h_over_w - e)) / (2 * e);
+  if (!(r > 0)) return out;
+  if (r >= end) {
+    const double e = 1e-6 * r;
+    out.f = side_wall_flux_factor_exact(r);
+    out.df = (side_wall_flux_factor_exact(r + e) - side_wall_flux_factor_exact(r - e)) / (2 * e);
     return out;
   }
-  const Table& tab = table();
-  const double u = h_over_w / tab.step;
-  const int i = std::min(int(u), table_size - 2);
-  const double t = u - i, h = tab.step;
+  const Node* k = at(r);
+  const double t = r * inv_step - double(k - node_);
   const double t2 = t * t, t3 = t2 * t;
-  out.f = (2 * t3 - 3 * t2 + 1) * tab.f[i] + (t3 - 2 * t2 + t) * h * tab.df[i] + (-2 * t3 + 3 * t2) * tab.f[i + 1] +
-          (t3 - t2) * h * tab.df[i + 1];
+  out.f = (2 * t3 - 3 * t2 + 1) * k[0].f + (t3 - 2 * t2 + t) * k[0].hdf + (-2 * t3 + 3 * t2) * k[1].f +
+          (t3 - t2) * k[1].hdf;
   // d/d(depth/width) = (d/dt) / step.
-  out.df = ((6 * t2 - 6 * t) * tab.f[i] + (3 * t2 - 4 * t + 1) * h * tab.df[i] + (-6 * t2 + 6 * t) * tab.f[i + 1] +
-            (3 * t2 - 2 * t) * h * tab.df[i + 1]) /
-           h;
+  out.df = ((6 * t2 - 6 * t) * k[0].f + (3 * t2 - 4 * t + 1) * k[0].hdf + (-6 * t2 + 6 * t) * k[1].f +
+            (3 * t2 - 2 * t) * k[1].hdf) *
+           inv_step;
   return out;
+}
+
+const SideWallTable& side_wall_table() {
+  static const SideWallTable t;
+  return t;
+}
+
+double side_wall_flux_factor(double h_over_w) { return side_wall_table().factor(h_over_w); }
+
+SideWallFactor side_wall_flux_factor_with_slope(double h_over_w) {
+  return side_wall_table().factor_with_slope(h_over_w);
 }
 
 }  // namespace spreadfit

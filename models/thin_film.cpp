@@ -44,7 +44,10 @@ class SolveStepBudget {
 
 }  // namespace
 
-SpreadingSystem::SpreadingSystem(const SpreadingProblem& problem, int cells, double grading) : p_(problem) {
+SpreadingSystem::SpreadingSystem(const SpreadingProblem& problem, int cells, double grading)
+    : p_(problem),
+      film_(problem.material),
+      walls_(problem.channel_width > 0 ? &side_wall_table() : nullptr) {
   initial_.resize(cells);
   for (int i = 1; i <= cells; ++i) initial_[i - 1] = 1.0 - std::pow(1.0 - double(i) / cells, grading);
   initial_[cells - 1] = 1.0;
@@ -74,12 +77,11 @@ double SpreadingSystem::area_slope(double node) const {
 // Node velocity v = -sign(slope) U(rho g |slope|, depth), U = film velocity times the side-wall factor, with
 // dv/dslope = -rho g dU/dG and dv/ddepth = -sign(slope) dU/dh.
 SpreadingSystem::NodeVelocity SpreadingSystem::node_velocity(double slope, double depth) const {
-  const FilmVelocity fv = film_velocity_with_derivatives(p_.material, p_.rho_g * std::abs(slope), depth);
+  const FilmVelocity fv = film_.with_derivatives(p_.rho_g * std::abs(slope), depth);
   double U = fv.u, U_G = fv.du_dG, U_h = fv.du_dh;
-  if (p_.channel_width > 0) {
-    const double W = p_.channel_width;
-    const SideWallFactor sw = side_wall_flux_factor_with_slope(depth / W);
-    U_h = U_h * sw.f + U * sw.df / W;
+  if (walls_) {
+    const SideWallFactor sw = walls_->factor_with_slope(depth / p_.channel_width);
+    U_h = U_h * sw.f + U * sw.df / p_.channel_width;
     U *= sw.f;
     U_G *= sw.f;
   }
@@ -182,10 +184,9 @@ void SpreadingSystem::operator()(const Eigen::VectorXd& x, Eigen::VectorXd& dxdt
     h[j] = mass_[j] / cell_area(left, x[j]);
     left = x[j];
   }
-  const double width = p_.channel_width;
   auto velocity = [&](double slope, double depth) {
-    double u = film_velocity(p_.material, p_.rho_g * std::abs(slope), depth);
-    if (width > 0) u *= side_wall_flux_factor(depth / width);
+    double u = film_.velocity(p_.rho_g * std::abs(slope), depth);
+    if (walls_) u *= walls_->factor(depth / p_.channel_width);
     return slope > 0 ? -u : u;
   };
   // Interior node i sits between cells i-1 and i: height interpolated linearly between the cell centres,

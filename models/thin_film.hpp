@@ -19,7 +19,9 @@
 
 #include <Eigen/Core>
 
+#include "models/film_velocity_kernel.hpp"
 #include "models/rheology.hpp"
+#include "models/side_wall.hpp"
 #include "models/solve_status.hpp"
 
 namespace spreadfit {
@@ -88,6 +90,8 @@ class SpreadingSystem {
   };
   NodeVelocity node_velocity(double slope, double depth) const;
   SpreadingProblem p_;
+  FilmVelocityKernel film_;           // the material's film velocity, constants worked out once
+  const SideWallTable* walls_;        // the side-wall factor's table, null without side walls
   Eigen::VectorXd initial_;  // scaled node positions at release
   Eigen::VectorXd mass_;     // cell volume / (2 pi)^s, constant in time
   double front_alpha_;

@@ -38,17 +38,24 @@ class TridiagonalLu {
  public:
   /// lower[0] and upper[n-1] are ignored.
   bool factorize(const Eigen::VectorXd& lower, const Eigen::VectorXd& diag, const Eigen::VectorXd& upper) {
+    return factorize_shifted(0.0, 1.0, lower, diag, upper);
+  }
+  /// The same for the matrix shift I + scale T, T the tridiagonal (lower, diag, upper), without forming it: the
+  /// steppers' W = I/(gamma dt) - J is (1/(gamma dt), -1, J) and needs no temporaries in the step loop.
+  bool factorize_shifted(double shift, double scale, const Eigen::VectorXd& lower, const Eigen::VectorXd& diag,
+                         const Eigen::VectorXd& upper) {
     const Eigen::Index n = diag.size();
-    lower_ = lower;
+    lower_.resize(n);
     pivot_.resize(n);
     ratio_.resize(n);
-    double denom = diag[0];
+    double denom = shift + scale * diag[0];
     for (Eigen::Index i = 0;; ++i) {
       if (!(std::abs(denom) > 1e-300) || !std::isfinite(denom)) return false;
       pivot_[i] = denom;
       if (i + 1 == n) break;
-      ratio_[i] = upper[i] / denom;
-      denom = diag[i + 1] - lower[i + 1] * ratio_[i];
+      ratio_[i] = scale * upper[i] / denom;
+      lower_[i + 1] = scale * lower[i + 1];
+      denom = shift + scale * diag[i + 1] - lower_[i + 1] * ratio_[i];
     }
     return true;
   }
@@ -105,8 +112,7 @@ class TridiagonalRodas {
       have_point_ = f0_.allFinite() && jl_.allFinite() && jd_.allFinite() && ju_.allFinite();
       if (!have_point_) return false;
     }
-    wd_ = Eigen::VectorXd::Constant(n, 1.0 / (k_.gamma * dt)) - jd_;
-    if (!lu_.factorize(-jl_, wd_, -ju_)) return false;
+    if (!lu_.factorize_shifted(1.0 / (k_.gamma * dt), -1.0, jl_, jd_, ju_)) return false;
     const double inv_dt = 1.0 / dt;
 
     g1_ = f0_;
@@ -156,7 +162,7 @@ class TridiagonalRodas {
   Eigen::VectorXd x_point_;
   std::size_t rhs_calls_ = 0, jacobians_ = 0;
   TridiagonalLu lu_;
-  Eigen::VectorXd f0_, jl_, jd_, ju_, wd_, fs_, stage_, g1_, g2_, g3_, g4_, g5_;
+  Eigen::VectorXd f0_, jl_, jd_, ju_, fs_, stage_, g1_, g2_, g3_, g4_, g5_;
 };
 
 }  // namespace spreadfit
