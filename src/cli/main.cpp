@@ -20,6 +20,7 @@
 #include "src/cli/translate_command.hpp"
 #include "src/cli/plan_command.hpp"
 #include "src/cli/fit_command.hpp"
+#include "src/cli/command_line_values.hpp"
 #include "src/cli/simulate_command.hpp"
 #include "src/io/input_error.hpp"
 #include "src/version.hpp"

@@ -12,7 +12,7 @@
 #include "src/cli/exit_codes.hpp"
 #include "src/cli/parameter_ranges.hpp"
 #include "src/fit/parameter_names.hpp"
-#include "src/cli/simulate_command.hpp"
+#include "src/cli/command_line_values.hpp"
 #include "src/fit/design_check.hpp"
 #include "src/cli/progress.hpp"
 #include "src/fit/expected_intervals.hpp"
@@ -34,18 +34,6 @@ struct Candidate {
   double sigma = default_sigma;
   fit::WorstCaseEstimate estimate;
 };
-
-/// --every or --until as one time; parse_times names "--times", so its complaint is relocated to `option`.
-double one_time(const std::string& text, const std::string& option) {
-  std::vector<double> t;
-  try {
-    t = parse_times(text);
-  } catch (const io::InputError& e) {
-    throw io::InputError(std::string(command_line_source), 0, option, e.message());
-  }
-  if (t.size() != 1) throw io::InputError(std::string(command_line_source), 0, option, "expected one time");
-  return t.front();
-}
 
 std::string ratio_text(double r) {
   return r < fit::undetermined_ratio ? fmt::format("{:.3g}x", r) : std::string("undetermined");
@@ -310,7 +298,7 @@ int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::
     throw io::InputError(where, 0, "--check", fmt::format("{} refits (expected 0 to {})", options.check, max_check));
   const std::vector<ParameterRange> ranges = parse_parameter_ranges(law, options.set, options.vary);
   const SimulationParameters base = range_base(law, options.set, ranges);
-  const double every = one_time(options.every, "--every"), until = one_time(options.until, "--until");
+  const double every = parse_one_time(options.every, "--every"), until = parse_one_time(options.until, "--until");
   if (!(every > 0) || until < every)
     throw io::InputError(where, 0, "--every/--until", "expected one interval > 0 and a duration at least as long");
   if (until / every > static_cast<double>(max_times))

@@ -6,7 +6,7 @@
 
 #include "src/cli/exit_codes.hpp"
 #include "src/cli/progress.hpp"
-#include "src/cli/simulate_command.hpp"
+#include "src/cli/command_line_values.hpp"
 #include "src/fit/prediction_band.hpp"
 #include "src/fit/stored_fit.hpp"
 #include "src/io/atomic_file.hpp"

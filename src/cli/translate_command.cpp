@@ -9,7 +9,7 @@
 #include "models/forward.hpp"
 #include "src/cli/exit_codes.hpp"
 #include "src/cli/parameter_ranges.hpp"
-#include "src/cli/simulate_command.hpp"
+#include "src/cli/command_line_values.hpp"
 #include "src/fit/parameter_names.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
@@ -63,23 +63,6 @@ std::vector<double> axis_values(ParameterRange r, std::pair<double, double> exte
   std::vector<double> v;
   for (int i = 0; i < points; ++i) v.push_back(range_value(r, double(i) / (points - 1)));
   return v;
-}
-
-// Reading limits "LOW:HIGH", each a length in SI or with a unit.
-std::pair<double, double> parse_reading_limits(const std::string& text) {
-  const std::string where(command_line_source);
-  const auto colon = text.find(':');
-  if (colon == std::string::npos)
-    throw io::InputError(where, 0, "--between", "expected LOW:HIGH reading limits, such as \"5.5 cm:8 cm\"");
-  double low = 0, high = 0;
-  try {
-    low = parse_value(text.substr(0, colon), io::Dimension::Length, io::Range::NonNegative);
-    high = parse_value(text.substr(colon + 1), io::Dimension::Length, io::Range::NonNegative);
-  } catch (const io::UnitError& e) {
-    throw io::InputError(where, 0, "--between", e.what());
-  }
-  if (!(low <= high)) throw io::InputError(where, 0, "--between", "low is above high (expected LOW:HIGH)");
-  return {low, high};
 }
 
 }  // namespace
