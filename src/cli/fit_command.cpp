@@ -19,6 +19,7 @@
 #include "src/history/history_location.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
+#include "src/io/parameter_table.hpp"
 #include "src/io/description_file.hpp"
 #include "src/parallel_for.hpp"
 #include "src/qc/verdict.hpp"
@@ -69,6 +70,7 @@ std::vector<fit::BatchFlowIndex> earlier_flow_indices(const std::string& db, con
     // earlier batches to learn from; recording the result reports any real problem with the history.
     return out;
   }
+  const std::string flow_index(io::parameter_name(io::Parameter::FlowIndex));
   for (const history::StoredResult& r : earlier) {
     const nlohmann::json j = nlohmann::json::parse(r.result_json, nullptr, false);
     if (j.is_discarded() || !j.is_object()) continue;
@@ -77,8 +79,8 @@ std::vector<fit::BatchFlowIndex> earlier_flow_indices(const std::string& db, con
     if (j.contains("fit") && j["fit"].contains("flow_index_without_prior")) {
       n = &j["fit"]["flow_index_without_prior"];
       b.determined = n->value("determined", false);
-    } else if (j.contains("parameters") && j["parameters"].contains("flow_index")) {
-      n = &j["parameters"]["flow_index"];
+    } else if (j.contains("parameters") && j["parameters"].contains(flow_index)) {
+      n = &j["parameters"][flow_index];
       b.determined = n->value("identifiable", true) && !n->value("lower_open", false) && !n->value("upper_open", false);
     }
     if (!n || !n->contains("value") || !n->contains("ci95") || !(*n)["ci95"].is_array() || (*n)["ci95"].size() != 2 ||
@@ -180,9 +182,10 @@ report::FitOutcome fit_material(std::vector<io::TestDescription> tests, const st
       o.reference_temperature = *product->reference_temperature;
       for (fit::ParameterEstimate& p : judged.parameters) {
         double factor = 1.0;
-        if (p.name == "viscosity" || p.name == "consistency")
+        if (io::is_parameter(p.name, io::Parameter::Viscosity) ||
+            io::is_parameter(p.name, io::Parameter::Consistency))
           factor = arrhenius_factor(product->activation_energy, *first.temperature, *o.reference_temperature);
-        else if (p.name == "yield_stress")
+        else if (io::is_parameter(p.name, io::Parameter::YieldStress))
           factor = arrhenius_factor(product->yield_stress_activation_energy, *first.temperature,
                                     *o.reference_temperature);
         else
@@ -193,7 +196,7 @@ report::FitOutcome fit_material(std::vector<io::TestDescription> tests, const st
       }
       o.reference_parameters.clear();
       for (const fit::ParameterEstimate& p : judged.parameters)
-        if (p.name != "time_origin") o.reference_parameters.push_back(p);
+        if (!io::is_parameter(p.name, io::Parameter::TimeOrigin)) o.reference_parameters.push_back(p);
     }
   }
   o.verdict = qc::judge(judged, limits);

@@ -16,6 +16,7 @@
 #include "src/history/history_location.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
+#include "src/io/parameter_table.hpp"
 #include "src/qc/control_chart.hpp"
 #include "src/report/control_chart_svg.hpp"
 
@@ -26,12 +27,6 @@ namespace {
 using history::StoredResult;
 using Parameter = std::tuple<std::string, double, double, double, std::string>;
 
-/// Parameters in the order reports list them; others follow in the order first recorded.
-constexpr const char* kParameterOrder[] = {"yield_stress", "viscosity", "consistency", "flow_index"};
-
-/// The parameter --chart draws when it has at least two values.
-constexpr const char* kChartParameter = "yield_stress";
-
 /// How a product without a code is shown.
 constexpr const char* kNoProduct = "(none)";
 
@@ -39,7 +34,14 @@ struct Column {
   std::string name, unit;
 };
 
-/// The parameters that occur in `rows`: the usual four first (those present), then others as first recorded.
+/// True when `name` is one of the material parameters of the table.
+bool is_material_parameter(const std::string& name) {
+  const auto table = io::material_parameters();
+  return std::any_of(table.begin(), table.end(), [&](const io::ParameterInfo& p) { return p.name == name; });
+}
+
+/// The parameters that occur in `rows`: the table's material parameters first, in the order reports list them
+/// (those present), then others as first recorded.
 std::vector<Column> parameter_columns(const std::vector<const StoredResult*>& rows) {
   std::vector<Column> seen;
   for (const StoredResult* r : rows)
@@ -49,13 +51,11 @@ std::vector<Column> parameter_columns(const std::vector<const StoredResult*>& ro
         seen.push_back({name, std::get<4>(p)});
     }
   std::vector<Column> ordered;
-  for (const char* name : kParameterOrder)
+  for (const io::ParameterInfo& p : io::material_parameters())
     for (const Column& c : seen)
-      if (c.name == name) ordered.push_back(c);
+      if (c.name == p.name) ordered.push_back(c);
   for (const Column& c : seen)
-    if (std::none_of(std::begin(kParameterOrder), std::end(kParameterOrder),
-                     [&](const char* name) { return c.name == name; }))
-      ordered.push_back(c);
+    if (!is_material_parameter(c.name)) ordered.push_back(c);
   return ordered;
 }
 
@@ -320,7 +320,8 @@ qc::ControlChart chosen_chart(const std::string& db, const std::vector<StoredRes
   const std::vector<const StoredResult*> mine = of_product(rows, codes.front());
   const std::vector<Column> columns = parameter_columns(mine);
   for (const Column& c : columns)
-    if (c.name == kChartParameter)
+    // The yield stress when it has at least two values (README, history --chart), else the first that has.
+    if (io::is_parameter(c.name, io::Parameter::YieldStress))
       if (auto chart = chart_of(mine, c)) return *chart;
   for (const Column& c : columns)
     if (auto chart = chart_of(mine, c)) return *chart;

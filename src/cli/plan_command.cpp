@@ -203,7 +203,7 @@ void print_reasons(std::ostream& out, const std::vector<ParameterRange>& ranges,
   else
     out << fmt::format("recommended: {} (narrowest intervals overall; its widest is the {}, a factor {:.3g})\n", b.name,
                        names[limiting], e.worst_ratio[limiting]);
-  if (names[limiting] == "yield_stress")
+  if (io::is_parameter(names[limiting], io::Parameter::YieldStress))
     out << "  the yield stress shows in the approach to arrest: readings should continue until the sample stops\n";
 
   // Whether the guessed material stops within each test.
@@ -232,7 +232,7 @@ void print_reasons(std::ostream& out, const std::vector<ParameterRange>& ranges,
   // guess the sentence above says it).
   if (range)
     for (std::size_t p = 0; p < names.size(); ++p)
-      if (names[p] == "yield_stress" && !e.guesses[e.worst_guess[p]].stopped)
+      if (io::is_parameter(names[p], io::Parameter::YieldStress) && !e.guesses[e.worst_guess[p]].stopped)
         out << fmt::format(
             "  at {}, its widest yield-stress case, the sample is still moving at the end of {}, which leaves the "
             "yield stress at {}\n",

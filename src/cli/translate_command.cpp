@@ -38,19 +38,19 @@ std::string length_text(double metres, double larger) {
   return larger >= 0.03 ? fmt::format("{:.4g} cm", metres * 100) : fmt::format("{:.4g} mm", metres * 1000);
 }
 
-bool log_axis(const ParameterRange& r) { return r.name != "flow_index" && r.lo > 0; }
 
 // The map's extent along one axis: the range itself (reverse: the search range), or widened by half its width
 // each way (forward: the parameter limits in the middle of the map). A point range is widened by a factor 2.
 std::pair<double, double> map_extent(const ParameterRange& r, bool widen) {
   double lo = r.lo, hi = r.hi;
-  if (log_axis(r)) {
+  if (log_spaced(r)) {
     const double ratio = hi > lo ? std::sqrt(hi / lo) : 2.0;
     if (widen || !(hi > lo)) lo /= ratio, hi *= ratio;
   } else {
     const double half = hi > lo ? 0.5 * (hi - lo) : std::max(0.5 * std::abs(hi), 0.1);
     if (widen || !(hi > lo)) lo -= half, hi += half;
-    const double floor = r.name == "flow_index" ? 0.05 : 0.0;  // a flow index must stay positive
+    // A flow index must stay positive.
+    const double floor = io::is_parameter(r.name, io::Parameter::FlowIndex) ? 0.05 : 0.0;
     lo = std::max(lo, floor);
   }
   return {lo, hi};
@@ -147,7 +147,7 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
     std::vector<Material> combos;
     for (const GridPoint& g : parameter_grid(nominal.material, others, options.points)) combos.push_back(g.material);
     const ParameterRange& s = ranges[solved];
-    const qc::SearchRange search{s.name, s.lo, s.hi, log_axis(s)};
+    const qc::SearchRange search{s.name, s.lo, s.hi, log_spaced(s)};
     const qc::ParameterLimits limits = solve_parameter_limits(setup, when, combos, search, between->first, between->second);
     if (!limits.ok()) {
       err << fmt::format("spreadfit: {}: {} while solving for {}; no limits written\n", options.test.string(),
@@ -194,8 +194,8 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
     const ParameterRange& xr = ranges[0];
     const ParameterRange& yr = ranges[1];
     const bool widen = !between;
-    map.x_log = log_axis(xr);
-    map.y_log = log_axis(yr);
+    map.x_log = log_spaced(xr);
+    map.y_log = log_spaced(yr);
     map.x = axis_values(xr, map_extent(xr, widen), options.map_points);
     map.y = axis_values(yr, map_extent(yr, widen), options.map_points);
     map.x_name = fmt::format("{} [{}]", plain(xr.name), fit::parameter_unit(xr.name));
