@@ -11,6 +11,7 @@
 #include <vector>
 
 #include <nlohmann/json.hpp>
+#include <memory>
 
 #include "src/cli/exit_codes.hpp"
 #include "src/history/history_location.hpp"
@@ -19,6 +20,7 @@
 #include "src/io/parameter_table.hpp"
 #include "src/qc/control_chart.hpp"
 #include "src/report/control_chart_svg.hpp"
+#include "src/cli/path_option.hpp"
 
 namespace spreadfit::cli {
 
@@ -435,6 +437,40 @@ std::string history_record_note(const std::string& db, const history::StoredResu
   return outcome == history::WriteOutcome::Updated
              ? fmt::format("history: replaced {} in {} (same inputs as an earlier run)", result.sample_id, name)
              : fmt::format("history: added {} to {}", result.sample_id, name);
+}
+
+CommandRegistration add_history_command(CLI::App& app) {
+  struct Given {
+    HistoryCommandOptions options;
+    PathOption chart;
+    std::string copy_to;
+    CLI::Option* copy_to_option = nullptr;
+  };
+  const auto given = std::make_shared<Given>();
+  CLI::App* history =
+      app.add_subcommand("history", "List the batch history per product, with control-chart signals.");
+  history->add_option("DB", given->options.db,
+                      "History written by 'spreadfit fit --db': an SQLite file or a postgresql:// URI")
+      ->required()
+      ->type_name("");
+  history->add_option("--product", given->options.product, "Only this product code")->type_name("CODE");
+  history->add_option("--site", given->options.site, "Only this site (lab or plant); default: across all sites")
+      ->type_name("CODE");
+  given->chart.add_to(*history, "--chart", "FILE.svg",
+                      "Draw an individuals control chart of the product's yield stress (else its first parameter)");
+  history->add_flag("--csv", given->options.csv, "Write CSV to stdout instead of the table");
+  given->copy_to_option =
+      history
+          ->add_option("--copy-to", given->copy_to,
+                       "Copy the results into another history (e.g. a postgresql:// URI); running it twice adds "
+                       "nothing")
+          ->type_name("URI");
+  return {history, [given](std::ostream& out, std::ostream& err) {
+            HistoryCommandOptions options = given->options;
+            options.chart = given->chart.get();
+            options.copy_to = given_text(given->copy_to_option, given->copy_to);
+            return run_history_command(options, out, err);
+          }};
 }
 
 }  // namespace spreadfit::cli

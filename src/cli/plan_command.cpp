@@ -8,6 +8,7 @@
 #include <numbers>
 #include <utility>
 #include <variant>
+#include <memory>
 
 #include "src/cli/exit_codes.hpp"
 #include "src/cli/parameter_ranges.hpp"
@@ -18,6 +19,7 @@
 #include "src/fit/expected_intervals.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/description_file.hpp"
+#include "src/cli/path_option.hpp"
 
 namespace spreadfit::cli {
 
@@ -341,6 +343,45 @@ int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::
   print_reasons(out, ranges, guesses, rows, best, second);
   if (options.check > 0) print_check(out, err, options, law, base, ranges, rows, best, second);
   return to_int(ExitCode::Done);
+}
+
+CommandRegistration add_plan_command(CLI::App& app) {
+  struct Given {
+    PlanCommandOptions options;
+    std::vector<std::string> candidates;
+  };
+  const auto given = std::make_shared<Given>();
+  PlanCommandOptions& o = given->options;
+  CLI::App* plan = app.add_subcommand(
+      "plan", "Compare candidate tests by the expected 95% intervals of the parameters for a guessed material.");
+  plan->add_option("CANDIDATE.toml", given->candidates, "Test descriptions of the candidate tests")
+      ->required()
+      ->type_name("");
+  plan->add_option("--model", o.model, "Model: " + std::string(model_names_help))->required()->type_name("NAME");
+  plan->add_option("--set", o.set, "PARAM=VALUE of the guessed material (the parameters not varied)")
+      ->type_name("PARAM=VALUE");
+  plan->add_option("--vary", o.vary,
+                   "PARAM=LOW:HIGH, a range of the guess, e.g. yield_stress=\"10 Pa:40 Pa\"; candidates are judged by "
+                   "their worst case over the guesses")
+      ->type_name("PARAM=LOW:HIGH");
+  // A function, not a value: the option's storage is optional (given or not).
+  plan->add_option_function<int>(
+          "--points", [&o](const int& n) { o.points = n; },
+          "Guesses per varied parameter (default 3; log-spaced except the flow index)")
+      ->type_name("N");
+  plan->add_option("--check", o.check,
+                   "Refit N simulated reading sets of the recommended test and the runner-up at the middle guess "
+                   "(default 0: no check)")
+      ->type_name("N");
+  plan->add_option("--every", o.every, "Reading interval for candidates without readings (default 5 s)")
+      ->type_name("DT");
+  plan->add_option("--until", o.until, "Duration for candidates without readings (default 120 s)")->type_name("T");
+  plan->footer(std::string(exit_codes_without_spec));
+  return {plan, [given](std::ostream& out, std::ostream& err) {
+            PlanCommandOptions options = given->options;
+            options.candidates.assign(given->candidates.begin(), given->candidates.end());
+            return run_plan_command(options, out, err);
+          }};
 }
 
 }  // namespace spreadfit::cli

@@ -7,6 +7,7 @@
 #include <cstddef>
 #include <stdexcept>
 #include <string>
+#include <memory>
 
 #include "models/forward.hpp"
 #include "src/cli/command_line_values.hpp"
@@ -14,6 +15,7 @@
 #include "src/io/description_file.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/readings_csv.hpp"
+#include "src/cli/path_option.hpp"
 
 namespace spreadfit::cli {
 
@@ -68,6 +70,42 @@ int run_simulate_command(const SimulateCommandOptions& options, std::ostream& ou
   out << simulation_csv(test.setup.reading, times, result.readings);
   out.flush();
   return to_int(ExitCode::Done);
+}
+
+CommandRegistration add_simulate_command(CLI::App& app) {
+  struct Given {
+    SimulateCommandOptions options;
+    std::string test, times;
+    CLI::Option* times_option = nullptr;
+  };
+  const auto given = std::make_shared<Given>();
+  CLI::App* simulate = app.add_subcommand(
+      "simulate", "Predict a test's readings for a given material (the forward model alone); CSV on stdout.");
+  simulate->add_option("TEST.toml", given->test, "Test description (TOML): rig, density and reading")
+      ->required()
+      ->type_name("");
+  simulate->add_option("--model", given->options.model, "Model: " + std::string(model_names_help))
+      ->required()
+      ->type_name("NAME");
+  simulate
+      ->add_option("--set", given->options.set,
+                   "PARAM=VALUE: viscosity [Pa s], yield_stress [Pa], consistency [Pa s^n], flow_index [-], "
+                   "time_origin [s]; VALUE in SI or with a unit, e.g. yield_stress=\"25 Pa\"")
+      ->type_name("PARAM=VALUE");
+  given->times_option =
+      simulate
+          ->add_option("--times", given->times,
+                       fmt::format("Times to simulate, in s or with a unit (default: the readings' times, else "
+                                   "{} spaced in log t from {} s to {} s; a slump rig: {} s)",
+                                   default_time_count, default_first_time, default_last_time, default_last_time))
+          ->type_name("T1,T2,...");
+  simulate->footer(std::string(exit_codes_without_spec));
+  return {simulate, [given](std::ostream& out, std::ostream& err) {
+            SimulateCommandOptions options = given->options;
+            options.test = given->test;
+            options.times = given_text(given->times_option, given->times);
+            return run_simulate_command(options, out, err);
+          }};
 }
 
 }  // namespace spreadfit::cli

@@ -25,6 +25,7 @@
 #include <vector>
 
 #include "models/rig.hpp"
+#include "src/cli/command_registration.hpp"
 
 namespace spreadfit::cli {
 
@@ -42,5 +43,8 @@ std::string simulation_csv(Reading reading, const std::vector<double>& times, co
 /// Runs the subcommand: CSV on `out`, forward-model notes ("note: ...") and failures on `err`. Returns
 /// ExitCode::Done, or ExitCode::NumericalFailure when the solve fails. Throws io::InputError for bad input.
 int run_simulate_command(const SimulateCommandOptions& options, std::ostream& out, std::ostream& err);
+
+/// Declares `spreadfit simulate` and its options on `app`.
+CommandRegistration add_simulate_command(CLI::App& app);
 
 }  // namespace spreadfit::cli

@@ -5,6 +5,7 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <memory>
 
 #include "models/forward.hpp"
 #include "src/cli/exit_codes.hpp"
@@ -18,6 +19,7 @@
 #include "src/qc/spec_translation.hpp"
 #include "src/report/reading_map_svg.hpp"
 #include "src/cli/progress.hpp"
+#include "src/cli/path_option.hpp"
 
 namespace spreadfit::cli {
 
@@ -248,6 +250,57 @@ int run_translate_command(const TranslateCommandOptions& options, std::ostream& 
   }
   out << report;
   return code;
+}
+
+CommandRegistration add_translate_command(CLI::App& app) {
+  struct Given {
+    TranslateCommandOptions options;
+    std::string test, between, solve, map, grid;
+    CLI::Option* between_option = nullptr;
+    CLI::Option* solve_option = nullptr;
+    CLI::Option* map_option = nullptr;
+    CLI::Option* grid_option = nullptr;
+  };
+  const auto given = std::make_shared<Given>();
+  TranslateCommandOptions& o = given->options;
+  CLI::App* translate = app.add_subcommand(
+      "translate",
+      "Turn parameter limits into reading limits on a rig at a time, or reading limits into parameter limits.");
+  translate->add_option("TEST.toml", given->test, "Test description of the rig (readings optional)")
+      ->required()
+      ->type_name("");
+  translate->add_option("--model", o.model, "Model: " + std::string(model_names_help))->required()->type_name("NAME");
+  translate->add_option("--vary", o.vary, "PARAM=LOW:HIGH, e.g. yield_stress=\"20 Pa:35 Pa\"")
+      ->required()
+      ->type_name("PARAM=LOW:HIGH");
+  translate->add_option("--set", o.set, "PARAM=VALUE for the parameters not varied")->type_name("PARAM=VALUE");
+  translate->add_option("--at", o.at, "Reading time, in s or with a unit")->required()->type_name("T");
+  translate->add_option("--points", o.points, "Grid points per varied parameter (default 5)")->type_name("N");
+  given->between_option =
+      translate->add_option("--between", given->between,
+                            "Reading limits, e.g. \"5.5 cm:8 cm\": solve for parameter limits instead")
+          ->type_name("LOW:HIGH");
+  given->solve_option =
+      translate
+          ->add_option("--solve", given->solve, "With --between: the parameter to solve for (default: first --vary)")
+          ->type_name("PARAM");
+  given->map_option =
+      translate->add_option("--map", given->map, "Also write an SVG map of the reading over the first two --vary")
+          ->type_name("FILE.svg");
+  translate->add_option("--map-points", o.map_points, "Map grid points per axis (default 21)")->type_name("M");
+  given->grid_option =
+      translate->add_option("--grid", given->grid, "Also write every grid point's parameters and reading as CSV")
+          ->type_name("FILE.csv");
+  translate->footer(std::string(exit_codes_without_spec));
+  return {translate, [given](std::ostream& out, std::ostream& err) {
+            TranslateCommandOptions options = given->options;
+            options.test = given->test;
+            options.between = given_text(given->between_option, given->between);
+            options.solve = given_text(given->solve_option, given->solve);
+            if (auto map = given_text(given->map_option, given->map)) options.map = *map;
+            if (auto grid = given_text(given->grid_option, given->grid)) options.grid = *grid;
+            return run_translate_command(options, out, err);
+          }};
 }
 
 }  // namespace spreadfit::cli
