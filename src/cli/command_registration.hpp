@@ -22,6 +22,7 @@ struct CommandRegistration {
 inline constexpr std::string_view model_names_help = "newtonian | power-law | bingham | herschel-bulkley";
 
 /// The exit codes of a command that judges nothing against limits (every command but fit has no "out of spec").
-inline constexpr std::string_view exit_codes_without_spec = "Exit codes: 0 done, 2 bad input or usage, 3 numerical failure.";
+inline constexpr std::string_view exit_codes_without_spec =
+    "Exit codes: 0 done, 2 bad input or usage, 3 numerical failure.";
 
 }  // namespace spreadfit::cli
