@@ -5,6 +5,7 @@
 #include <stdexcept>
 #include <string>
 #include <system_error>
+#include <memory>
 
 #include "src/capture/audit_images.hpp"
 #include "src/capture/capture.hpp"
@@ -13,6 +14,7 @@
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/description_file.hpp"
+#include "src/cli/path_option.hpp"
 
 namespace spreadfit::cli {
 
@@ -93,6 +95,31 @@ int run_capture_command(const CaptureCommandOptions& options, std::ostream& out,
                      result.release_detected ? "detected" : "given", result.pixels_per_mm, result.scale_source,
                      csv.string());
   return to_int(ExitCode::Done);
+}
+
+CommandRegistration add_capture_command(CLI::App& app) {
+  struct Given {
+    std::string test;
+    PathOption video, out, check;
+  };
+  const auto given = std::make_shared<Given>();
+  CLI::App* capture = app.add_subcommand(
+      "capture", "Turn a video of the test, taken from above, into the readings CSV that [readings] file names.");
+  capture->add_option("TEST.toml", given->test, "Test description (TOML) with a [capture] table")
+      ->required()
+      ->type_name("");
+  given->video.add_to(*capture, "--video", "FILE", "The video (instead of [capture] video)");
+  given->out.add_to(*capture, "--out", "FILE.csv", "Write the readings to FILE.csv (instead of [readings] file)");
+  given->check.add_to(*capture, "--check", "DIR",
+                      "Write audit images (frames with the outline found, a contact sheet, the curve) into DIR");
+  return {capture, [given](std::ostream& out, std::ostream& err) {
+            CaptureCommandOptions options;
+            options.test = given->test;
+            options.video = given->video.get();
+            options.out = given->out.get();
+            options.check = given->check.get();
+            return run_capture_command(options, out, err);
+          }};
 }
 
 }  // namespace spreadfit::cli

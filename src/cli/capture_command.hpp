@@ -23,6 +23,8 @@
 #include <optional>
 #include <ostream>
 
+#include "src/cli/command_registration.hpp"
+
 namespace spreadfit::cli {
 
 struct CaptureCommandOptions {
@@ -33,5 +35,8 @@ struct CaptureCommandOptions {
 };
 
 int run_capture_command(const CaptureCommandOptions& options, std::ostream& out, std::ostream& err);
+
+/// Declares `spreadfit capture` and its options on `app`.
+CommandRegistration add_capture_command(CLI::App& app);
 
 }  // namespace spreadfit::cli

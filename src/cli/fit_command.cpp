@@ -7,6 +7,7 @@
 #include <map>
 #include <mutex>
 #include <optional>
+#include <memory>
 
 #include "models/temperature.hpp"
 #include "src/cli/exit_codes.hpp"
@@ -19,6 +20,7 @@
 #include "src/history/history_location.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
+#include "src/io/parameter_table.hpp"
 #include "src/io/description_file.hpp"
 #include "src/parallel_for.hpp"
 #include "src/qc/verdict.hpp"
@@ -26,6 +28,7 @@
 #include "src/report/result_json.hpp"
 #include "src/report/summary_csv.hpp"
 #include "src/report/summary_table.hpp"
+#include "src/cli/path_option.hpp"
 
 namespace spreadfit::cli {
 
@@ -69,6 +72,7 @@ std::vector<fit::BatchFlowIndex> earlier_flow_indices(const std::string& db, con
     // earlier batches to learn from; recording the result reports any real problem with the history.
     return out;
   }
+  const std::string flow_index(io::parameter_name(io::Parameter::FlowIndex));
   for (const history::StoredResult& r : earlier) {
     const nlohmann::json j = nlohmann::json::parse(r.result_json, nullptr, false);
     if (j.is_discarded() || !j.is_object()) continue;
@@ -77,8 +81,8 @@ std::vector<fit::BatchFlowIndex> earlier_flow_indices(const std::string& db, con
     if (j.contains("fit") && j["fit"].contains("flow_index_without_prior")) {
       n = &j["fit"]["flow_index_without_prior"];
       b.determined = n->value("determined", false);
-    } else if (j.contains("parameters") && j["parameters"].contains("flow_index")) {
-      n = &j["parameters"]["flow_index"];
+    } else if (j.contains("parameters") && j["parameters"].contains(flow_index)) {
+      n = &j["parameters"][flow_index];
       b.determined = n->value("identifiable", true) && !n->value("lower_open", false) && !n->value("upper_open", false);
     }
     if (!n || !n->contains("value") || !n->contains("ci95") || !(*n)["ci95"].is_array() || (*n)["ci95"].size() != 2 ||
@@ -186,9 +190,10 @@ report::FitOutcome fit_material(std::vector<io::TestDescription> tests, const st
       o.reference_temperature = *product->reference_temperature;
       for (fit::ParameterEstimate& p : judged.parameters) {
         double factor = 1.0;
-        if (p.name == "viscosity" || p.name == "consistency")
+        if (io::is_parameter(p.name, io::Parameter::Viscosity) ||
+            io::is_parameter(p.name, io::Parameter::Consistency))
           factor = arrhenius_factor(product->activation_energy, *first.temperature, *o.reference_temperature);
-        else if (p.name == "yield_stress")
+        else if (io::is_parameter(p.name, io::Parameter::YieldStress))
           factor = arrhenius_factor(product->yield_stress_activation_energy, *first.temperature,
                                     *o.reference_temperature);
         else
@@ -199,7 +204,7 @@ report::FitOutcome fit_material(std::vector<io::TestDescription> tests, const st
       }
       o.reference_parameters.clear();
       for (const fit::ParameterEstimate& p : judged.parameters)
-        if (p.name != "time_origin") o.reference_parameters.push_back(p);
+        if (!io::is_parameter(p.name, io::Parameter::TimeOrigin)) o.reference_parameters.push_back(p);
     }
   }
   o.verdict = qc::judge(judged, limits);
@@ -419,6 +424,52 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
   if (bad_input) return to_int(ExitCode::BadInput);
   if (failed) return to_int(ExitCode::NumericalFailure);
   return to_int(out_of_spec ? ExitCode::OutOfSpec : ExitCode::Done);
+}
+
+CommandRegistration add_fit_command(CLI::App& app) {
+  struct Given {
+    std::vector<std::string> tests;
+    std::string model;
+    PathOption json, plot, out_dir, db, specs, csv;
+    bool no_prior = false;
+    bool require_spec = false;
+  };
+  const auto given = std::make_shared<Given>();
+  CLI::App* fit = app.add_subcommand("fit", "Fit thin-film models to the readings of one or more tests.");
+  fit->add_option("TEST.toml", given->tests, "Test descriptions (TOML), one per test")->required()->type_name("");
+  fit->add_option("--model", given->model,
+                  "Model to fit: " + std::string(model_names_help) +
+                      " | auto (choose by AICc); default: as each test's [fit] model says")
+      ->type_name("NAME");
+  given->json.add_to(*fit, "--json", "FILE", "Write the results as JSON to FILE");
+  given->plot.add_to(*fit, "--plot", "FILE.svg",
+                     "Draw readings, fitted curve, uncertainty band and residuals to FILE.svg");
+  given->out_dir.add_to(*fit, "--out-dir", "DIR",
+                        "Write <sample id>.json and <sample id>.svg per material (tests sharing a sample id are one "
+                        "material) into DIR");
+  given->db.add_to(*fit, "--db", "DB",
+                   "Append the results to the batch history DB: an SQLite file, or a postgresql:// URI of a shared "
+                   "history on a server");
+  given->specs.add_to(*fit, "--specs", "FILE", "Read product specifications from FILE");
+  given->csv.add_to(*fit, "--csv", "FILE", "Write the results as a CSV table to FILE");
+  fit->add_flag("--no-prior", given->no_prior,
+                "Fit the readings alone: no flow-index prior from the spec catalogue or the history (--db)");
+  fit->add_flag("--require-spec", given->require_spec,
+                "Refuse (exit 2, nothing fitted) a material without limits: no [spec] and no catalogue entry");
+  return {fit, [given](std::ostream& out, std::ostream& err) {
+            FitCommandOptions options;
+            options.tests.assign(given->tests.begin(), given->tests.end());
+            options.model = given->model;
+            options.json = given->json.get();
+            options.plot = given->plot.get();
+            options.out_dir = given->out_dir.get();
+            options.db = given->db.get();
+            options.specs = given->specs.get();
+            options.csv = given->csv.get();
+            options.use_prior = !given->no_prior;
+            options.require_spec = given->require_spec;
+            return run_fit_command(options, out, err);
+          }};
 }
 
 }  // namespace spreadfit::cli

@@ -8,6 +8,8 @@
 #include <string>
 #include <vector>
 
+#include "src/cli/command_registration.hpp"
+
 namespace spreadfit::cli {
 
 struct FitCommandOptions {
@@ -25,5 +27,8 @@ struct FitCommandOptions {
 
 /// Runs the fit subcommand; returns the exit code (README). Throws io::InputError for bad input.
 int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::ostream& err);
+
+/// Declares `spreadfit fit` and its options on `app` (README, "Using it").
+CommandRegistration add_fit_command(CLI::App& app);
 
 }  // namespace spreadfit::cli

@@ -11,13 +11,16 @@
 #include <vector>
 
 #include <nlohmann/json.hpp>
+#include <memory>
 
 #include "src/cli/exit_codes.hpp"
 #include "src/history/history_location.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
+#include "src/io/parameter_table.hpp"
 #include "src/qc/control_chart.hpp"
 #include "src/report/control_chart_svg.hpp"
+#include "src/cli/path_option.hpp"
 
 namespace spreadfit::cli {
 
@@ -26,12 +29,6 @@ namespace {
 using history::StoredResult;
 using Parameter = std::tuple<std::string, double, double, double, std::string>;
 
-/// Parameters in the order reports list them; others follow in the order first recorded.
-constexpr const char* kParameterOrder[] = {"yield_stress", "viscosity", "consistency", "flow_index"};
-
-/// The parameter --chart draws when it has at least two values.
-constexpr const char* kChartParameter = "yield_stress";
-
 /// How a product without a code is shown.
 constexpr const char* kNoProduct = "(none)";
 
@@ -39,7 +36,14 @@ struct Column {
   std::string name, unit;
 };
 
-/// The parameters that occur in `rows`: the usual four first (those present), then others as first recorded.
+/// True when `name` is one of the material parameters of the table.
+bool is_material_parameter(const std::string& name) {
+  const auto table = io::material_parameters();
+  return std::any_of(table.begin(), table.end(), [&](const io::ParameterInfo& p) { return p.name == name; });
+}
+
+/// The parameters that occur in `rows`: the table's material parameters first, in the order reports list them
+/// (those present), then others as first recorded.
 std::vector<Column> parameter_columns(const std::vector<const StoredResult*>& rows) {
   std::vector<Column> seen;
   for (const StoredResult* r : rows)
@@ -49,13 +53,11 @@ std::vector<Column> parameter_columns(const std::vector<const StoredResult*>& ro
         seen.push_back({name, std::get<4>(p)});
     }
   std::vector<Column> ordered;
-  for (const char* name : kParameterOrder)
+  for (const io::ParameterInfo& p : io::material_parameters())
     for (const Column& c : seen)
-      if (c.name == name) ordered.push_back(c);
+      if (c.name == p.name) ordered.push_back(c);
   for (const Column& c : seen)
-    if (std::none_of(std::begin(kParameterOrder), std::end(kParameterOrder),
-                     [&](const char* name) { return c.name == name; }))
-      ordered.push_back(c);
+    if (!is_material_parameter(c.name)) ordered.push_back(c);
   return ordered;
 }
 
@@ -320,7 +322,8 @@ qc::ControlChart chosen_chart(const std::string& db, const std::vector<StoredRes
   const std::vector<const StoredResult*> mine = of_product(rows, codes.front());
   const std::vector<Column> columns = parameter_columns(mine);
   for (const Column& c : columns)
-    if (c.name == kChartParameter)
+    // The yield stress when it has at least two values (README, history --chart), else the first that has.
+    if (io::is_parameter(c.name, io::Parameter::YieldStress))
       if (auto chart = chart_of(mine, c)) return *chart;
   for (const Column& c : columns)
     if (auto chart = chart_of(mine, c)) return *chart;
@@ -434,6 +437,40 @@ std::string history_record_note(const std::string& db, const history::StoredResu
   return outcome == history::WriteOutcome::Updated
              ? fmt::format("history: replaced {} in {} (same inputs as an earlier run)", result.sample_id, name)
              : fmt::format("history: added {} to {}", result.sample_id, name);
+}
+
+CommandRegistration add_history_command(CLI::App& app) {
+  struct Given {
+    HistoryCommandOptions options;
+    PathOption chart;
+    std::string copy_to;
+    CLI::Option* copy_to_option = nullptr;
+  };
+  const auto given = std::make_shared<Given>();
+  CLI::App* history =
+      app.add_subcommand("history", "List the batch history per product, with control-chart signals.");
+  history->add_option("DB", given->options.db,
+                      "History written by 'spreadfit fit --db': an SQLite file or a postgresql:// URI")
+      ->required()
+      ->type_name("");
+  history->add_option("--product", given->options.product, "Only this product code")->type_name("CODE");
+  history->add_option("--site", given->options.site, "Only this site (lab or plant); default: across all sites")
+      ->type_name("CODE");
+  given->chart.add_to(*history, "--chart", "FILE.svg",
+                      "Draw an individuals control chart of the product's yield stress (else its first parameter)");
+  history->add_flag("--csv", given->options.csv, "Write CSV to stdout instead of the table");
+  given->copy_to_option =
+      history
+          ->add_option("--copy-to", given->copy_to,
+                       "Copy the results into another history (e.g. a postgresql:// URI); running it twice adds "
+                       "nothing")
+          ->type_name("URI");
+  return {history, [given](std::ostream& out, std::ostream& err) {
+            HistoryCommandOptions options = given->options;
+            options.chart = given->chart.get();
+            options.copy_to = given_text(given->copy_to_option, given->copy_to);
+            return run_history_command(options, out, err);
+          }};
 }
 
 }  // namespace spreadfit::cli

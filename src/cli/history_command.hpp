@@ -38,6 +38,7 @@
 #include <vector>
 
 #include "src/history/history_db.hpp"
+#include "src/cli/command_registration.hpp"
 
 namespace spreadfit::cli {
 
@@ -51,6 +52,9 @@ struct HistoryCommandOptions {
 };
 
 int run_history_command(const HistoryCommandOptions& options, std::ostream& out, std::ostream& err);
+
+/// Declares `spreadfit history` and its options on `app`.
+CommandRegistration add_history_command(CLI::App& app);
 
 /// A product's results in batch order: by `tested` when a result of them gives it (results without it by the time
 /// they were recorded, the UTC time compared as text), ties and the rest in recorded order; when none gives it,

@@ -8,16 +8,18 @@
 #include <numbers>
 #include <utility>
 #include <variant>
+#include <memory>
 
 #include "src/cli/exit_codes.hpp"
 #include "src/cli/parameter_ranges.hpp"
 #include "src/fit/parameter_names.hpp"
-#include "src/cli/simulate_command.hpp"
+#include "src/cli/command_line_values.hpp"
 #include "src/fit/design_check.hpp"
 #include "src/cli/progress.hpp"
 #include "src/fit/expected_intervals.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/description_file.hpp"
+#include "src/cli/path_option.hpp"
 
 namespace spreadfit::cli {
 
@@ -34,18 +36,6 @@ struct Candidate {
   double sigma = default_sigma;
   fit::WorstCaseEstimate estimate;
 };
-
-/// --every or --until as one time; parse_times names "--times", so its complaint is relocated to `option`.
-double one_time(const std::string& text, const std::string& option) {
-  std::vector<double> t;
-  try {
-    t = parse_times(text);
-  } catch (const io::InputError& e) {
-    throw io::InputError(std::string(command_line_source), 0, option, e.message());
-  }
-  if (t.size() != 1) throw io::InputError(std::string(command_line_source), 0, option, "expected one time");
-  return t.front();
-}
 
 std::string ratio_text(double r) {
   return r < fit::undetermined_ratio ? fmt::format("{:.3g}x", r) : std::string("undetermined");
@@ -215,7 +205,7 @@ void print_reasons(std::ostream& out, const std::vector<ParameterRange>& ranges,
   else
     out << fmt::format("recommended: {} (narrowest intervals overall; its widest is the {}, a factor {:.3g})\n", b.name,
                        names[limiting], e.worst_ratio[limiting]);
-  if (names[limiting] == "yield_stress")
+  if (io::is_parameter(names[limiting], io::Parameter::YieldStress))
     out << "  the yield stress shows in the approach to arrest: readings should continue until the sample stops\n";
 
   // Whether the guessed material stops within each test.
@@ -244,7 +234,7 @@ void print_reasons(std::ostream& out, const std::vector<ParameterRange>& ranges,
   // guess the sentence above says it).
   if (range)
     for (std::size_t p = 0; p < names.size(); ++p)
-      if (names[p] == "yield_stress" && !e.guesses[e.worst_guess[p]].stopped)
+      if (io::is_parameter(names[p], io::Parameter::YieldStress) && !e.guesses[e.worst_guess[p]].stopped)
         out << fmt::format(
             "  at {}, its widest yield-stress case, the sample is still moving at the end of {}, which leaves the "
             "yield stress at {}\n",
@@ -310,7 +300,7 @@ int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::
     throw io::InputError(where, 0, "--check", fmt::format("{} refits (expected 0 to {})", options.check, max_check));
   const std::vector<ParameterRange> ranges = parse_parameter_ranges(law, options.set, options.vary);
   const SimulationParameters base = range_base(law, options.set, ranges);
-  const double every = one_time(options.every, "--every"), until = one_time(options.until, "--until");
+  const double every = parse_one_time(options.every, "--every"), until = parse_one_time(options.until, "--until");
   if (!(every > 0) || until < every)
     throw io::InputError(where, 0, "--every/--until", "expected one interval > 0 and a duration at least as long");
   if (until / every > static_cast<double>(max_times))
@@ -353,6 +343,45 @@ int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::
   print_reasons(out, ranges, guesses, rows, best, second);
   if (options.check > 0) print_check(out, err, options, law, base, ranges, rows, best, second);
   return to_int(ExitCode::Done);
+}
+
+CommandRegistration add_plan_command(CLI::App& app) {
+  struct Given {
+    PlanCommandOptions options;
+    std::vector<std::string> candidates;
+  };
+  const auto given = std::make_shared<Given>();
+  PlanCommandOptions& o = given->options;
+  CLI::App* plan = app.add_subcommand(
+      "plan", "Compare candidate tests by the expected 95% intervals of the parameters for a guessed material.");
+  plan->add_option("CANDIDATE.toml", given->candidates, "Test descriptions of the candidate tests")
+      ->required()
+      ->type_name("");
+  plan->add_option("--model", o.model, "Model: " + std::string(model_names_help))->required()->type_name("NAME");
+  plan->add_option("--set", o.set, "PARAM=VALUE of the guessed material (the parameters not varied)")
+      ->type_name("PARAM=VALUE");
+  plan->add_option("--vary", o.vary,
+                   "PARAM=LOW:HIGH, a range of the guess, e.g. yield_stress=\"10 Pa:40 Pa\"; candidates are judged by "
+                   "their worst case over the guesses")
+      ->type_name("PARAM=LOW:HIGH");
+  // A function, not a value: the option's storage is optional (given or not).
+  plan->add_option_function<int>(
+          "--points", [&o](const int& n) { o.points = n; },
+          "Guesses per varied parameter (default 3; log-spaced except the flow index)")
+      ->type_name("N");
+  plan->add_option("--check", o.check,
+                   "Refit N simulated reading sets of the recommended test and the runner-up at the middle guess "
+                   "(default 0: no check)")
+      ->type_name("N");
+  plan->add_option("--every", o.every, "Reading interval for candidates without readings (default 5 s)")
+      ->type_name("DT");
+  plan->add_option("--until", o.until, "Duration for candidates without readings (default 120 s)")->type_name("T");
+  plan->footer(std::string(exit_codes_without_spec));
+  return {plan, [given](std::ostream& out, std::ostream& err) {
+            PlanCommandOptions options = given->options;
+            options.candidates.assign(given->candidates.begin(), given->candidates.end());
+            return run_plan_command(options, out, err);
+          }};
 }
 
 }  // namespace spreadfit::cli

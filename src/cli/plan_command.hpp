@@ -19,6 +19,8 @@
 #include <string>
 #include <vector>
 
+#include "src/cli/command_registration.hpp"
+
 namespace spreadfit::cli {
 
 struct PlanCommandOptions {
@@ -35,5 +37,8 @@ struct PlanCommandOptions {
 /// Prints the table, the recommendation and its reasons (and the check) on `out`; returns ExitCode::Done, or
 /// ExitCode::NumericalFailure when no candidate determines every parameter. Throws io::InputError for bad input.
 int run_plan_command(const PlanCommandOptions& options, std::ostream& out, std::ostream& err);
+
+/// Declares `spreadfit plan` and its options on `app`.
+CommandRegistration add_plan_command(CLI::App& app);
 
 }  // namespace spreadfit::cli

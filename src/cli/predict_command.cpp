@@ -3,16 +3,18 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <memory>
 
 #include "src/cli/exit_codes.hpp"
 #include "src/cli/progress.hpp"
-#include "src/cli/simulate_command.hpp"
+#include "src/cli/command_line_values.hpp"
 #include "src/fit/prediction_band.hpp"
 #include "src/fit/stored_fit.hpp"
 #include "src/io/atomic_file.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/description_file.hpp"
 #include "src/report/prediction_plot.hpp"
+#include "src/cli/path_option.hpp"
 
 namespace spreadfit::cli {
 
@@ -97,6 +99,41 @@ int run_predict_command(const PredictCommandOptions& options, std::ostream& out,
     out << fmt::format("{},{},{},{}\n", times[i], at.reading[i], at.lower[i], at.upper[i]);
   if (!note.empty()) err << "note: " << note << "\n";
   return to_int(ExitCode::Done);
+}
+
+CommandRegistration add_predict_command(CLI::App& app) {
+  struct Given {
+    PredictCommandOptions options;
+    std::string result, rig, times, plot;
+    CLI::Option* times_option = nullptr;
+    CLI::Option* plot_option = nullptr;
+  };
+  const auto given = std::make_shared<Given>();
+  CLI::App* predict = app.add_subcommand(
+      "predict", "Predict a fitted material's readings on another rig, with a 95% band; CSV on stdout.");
+  predict->add_option("RESULT.json", given->result, "A result written by 'spreadfit fit --json' or '--out-dir'")
+      ->required()
+      ->type_name("");
+  predict->add_option("--rig", given->rig, "Test description of the other rig (readings optional)")
+      ->required()
+      ->type_name("OTHER.toml");
+  given->times_option =
+      predict->add_option("--times", given->times, "Times, in s or with a unit (default as for simulate)")
+          ->type_name("T1,T2,...");
+  predict
+      ->add_option("--samples", given->options.samples, "Parameter draws for the band (default 200; 0: no band)")
+      ->type_name("N");
+  given->plot_option =
+      predict->add_option("--plot", given->plot, "Also write the prediction as an SVG report")->type_name("FILE.svg");
+  predict->footer(std::string(exit_codes_without_spec));
+  return {predict, [given](std::ostream& out, std::ostream& err) {
+            PredictCommandOptions options = given->options;
+            options.result = given->result;
+            options.rig = given->rig;
+            options.times = given_text(given->times_option, given->times);
+            if (auto plot = given_text(given->plot_option, given->plot)) options.plot = *plot;
+            return run_predict_command(options, out, err);
+          }};
 }
 
 }  // namespace spreadfit::cli

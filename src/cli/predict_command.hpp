@@ -10,6 +10,8 @@
 #include <ostream>
 #include <string>
 
+#include "src/cli/command_registration.hpp"
+
 namespace spreadfit::cli {
 
 struct PredictCommandOptions {
@@ -21,5 +23,8 @@ struct PredictCommandOptions {
 };
 
 int run_predict_command(const PredictCommandOptions& options, std::ostream& out, std::ostream& err);
+
+/// Declares `spreadfit predict` and its options on `app`.
+CommandRegistration add_predict_command(CLI::App& app);
 
 }  // namespace spreadfit::cli

@@ -28,6 +28,8 @@
 #include <string>
 #include <vector>
 
+#include "src/cli/command_registration.hpp"
+
 namespace spreadfit::cli {
 
 struct TranslateCommandOptions {
@@ -49,5 +51,8 @@ struct TranslateCommandOptions {
 /// high` (assured fields empty when no value is assured). Returns the exit code: 3 when a forward solve fails or no
 /// value of the solved parameter in its range gives a reading within the limits.
 int run_translate_command(const TranslateCommandOptions& options, std::ostream& out, std::ostream& err);
+
+/// Declares `spreadfit translate` and its options on `app`.
+CommandRegistration add_translate_command(CLI::App& app);
 
 }  // namespace spreadfit::cli

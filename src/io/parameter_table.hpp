@@ -37,12 +37,18 @@ struct ParameterInfo {
   double fit_lower;
   double fit_upper;
   bool log_space;
-  /// Where a value given as input (simulate, plan, translate) is checked; nullptr when none is.
+  /// Its possible and usual range (the fit's box lies inside it); nullptr when it has none. The command line
+  /// (simulate, plan, translate) checks the values it is given against it, except the flow index's, which the
+  /// law's own bound (models/rheology.hpp validate) checks.
   const PlausibleRange* plausible;
   /// True when a [spec] / [catalogue] key of the test description names it.
   bool spec_key;
   /// An example spec value, as the description reader's messages show it.
   std::string_view spec_example;
+  /// The signs a value given on the command line (--set, --vary) may take, judged on its SI value.
+  Range input_sign;
+  /// An example value as --set takes it, as the command line's messages show it.
+  std::string_view input_example;
 };
 
 /// Every row, in the order of Parameter.

@@ -216,3 +216,33 @@ TEST_CASE("parameter table: the spec keys a catalogue accepts are the table's, e
   CHECK_THROWS_AS(io::load_spec_catalogue(file), io::InputError);
   std::filesystem::remove(file);
 }
+
+TEST_CASE("parameter table: each command-line example is a value of its row that --set accepts") {
+  // The example --set's messages show must itself be accepted: a quantity of the row's dimension with the row's
+  // sign, inside its possible range (src/io/plausible_ranges.hpp), and a material of every law built from the
+  // examples must pass the law's own check (models/rheology.hpp validate).
+  for (const fit::ParameterInfo& p : fit::parameter_table()) {
+    CAPTURE(p.name);
+    REQUIRE_FALSE(p.input_example.empty());
+    double value = 0;
+    REQUIRE_NOTHROW(value = io::parse_quantity(p.input_example, p.dimension, p.input_sign));
+    if (p.plausible) CHECK_NOTHROW((void)io::check_plausible(value, *p.plausible, p.input_example));
+  }
+  for (Law law : all_laws()) {
+    CAPTURE(law_name(law));
+    Material m{0.0, 1.0, 1.0};
+    for (fit::Parameter id : fit::law_parameters(law)) {
+      const fit::ParameterInfo& p = fit::parameter_info(id);
+      m.*p.member = io::parse_quantity(p.input_example, p.dimension, p.input_sign);
+    }
+    CHECK_NOTHROW(validate(m));
+  }
+  // Sign rules (common practice, no source): a yield stress may be zero (Herschel-Bulkley with no yield stress is
+  // the power law, DEVELOPERS.md "Materials"); K and the flow index are positive; the release time takes any sign,
+  // since a fit may place it before the clock's zero and its result is given back to simulate.
+  CHECK(fit::parameter_info(fit::Parameter::YieldStress).input_sign == io::Range::NonNegative);
+  CHECK(fit::parameter_info(fit::Parameter::Viscosity).input_sign == io::Range::Positive);
+  CHECK(fit::parameter_info(fit::Parameter::Consistency).input_sign == io::Range::Positive);
+  CHECK(fit::parameter_info(fit::Parameter::FlowIndex).input_sign == io::Range::Positive);
+  CHECK(fit::parameter_info(fit::Parameter::TimeOrigin).input_sign == io::Range::Any);
+}
