@@ -33,7 +33,11 @@ std::string summary_csv(const std::vector<FitOutcome>& outcomes) {
   for (const FitOutcome& o : outcomes) {
     const auto& t = o.tests.front();
     std::string rigs;
-    for (const auto& d : o.tests) rigs += (rigs.empty() ? "" : "+") + std::string(io::rig_kind_name(d.setup.rig));
+    // Appended piece by piece, not "+" + std::string(...): GCC 12 warns falsely (-Wrestrict) on that form.
+    for (const auto& d : o.tests) {
+      if (!rigs.empty()) rigs += '+';
+      rigs += io::rig_kind_name(d.setup.rig);
+    }
     const fit::FitResult* r = o.result();
     s += cell(t.sample_id) + "," + cell(t.product) + "," + rigs + "," +
          (r ? std::string(law_name(r->law)) : std::string()) + "," +
@@ -50,7 +54,7 @@ std::string summary_csv(const std::vector<FitOutcome>& outcomes) {
     if (r)
       for (const auto& w : r->warnings) warnings += (warnings.empty() ? "" : "; ") + w;
     s += r ? fmt::format(",{},{}", number(r->rmse * 1e3), r->points) : std::string(",,");
-    s += "," + std::string(qc::verdict_status_name(o.verdict.status)) + "," + cell(warnings) + "\n";
+    s += fmt::format(",{},{}\n", qc::verdict_status_name(o.verdict.status), cell(warnings));
   }
   return s;
 }
