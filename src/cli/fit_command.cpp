@@ -218,152 +218,252 @@ std::string file_stem_safe(const std::string& id) {
   return s;
 }
 
-}  // namespace
+// --- the stages of run_fit_command ------------------------------------------------------------------------------
 
-int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::ostream& err) {
-  std::optional<Law> forced;
-  if (!options.model.empty() && options.model != "auto") {
-    forced = law_from_name(options.model);
-    if (!forced) {
-      std::vector<std::string_view> names{"auto"};
-      for (Law l : all_laws()) names.push_back(law_name(l));
-      throw io::InputError("", 0, "--model", fmt::format("unknown model '{}'{}", options.model,
-                                                          io::did_you_mean(options.model, names)));
-    }
-  }
-  // Read and check every input before fitting anything: each bad file is reported, and then the run stops with
-  // exit 2 and writes no output file (README), so a batch list is never left half-written.
-  bool bad_input = false;
+/// --model: nullopt for auto (or none given: each test's [fit] model decides).
+std::optional<Law> forced_law(const std::string& model) {
+  if (model.empty() || model == "auto") return std::nullopt;
+  if (const std::optional<Law> law = law_from_name(model)) return law;
+  std::vector<std::string_view> names{"auto"};
+  for (Law l : all_laws()) names.push_back(law_name(l));
+  throw io::InputError("", 0, "--model",
+                       fmt::format("unknown model '{}'{}", model, io::did_you_mean(model, names)));
+}
+
+/// The run's test descriptions grouped by sample id (tests sharing one are one material), in input order.
+struct Batch {
   std::map<std::string, std::vector<io::TestDescription>> by_sample;
-  std::vector<std::string> order;
+  std::vector<std::string> order;  ///< sample ids in the order their first test was given
+};
+
+/// Reads every test description, reporting each bad one on `err`; their unusual-value warnings follow, material by
+/// material. Returns false when any was bad input.
+bool read_batch(const FitCommandOptions& options, Batch& batch, std::ostream& err) {
+  bool ok = true;
   for (const auto& path : options.tests) {
     try {
       io::TestDescription t = io::load_test_description(path);
-      if (!by_sample.count(t.sample_id)) order.push_back(t.sample_id);
-      by_sample[t.sample_id].push_back(std::move(t));
+      if (!batch.by_sample.count(t.sample_id)) batch.order.push_back(t.sample_id);
+      batch.by_sample[t.sample_id].push_back(std::move(t));
     } catch (const io::InputError& e) {
       io::print_input_error(err, e);
-      bad_input = true;
+      ok = false;
     }
   }
-  for (const std::string& id : order)
-    for (const io::TestDescription& t : by_sample[id])
+  for (const std::string& id : batch.order)
+    for (const io::TestDescription& t : batch.by_sample[id])
       for (const std::string& warning : t.warnings) err << "spreadfit: warning: " << warning << "\n";
-  // Spec catalogues: --specs, else a specs.toml beside each test file (read once per folder).
-  std::map<std::filesystem::path, std::map<std::string, io::ProductSpec>> catalogues;
-  auto catalogue_for = [&](const io::TestDescription& t) -> const std::map<std::string, io::ProductSpec>* {
-    std::filesystem::path file = options.specs ? *options.specs : t.path.parent_path() / "specs.toml";
-    if (!options.specs && !std::filesystem::exists(file)) return nullptr;
-    auto it = catalogues.find(file);
-    if (it == catalogues.end()) it = catalogues.emplace(file, io::load_spec_catalogue(file)).first;
+  return ok;
+}
+
+/// Spec catalogues: --specs, else a specs.toml beside each test file, each read once.
+class Catalogues {
+ public:
+  explicit Catalogues(const FitCommandOptions& options) : options_(options) {}
+  /// The catalogue that applies to `t`; nullptr when there is none (no --specs and no specs.toml beside it).
+  const std::map<std::string, io::ProductSpec>* for_test(const io::TestDescription& t) {
+    std::filesystem::path file = options_.specs ? *options_.specs : t.path.parent_path() / "specs.toml";
+    if (!options_.specs && !std::filesystem::exists(file)) return nullptr;
+    auto it = read_.find(file);
+    if (it == read_.end()) it = read_.emplace(file, io::load_spec_catalogue(file)).first;
     return &it->second;
-  };
-  for (const std::string& id : order) {
-    const std::vector<io::TestDescription>& tests = by_sample[id];
+  }
+
+ private:
+  const FitCommandOptions& options_;
+  std::map<std::filesystem::path, std::map<std::string, io::ProductSpec>> read_;
+};
+
+/// --require-spec: a material with no limits (no [spec] in its tests, no catalogue entry with limits) is bad input.
+void check_required_spec(const std::vector<io::TestDescription>& tests,
+                         const std::map<std::string, io::ProductSpec>* catalogue) {
+  const bool inline_limits =
+      std::any_of(tests.begin(), tests.end(), [](const io::TestDescription& t) { return !t.spec.empty(); });
+  const std::string& product = tests.front().product;
+  const bool listed = catalogue && catalogue->count(product) > 0 && !catalogue->at(product).limits.empty();
+  if (inline_limits || listed) return;
+  throw io::InputError(
+      tests.front().path.string(), 0, product.empty() ? "sample.product" : "sample.product " + product,
+      product.empty() ? "no limits to judge against (--require-spec: expected a [spec] table or a product "
+                        "code found in the spec catalogue)"
+      : catalogue     ? "the spec catalogue has no limits for this product (--require-spec: expected a [" +
+                        product + "] table with limits in the catalogue, or a [spec] table in the test)"
+                      : "no spec catalogue found (--require-spec: expected specs.toml beside the test, "
+                        "--specs FILE, or a [spec] table in the test)");
+}
+
+/// Each material can be fitted (and, with --require-spec, judged); every problem is reported on `err`. Returns
+/// false when any material is bad input.
+bool check_materials(const FitCommandOptions& options, const Batch& batch, Catalogues& catalogues,
+                     std::ostream& err) {
+  bool ok = true;
+  for (const std::string& id : batch.order) {
+    const std::vector<io::TestDescription>& tests = batch.by_sample.at(id);
     try {
       check_fittable(tests);
-      const auto* catalogue = catalogue_for(tests.front());
-      if (options.require_spec) {
-        const bool inline_limits =
-            std::any_of(tests.begin(), tests.end(), [](const io::TestDescription& t) { return !t.spec.empty(); });
-        const std::string& product = tests.front().product;
-        const bool listed = catalogue && catalogue->count(product) > 0 && !catalogue->at(product).limits.empty();
-        if (!inline_limits && !listed)
-          throw io::InputError(
-              tests.front().path.string(), 0, product.empty() ? "sample.product" : "sample.product " + product,
-              product.empty() ? "no limits to judge against (--require-spec: expected a [spec] table or a product "
-                                "code found in the spec catalogue)"
-              : catalogue    ? "the spec catalogue has no limits for this product (--require-spec: expected a [" +
-                                product + "] table with limits in the catalogue, or a [spec] table in the test)"
-                             : "no spec catalogue found (--require-spec: expected specs.toml beside the test, "
-                               "--specs FILE, or a [spec] table in the test)");
-      }
+      const auto* catalogue = catalogues.for_test(tests.front());
+      if (options.require_spec) check_required_spec(tests, catalogue);
     } catch (const io::InputError& e) {
       err << "spreadfit: " << e.what() << "\n";
-      bad_input = true;
+      ok = false;
     }
   }
-  // Every output path, before any work: none may be an input or another output, and each folder must exist.
-  if (!bad_input) {
-    std::vector<RunFile> inputs, outputs;
-    for (const std::string& id : order)
-      for (const io::TestDescription& t : by_sample[id]) {
-        inputs.push_back({t.path, "test description"});
-        for (const io::ReadingSeries& s : t.series) inputs.push_back({s.source, "readings file"});
-        if (!options.specs && std::filesystem::exists(t.path.parent_path() / "specs.toml"))
-          inputs.push_back({t.path.parent_path() / "specs.toml", "spec catalogue"});
-      }
-    if (options.specs) inputs.push_back({*options.specs, "spec catalogue (--specs)"});
-    if (options.json) outputs.push_back({*options.json, "--json"});
-    if (options.csv) outputs.push_back({*options.csv, "--csv"});
+  return ok;
+}
+
+/// Every output path, before any work: none may be an input or another output, and each folder must exist.
+/// Reported on `err`; returns false when one is refused.
+bool check_outputs(const FitCommandOptions& options, const Batch& batch, std::ostream& err) {
+  std::vector<RunFile> inputs, outputs;
+  for (const std::string& id : batch.order)
+    for (const io::TestDescription& t : batch.by_sample.at(id)) {
+      inputs.push_back({t.path, "test description"});
+      for (const io::ReadingSeries& s : t.series) inputs.push_back({s.source, "readings file"});
+      if (!options.specs && std::filesystem::exists(t.path.parent_path() / "specs.toml"))
+        inputs.push_back({t.path.parent_path() / "specs.toml", "spec catalogue"});
+    }
+  if (options.specs) inputs.push_back({*options.specs, "spec catalogue (--specs)"});
+  if (options.json) outputs.push_back({*options.json, "--json"});
+  if (options.csv) outputs.push_back({*options.csv, "--csv"});
+  if (options.plot) {
+    outputs.push_back({*options.plot, "--plot"});
+    for (std::size_t i = 1; i < batch.order.size(); ++i)
+      outputs.push_back({options.plot->parent_path() / (file_stem_safe(batch.order[i]) + ".svg"),
+                         "--plot (sample " + batch.order[i] + ")"});
+  }
+  // A server history is no file: only an SQLite path can collide with another input or output.
+  if (options.db && !history::is_server_uri(options.db->string())) outputs.push_back({*options.db, "--db"});
+  try {
+    if (options.out_dir) {
+      check_output_folder(*options.out_dir, "--out-dir");
+      for (const std::string& id : batch.order)
+        for (const char* ext : {".json", ".svg"})
+          outputs.push_back({*options.out_dir / (file_stem_safe(id) + ext), "--out-dir (sample " + id + ")"});
+    }
+    check_output_paths(inputs, outputs);
+  } catch (const io::InputError& e) {
+    err << "spreadfit: " << e.what() << "\n";
+    return false;
+  }
+  return true;
+}
+
+/// Fits one material (its tests are moved out of the batch): its catalogue entry and prior looked up, its unusual
+/// input values carried into the result's warnings. Bad input found here is kept in the run, not thrown.
+MaterialRun fit_one_material(const FitCommandOptions& options, std::vector<io::TestDescription> tests,
+                             const std::map<std::string, io::ProductSpec>* catalogue,
+                             const std::optional<Law>& forced) {
+  MaterialRun run;
+  run.where = tests.front().path.string();
+  try {
+    const io::ProductSpec* from_catalogue = nullptr;
+    const std::string& product = tests.front().product;
+    if (catalogue) {
+      const auto found = catalogue->find(product);
+      if (found != catalogue->end()) from_catalogue = &found->second;
+      else if (options.specs)
+        run.notes += fmt::format("spreadfit: note: {}: no limits for product '{}' in {}\n", run.where,
+                                 product.empty() ? std::string("(none given)") : product, options.specs->string());
+    }
+    std::string prior_absent;
+    const std::optional<fit::FlowIndexPrior> prior = prior_for(from_catalogue, product, options, prior_absent);
+    run.outcome = fit_material(std::move(tests), forced, from_catalogue, prior, prior_absent);
+    // Unusual input values travel with the result, so the JSON and the table carry them too.
+    report::FitOutcome& o = run.outcome;
+    if (o.result())
+      for (const io::TestDescription& t : o.tests)
+        for (const std::string& w : t.warnings) o.candidates[std::size_t(o.chosen)].warnings.push_back(w);
+  } catch (const io::InputError& e) {
+    run.input_error = e.what();
+  }
+  return run;
+}
+
+/// What the run has found so far, for its exit code.
+struct RunState {
+  bool bad_input = false, failed = false, out_of_spec = false;
+  int plotted = 0;  ///< materials drawn so far (--plot gives the first its file)
+  nlohmann::json all = nlohmann::json::array();
+  std::vector<report::FitOutcome> outcomes;
+};
+
+/// One fitted material's outputs, in input order: its table on `out`, its JSON and SVG (--out-dir, --plot), its
+/// history record (--db); the JSON and the outcome are kept for the run's --json and --csv.
+void report_material(const FitCommandOptions& options, const std::string& id, MaterialRun& run, RunState& state,
+                     std::ostream& out, std::ostream& err) {
+  err << run.notes;
+  if (run.input_error) {
+    err << "spreadfit: " << *run.input_error << "\n";
+    state.bad_input = true;
+    return;
+  }
+  const std::string& where = run.where;
+  report::FitOutcome o = std::move(run.outcome);
+  out << report::summary_table(o) << "\n";
+  if (!o.result()) {
+    state.failed = true;
+    err << fmt::format("spreadfit: {}: sample {}: the fit failed; no parameters reported\n", where, id);
+  }
+  if (o.verdict.status == qc::Verdict::Status::Fail) state.out_of_spec = true;
+  const nlohmann::json j = report::result_json(o);
+  state.all.push_back(j);
+  if (options.plot || options.out_dir) {
+    // Both files of a material are rendered before either is written: a drawing that fails leaves no JSON.
+    const std::string svg = report::fit_plot_svg(o, series_of(o.tests));
+    if (options.out_dir) {
+      io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".json"), j.dump(2) + "\n");
+      io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".svg"), svg);
+    }
+    // --plot names one file: with several materials, the first gets it and the rest go beside it by sample id.
     if (options.plot) {
-      outputs.push_back({*options.plot, "--plot"});
-      for (std::size_t i = 1; i < order.size(); ++i)
-        outputs.push_back({options.plot->parent_path() / (file_stem_safe(order[i]) + ".svg"),
-                           "--plot (sample " + order[i] + ")"});
+      const std::filesystem::path file =
+          state.plotted == 0 ? *options.plot : options.plot->parent_path() / (file_stem_safe(id) + ".svg");
+      io::write_file_atomically(file, svg);
     }
-    // A server history is no file: only an SQLite path can collide with another input or output.
-    if (options.db && !history::is_server_uri(options.db->string())) outputs.push_back({*options.db, "--db"});
+    ++state.plotted;
+  }
+  if (options.db) {
     try {
-      if (options.out_dir) {
-        check_output_folder(*options.out_dir, "--out-dir");
-        for (const std::string& id : order)
-          for (const char* ext : {".json", ".svg"})
-            outputs.push_back({*options.out_dir / (file_stem_safe(id) + ext), "--out-dir (sample " + id + ")"});
-      }
-      check_output_paths(inputs, outputs);
+      const history::StoredResult stored = history::stored_result(o);
+      const history::WriteOutcome written = history::record(*options.db, stored);
+      out << history_record_note(*options.db, stored, written) << "\n";
     } catch (const io::InputError& e) {
       err << "spreadfit: " << e.what() << "\n";
-      bad_input = true;
+      state.bad_input = true;
     }
   }
-  if (bad_input) {
+  state.outcomes.push_back(std::move(o));
+}
+
+}  // namespace
+
+int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::ostream& err) {
+  const std::optional<Law> forced = forced_law(options.model);
+  // Read and check every input before fitting anything: each bad file is reported, and then the run stops with
+  // exit 2 and writes no output file (README), so a batch list is never left half-written.
+  Batch batch;
+  Catalogues catalogues(options);
+  bool ok = read_batch(options, batch, err);
+  ok = check_materials(options, batch, catalogues, err) && ok;
+  if (!ok || !check_outputs(options, batch, err)) {
     err << "spreadfit: bad input above; nothing fitted and no output file written\n";
     return to_int(ExitCode::BadInput);
   }
-  bool out_of_spec = false, failed = false;
-  nlohmann::json all = nlohmann::json::array();
-  std::vector<report::FitOutcome> outcomes;
-  int plotted = 0;
+  const std::vector<std::string>& order = batch.order;
   // Progress on stderr only for a person watching (a terminal), never in logs or pipes a plant system reads.
   const bool show_progress = ::isatty(STDERR_FILENO) == 1 && order.size() > 1;
   std::size_t started = 0;
   std::mutex progress_lock;
   // The catalogue of each material, looked up here once (the fits below only read the catalogues).
   std::vector<const std::map<std::string, io::ProductSpec>*> catalogue_of;
-  for (const std::string& id : order) catalogue_of.push_back(catalogue_for(by_sample.at(id).front()));
+  for (const std::string& id : order) catalogue_of.push_back(catalogues.for_test(batch.by_sample.at(id).front()));
   // Fitting one material: what it prints goes into its own MaterialRun, written out in input order below.
   auto fit_one = [&](std::size_t index) {
-    const std::string& id = order[index];
     if (show_progress) {
       const std::lock_guard<std::mutex> hold(progress_lock);
-      err << fmt::format("[{}/{}] fitting {}\n", ++started, order.size(), id) << std::flush;
+      err << fmt::format("[{}/{}] fitting {}\n", ++started, order.size(), order[index]) << std::flush;
     }
-    MaterialRun run;
-    std::vector<io::TestDescription> tests = std::move(by_sample.at(id));
-    run.where = tests.front().path.string();
-    try {
-      const io::ProductSpec* from_catalogue = nullptr;
-      const std::string& product = tests.front().product;
-      if (const auto* catalogue = catalogue_of[index]) {
-        const auto found = catalogue->find(product);
-        if (found != catalogue->end()) from_catalogue = &found->second;
-        else if (options.specs)
-          run.notes += fmt::format("spreadfit: note: {}: no limits for product '{}' in {}\n", run.where,
-                                   product.empty() ? std::string("(none given)") : product, options.specs->string());
-      }
-      std::string prior_absent;
-      const std::optional<fit::FlowIndexPrior> prior = prior_for(from_catalogue, product, options, prior_absent);
-      run.outcome = fit_material(std::move(tests), forced, from_catalogue, prior, prior_absent);
-      // Unusual input values travel with the result, so the JSON and the table carry them too.
-      report::FitOutcome& o = run.outcome;
-      if (o.result())
-        for (const io::TestDescription& t : o.tests)
-          for (const std::string& w : t.warnings) o.candidates[std::size_t(o.chosen)].warnings.push_back(w);
-    } catch (const io::InputError& e) {
-      run.input_error = e.what();
-    }
-    return run;
+    return fit_one_material(options, std::move(batch.by_sample.at(order[index])), catalogue_of[index], forced);
   };
   // Without --db the materials are independent: they are fitted on every core at once (each fit is deterministic
   // and the results are reported in input order below, so the output equals a run of one material after another).
@@ -371,59 +471,18 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
   // fitted and recorded in turn.
   std::vector<std::optional<MaterialRun>> runs(order.size());
   if (!options.db) parallel_for(order.size(), [&](std::size_t i) { runs[i] = fit_one(i); });
+  RunState state;
   for (std::size_t index = 0; index < order.size(); ++index) {
-    const std::string& id = order[index];
     if (!runs[index]) runs[index] = fit_one(index);
-    MaterialRun& run = *runs[index];
-    err << run.notes;
-    if (run.input_error) {
-      err << "spreadfit: " << *run.input_error << "\n";
-      bad_input = true;
-      continue;
-    }
-    const std::string& where = run.where;
-    report::FitOutcome o = std::move(run.outcome);
-    out << report::summary_table(o) << "\n";
-    if (!o.result()) {
-      failed = true;
-      err << fmt::format("spreadfit: {}: sample {}: the fit failed; no parameters reported\n", where, id);
-    }
-    if (o.verdict.status == qc::Verdict::Status::Fail) out_of_spec = true;
-    const nlohmann::json j = report::result_json(o);
-    all.push_back(j);
-    if (options.plot || options.out_dir) {
-      // Both files of a material are rendered before either is written: a drawing that fails leaves no JSON.
-      const std::string svg = report::fit_plot_svg(o, series_of(o.tests));
-      if (options.out_dir) {
-        io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".json"), j.dump(2) + "\n");
-        io::write_file_atomically(*options.out_dir / (file_stem_safe(id) + ".svg"), svg);
-      }
-      // --plot names one file: with several materials, the first gets it and the rest go beside it by sample id.
-      if (options.plot) {
-        const std::filesystem::path file =
-            plotted == 0 ? *options.plot : options.plot->parent_path() / (file_stem_safe(id) + ".svg");
-        io::write_file_atomically(file, svg);
-      }
-      ++plotted;
-    }
-    if (options.db) {
-      try {
-        const history::StoredResult stored = history::stored_result(o);
-        const history::WriteOutcome written = history::record(*options.db, stored);
-        out << history_record_note(*options.db, stored, written) << "\n";
-      } catch (const io::InputError& e) {
-        err << "spreadfit: " << e.what() << "\n";
-        bad_input = true;
-      }
-    }
-    outcomes.push_back(std::move(o));
+    report_material(options, order[index], *runs[index], state, out, err);
   }
-  if (options.csv && !outcomes.empty()) io::write_file_atomically(*options.csv, report::summary_csv(outcomes));
-  if (options.json && !all.empty())
-    io::write_file_atomically(*options.json, (all.size() == 1 ? all.front() : all).dump(2) + "\n");
-  if (bad_input) return to_int(ExitCode::BadInput);
-  if (failed) return to_int(ExitCode::NumericalFailure);
-  return to_int(out_of_spec ? ExitCode::OutOfSpec : ExitCode::Done);
+  if (options.csv && !state.outcomes.empty())
+    io::write_file_atomically(*options.csv, report::summary_csv(state.outcomes));
+  if (options.json && !state.all.empty())
+    io::write_file_atomically(*options.json, (state.all.size() == 1 ? state.all.front() : state.all).dump(2) + "\n");
+  if (state.bad_input) return to_int(ExitCode::BadInput);
+  if (state.failed) return to_int(ExitCode::NumericalFailure);
+  return to_int(state.out_of_spec ? ExitCode::OutOfSpec : ExitCode::Done);
 }
 
 CommandRegistration add_fit_command(CLI::App& app) {

@@ -421,6 +421,190 @@ Eigen::VectorXd polish_start(const FitProblem& problem, const ResidualFunction& 
   return start;
 }
 
+// --- the stages of fit_law ------------------------------------------------------------------------------------
+
+// What fit_law's stages share: the problem at the default resolution and its coarse twin (half the cells), the
+// optima on both, the covariance at the optimum, and the profiles.
+struct LawFit {
+  LawFit(const FitOptions& o, const FitProblem& fine, const ResidualFunction& residuals)
+      : options(o), problem(fine), f(residuals) {}
+
+  const FitOptions& options;
+  const FitProblem& problem;
+  const ResidualFunction& f;  // the fine residuals, recording why the model failed
+  std::optional<FitProblem> coarse;
+  LmOptions lm;
+  LmResult best, coarse_best;
+  bool coarse_ok = false;
+  Eigen::MatrixXd cov;
+  Profiles profiles;
+  std::vector<Profiles> other_basins;  // profiles around other local optima within the cut-off
+  double q = 0;                         // two-sided 95% Student-t quantile of the residual degrees of freedom
+  int n = 0, dof = 0;
+
+  // Residual variance from the readings alone (a prior's residual is not a reading).
+  double variance(const LmResult& r) const {
+    const double chi2 = r.r.head(n).squaredNorm();
+    return problem.sigma_stated() ? std::max(1.0, chi2 / dof) : chi2 / dof;
+  }
+  bool usable(const LmResult& r) const {
+    const int m = problem.residual_count();
+    return r.r.size() == m && r.jacobian.rows() == m;
+  }
+  ResidualFunction coarse_residuals() const {
+    return [this](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return coarse->residuals(x, r); };
+  }
+};
+
+// Coarse-to-fine Levenberg-Marquardt from `start`: most iterations run on half the cells (about half the cost,
+// ~0.3% model error), then the default resolution polishes the last digits and supplies the Jacobian for the
+// intervals. Sets s.best and s.coarse_best.
+void optimise(LawFit& s, const std::vector<FitSeries>& series, Law law, Eigen::VectorXd start) {
+  const FitProblem& problem = s.problem;
+  s.lm.max_iterations = s.options.max_iterations;
+  s.lm.fd_step = fd_steps(problem);
+  if (s.options.forward.cells >= 32) {
+    FitOptions coarse_options = s.options;
+    coarse_options.forward.cells = s.options.forward.cells / 2;
+    s.coarse.emplace(series, law, coarse_options);
+    s.coarse_best = levenberg_marquardt(s.coarse_residuals(), start, problem.lower(), problem.upper(), s.lm);
+    // The coarse optimum starts the fine polish, unless the fine model fails there (a stiff corner that the
+    // coarser grid still solves): then the fine polish starts where the coarse one did.
+    Eigen::VectorXd probe;
+    if (s.coarse_best.r.size() == problem.residual_count() && problem.residuals(s.coarse_best.x, probe))
+      start = s.coarse_best.x;
+    s.lm.max_iterations = std::max(8, s.options.max_iterations / 3);
+    s.lm.initial_damping = 1e-6;
+  }
+  const int m = problem.residual_count();
+  s.best = levenberg_marquardt(s.f, start, problem.lower(), problem.upper(), s.lm);
+  // Along the long curved ridges of a thin-film fit the polish may run out of iterations while still improving:
+  // one more budget from where it stopped (still bounded).
+  if (!s.best.converged && !s.best.model_failed && s.best.r.size() == m) {
+    LmOptions more = s.lm;
+    more.max_iterations = s.options.max_iterations;
+    LmResult again = levenberg_marquardt(s.f, s.best.x, problem.lower(), problem.upper(), more);
+    if (again.r.size() == m && again.cost <= s.best.cost) {
+      again.iterations += s.best.iterations;
+      s.best = std::move(again);
+    }
+  }
+}
+
+// Other valleys: with a flow index, a fit that starts far from n can settle in a second local optimum (a
+// strongly shear-thinning flow released late against a nearly Newtonian one released early). The likelihood
+// interval is the set of all parameter values within the cut-off, so every such optimum within it adds its
+// own profile to the interval (their hull). Found by polishing from the optimum with n moved to 0.35 and to
+// 1 (common shear-thinning and Newtonian values); a lower optimum found this way becomes the best. Returns the
+// coarse optima within the cut-off.
+std::vector<LmResult> other_valleys(LawFit& s) {
+  const FitProblem& problem = s.problem;
+  const int m = problem.residual_count();
+  std::vector<LmResult> basins;
+  const int n_index = [&] {
+    for (int i = 0; i < problem.material_parameters(); ++i)
+      if (is_parameter(problem.names()[i], Parameter::FlowIndex)) return i;
+    return -1;
+  }();
+  if (!s.coarse_ok || n_index < 0) return basins;
+  LmOptions polish = s.lm;
+  polish.initial_damping = 1e-6;
+  const double cutoff = 0.5 * s.q * s.q * s.variance(s.best);
+  for (double n_try : {0.35, 1.0}) {
+    Eigen::VectorXd x0 = s.coarse_best.x;
+    if (std::abs(x0[n_index] - std::log(n_try)) < 0.4) continue;
+    x0[n_index] = std::log(n_try);
+    LmOptions search = s.lm;
+    search.max_iterations = std::max(8, s.options.max_iterations / 2);
+    LmResult b = levenberg_marquardt(s.coarse_residuals(), x0, problem.lower(), problem.upper(), search);
+    if (b.r.size() != m || b.jacobian.rows() != m) continue;
+    const double distance = (b.x - s.coarse_best.x).head(problem.material_parameters()).cwiseAbs().maxCoeff();
+    if (distance < 0.1) continue;  // the same valley
+    if (b.cost < s.coarse_best.cost - 0.01 * s.variance(s.best)) {
+      // A lower valley: polish it on the fine problem and make it the optimum.
+      LmResult fine = levenberg_marquardt(s.f, b.x, problem.lower(), problem.upper(), polish);
+      if (fine.r.size() == m && fine.jacobian.rows() == m && fine.cost < s.best.cost) {
+        fine.iterations += s.best.iterations;
+        s.best = std::move(fine);
+        s.cov = wald_covariance(s.best.jacobian, s.variance(s.best));
+        std::swap(b, s.coarse_best);
+      }
+    }
+    if (b.cost < s.coarse_best.cost + cutoff) basins.push_back(std::move(b));
+  }
+  return basins;
+}
+
+// The profiles of every material parameter around the optimum (on the coarse problem when it solved there). A
+// refit that finds a clearly lower cost means the polish had stopped short of the optimum: polish from there on
+// both resolutions and profile again (once).
+void profile_optimum(LawFit& s) {
+  const FitProblem& problem = s.problem;
+  const int m = problem.residual_count();
+  LmOptions polish = s.lm;
+  polish.initial_damping = 1e-6;
+  for (int round = 0; round < 2; ++round) {
+    const FitProblem& profiled = s.coarse_ok ? *s.coarse : problem;
+    const LmResult& around = s.coarse_ok ? s.coarse_best : s.best;
+    s.profiles = profile_material(profiled, around, s.variance(s.best), s.q,
+                                  wald_covariance(around.jacobian, s.variance(s.best)), around.cost);
+    if (!s.profiles.better || round == 1) break;
+    LmResult again = levenberg_marquardt(s.f, *s.profiles.better, problem.lower(), problem.upper(), polish);
+    if (again.r.size() != m || again.jacobian.rows() != m || again.cost >= s.best.cost) break;
+    again.iterations += s.best.iterations;
+    s.best = std::move(again);
+    s.cov = wald_covariance(s.best.jacobian, s.variance(s.best));
+    if (s.coarse_ok) {
+      s.coarse_best = levenberg_marquardt(s.coarse_residuals(), s.best.x, problem.lower(), problem.upper(), polish);
+      s.coarse_ok = s.coarse_best.r.size() == m && s.coarse_best.jacobian.rows() == m;
+    }
+  }
+}
+
+// The profiles around the other valleys within the cut-off; their sides are limits of that valley, recorded as
+// absolute values (ProfileSide::limit is absolute).
+void profile_other_valleys(LawFit& s, const std::vector<LmResult>& basins) {
+  if (!s.coarse_ok) return;
+  for (const LmResult& b : basins) {
+    if (b.cost > s.coarse_best.cost + 0.5 * s.q * s.q * s.variance(s.best)) continue;
+    s.other_basins.push_back(profile_material(*s.coarse, b, s.variance(s.best), s.q,
+                                              wald_covariance(b.jacobian, s.variance(s.best)), s.coarse_best.cost));
+  }
+}
+
+// The optimum's figures: material, release times, residual statistics (unweighted rmse over all series; the
+// variance from the residuals unless stated), AICc, estimate, covariance and correlation.
+void describe_optimum(const LawFit& s, const std::vector<FitSeries>& series, FitResult& out) {
+  const FitProblem& problem = s.problem;
+  const LmResult& best = s.best;
+  const int p = problem.size();
+  out.iterations = best.iterations;
+  out.cost = best.cost;
+  out.material = problem.material(best.x);
+  out.time_origins = problem.time_origins(best.x);
+  out.prior = problem.has_prior() ? s.options.flow_index_prior : std::nullopt;
+  double sq = 0.0;
+  {
+    Eigen::Index k = 0;
+    for (std::size_t i = 0; i < series.size(); ++i)
+      for (std::size_t j = 0; j < problem.fitted_times()[i].size(); ++j, ++k)
+        sq += std::pow(best.r[k] * problem.weight_sigma(i), 2);
+  }
+  out.rmse = std::sqrt(sq / s.n);
+  const double chi2 = best.r.head(s.n).squaredNorm();
+  out.sigma = std::sqrt(s.variance(best)) * problem.weight_sigma(0);
+  out.aicc = aicc(chi2, s.n, p + 1);
+  out.estimate = best.x;
+  out.covariance = s.cov;
+  out.correlation = Eigen::MatrixXd::Identity(p, p);
+  for (int a = 0; a < p; ++a)
+    for (int b = 0; b < p; ++b)
+      if (a != b) {
+        const double c = s.cov(a, b) / std::sqrt(s.cov(a, a) * s.cov(b, b));
+        out.correlation(a, b) = std::isfinite(c) ? c : 1.0;
+      }
+}
+
 }  // namespace
 
 FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOptions& options,
@@ -443,7 +627,7 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
 
   std::string failure;
   std::mutex failure_lock;  // Jacobian columns run on several threads
-  auto f = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
+  const ResidualFunction f = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
     std::string why;
     if (problem.residuals(x, r, &why)) return true;
     const std::lock_guard<std::mutex> hold(failure_lock);
@@ -451,170 +635,45 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
     return false;
   };
   start = polish_start(problem, f, start, hints);
-  LmOptions lm;
-  lm.max_iterations = options.max_iterations;
-  lm.fd_step = fd_steps(problem);
-  // Coarse-to-fine: most iterations run on half the cells (about half the cost, ~0.3% model error), then the
-  // default resolution polishes the last digits and supplies the Jacobian for the intervals.
-  std::optional<FitProblem> coarse;
-  LmResult coarse_best;
-  if (options.forward.cells >= 32) {
-    FitOptions coarse_options = options;
-    coarse_options.forward.cells = options.forward.cells / 2;
-    coarse.emplace(series, law, coarse_options);
-    auto fc = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return coarse->residuals(x, r); };
-    coarse_best = levenberg_marquardt(fc, start, problem.lower(), problem.upper(), lm);
-    // The coarse optimum starts the fine polish, unless the fine model fails there (a stiff corner that the
-    // coarser grid still solves): then the fine polish starts where the coarse one did.
-    Eigen::VectorXd probe;
-    if (coarse_best.r.size() == problem.residual_count() && problem.residuals(coarse_best.x, probe)) start = coarse_best.x;
-    lm.max_iterations = std::max(8, options.max_iterations / 3);
-    lm.initial_damping = 1e-6;
-  }
-  const int m = problem.residual_count();
-  LmResult best = levenberg_marquardt(f, start, problem.lower(), problem.upper(), lm);
-  // Along the long curved ridges of a thin-film fit the polish may run out of iterations while still improving:
-  // one more budget from where it stopped (still bounded).
-  if (!best.converged && !best.model_failed && best.r.size() == m) {
-    LmOptions more = lm;
-    more.max_iterations = options.max_iterations;
-    LmResult again = levenberg_marquardt(f, best.x, problem.lower(), problem.upper(), more);
-    if (again.r.size() == m && again.cost <= best.cost) {
-      again.iterations += best.iterations;
-      best = std::move(again);
-    }
-  }
-  out.iterations = best.iterations;
-  if (best.r.size() != m || best.jacobian.rows() != m) {
+  LawFit s(options, problem, f);
+  optimise(s, series, law, start);
+  auto solves = [&] { return problem.evaluations() + (s.coarse ? s.coarse->evaluations() : 0); };
+  out.iterations = s.best.iterations;
+  if (!s.usable(s.best)) {
     out.status = FitStatus::ForwardFailure;
-    out.reason = best.message + (failure.empty() ? "" : ": " + failure);
-    out.evaluations = problem.evaluations() + (coarse ? coarse->evaluations() : 0);
+    out.reason = s.best.message + (failure.empty() ? "" : ": " + failure);
+    out.evaluations = solves();
     return out;
   }
-  const int dof = n - p;
-  const double q = boost::math::quantile(boost::math::complement(boost::math::students_t(double(dof)), 0.025));
+  s.n = n;
+  s.dof = n - p;
+  s.q = boost::math::quantile(boost::math::complement(boost::math::students_t(double(s.dof)), 0.025));
   // The profiles run on the coarse problem around its own optimum (half the cost of a fine solve; the interval's
   // width, not its centre, is taken from it).
-  bool coarse_ok = coarse && coarse_best.r.size() == m && coarse_best.jacobian.rows() == m;
-  // Residual variance from the readings alone (a prior's residual is not a reading).
-  auto variance = [&](const LmResult& r) {
-    const double chi2 = r.r.head(n).squaredNorm();
-    return problem.sigma_stated() ? std::max(1.0, chi2 / dof) : chi2 / dof;
-  };
-  Profiles profiles;
-  std::vector<Profiles> other_basins;  // profiles around other local optima within the cut-off
-  Eigen::MatrixXd cov = wald_covariance(best.jacobian, variance(best));
+  s.coarse_ok = s.coarse && s.usable(s.coarse_best);
+  s.cov = wald_covariance(s.best.jacobian, s.variance(s.best));
   if (options.profile_intervals) {
-    auto fc = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return coarse->residuals(x, r); };
-    LmOptions polish = lm;
-    polish.initial_damping = 1e-6;
-    // Other valleys: with a flow index, a fit that starts far from n can settle in a second local optimum (a
-    // strongly shear-thinning flow released late against a nearly Newtonian one released early). The likelihood
-    // interval is the set of all parameter values within the cut-off, so every such optimum within it adds its
-    // own profile to the interval (their hull). Found by polishing from the optimum with n moved to 0.35 and to
-    // 1 (common shear-thinning and Newtonian values); a lower optimum found this way becomes the best.
-    std::vector<LmResult> basins;
-    const int n_index = [&] {
-      for (int i = 0; i < problem.material_parameters(); ++i)
-        if (is_parameter(problem.names()[i], Parameter::FlowIndex)) return i;
-      return -1;
-    }();
-    if (coarse_ok && n_index >= 0) {
-      const double cutoff = 0.5 * q * q * variance(best);
-      for (double n_try : {0.35, 1.0}) {
-        Eigen::VectorXd x0 = coarse_best.x;
-        if (std::abs(x0[n_index] - std::log(n_try)) < 0.4) continue;
-        x0[n_index] = std::log(n_try);
-        LmOptions search = lm;
-        search.max_iterations = std::max(8, options.max_iterations / 2);
-        LmResult b = levenberg_marquardt(fc, x0, problem.lower(), problem.upper(), search);
-        if (b.r.size() != m || b.jacobian.rows() != m) continue;
-        const double distance = (b.x - coarse_best.x).head(problem.material_parameters()).cwiseAbs().maxCoeff();
-        if (distance < 0.1) continue;  // the same valley
-        if (b.cost < coarse_best.cost - 0.01 * variance(best)) {
-          // A lower valley: polish it on the fine problem and make it the optimum.
-          LmResult fine = levenberg_marquardt(f, b.x, problem.lower(), problem.upper(), polish);
-          if (fine.r.size() == m && fine.jacobian.rows() == m && fine.cost < best.cost) {
-            fine.iterations += best.iterations;
-            best = std::move(fine);
-            cov = wald_covariance(best.jacobian, variance(best));
-            std::swap(b, coarse_best);
-          }
-        }
-        if (b.cost < coarse_best.cost + cutoff) basins.push_back(std::move(b));
-      }
-    }
-    for (int round = 0; round < 2; ++round) {
-      const FitProblem& profiled = coarse_ok ? *coarse : problem;
-      const LmResult& around = coarse_ok ? coarse_best : best;
-      profiles = profile_material(profiled, around, variance(best), q, wald_covariance(around.jacobian, variance(best)),
-                                  around.cost);
-      if (!profiles.better || round == 1) break;
-      // A refit found a clearly lower cost: the polish had stopped short of the optimum. Polish from there on both
-      // resolutions and profile again (once).
-      LmResult again = levenberg_marquardt(f, *profiles.better, problem.lower(), problem.upper(), polish);
-      if (again.r.size() != m || again.jacobian.rows() != m || again.cost >= best.cost) break;
-      again.iterations += best.iterations;
-      best = std::move(again);
-      cov = wald_covariance(best.jacobian, variance(best));
-      if (coarse_ok) {
-        coarse_best = levenberg_marquardt(fc, best.x, problem.lower(), problem.upper(), polish);
-        coarse_ok = coarse_best.r.size() == m && coarse_best.jacobian.rows() == m;
-      }
-    }
-    if (coarse_ok)
-      for (const LmResult& b : basins) {
-        if (b.cost > coarse_best.cost + 0.5 * q * q * variance(best)) continue;
-        Profiles other = profile_material(*coarse, b, variance(best), q, wald_covariance(b.jacobian, variance(best)),
-                                          coarse_best.cost);
-        // The sides are limits of that valley; record them as absolute values (ProfileSide::limit is absolute).
-        other_basins.push_back(std::move(other));
-      }
+    const std::vector<LmResult> basins = other_valleys(s);
+    profile_optimum(s);
+    profile_other_valleys(s, basins);
   }
-  out.iterations = best.iterations;
-  out.cost = best.cost;
-  out.material = problem.material(best.x);
-  out.time_origins = problem.time_origins(best.x);
-  out.prior = problem.has_prior() ? options.flow_index_prior : std::nullopt;
+  describe_optimum(s, series, out);
 
-  // Residual statistics: unweighted rmse over all series, variance from the residuals unless stated.
-  double sq = 0.0;
-  {
-    Eigen::Index k = 0;
-    for (std::size_t s = 0; s < series.size(); ++s)
-      for (std::size_t i = 0; i < problem.fitted_times()[s].size(); ++i, ++k)
-        sq += std::pow(best.r[k] * problem.weight_sigma(s), 2);
-  }
-  out.rmse = std::sqrt(sq / n);
-  const double chi2 = best.r.head(n).squaredNorm();
-  const double s2 = variance(best);
-  out.sigma = std::sqrt(s2) * problem.weight_sigma(0);
-  out.aicc = aicc(chi2, n, p + 1);
-  out.estimate = best.x;
-  out.covariance = cov;
-  out.correlation = Eigen::MatrixXd::Identity(p, p);
-  for (int a = 0; a < p; ++a)
-    for (int b = 0; b < p; ++b)
-      if (a != b) {
-        const double c = cov(a, b) / std::sqrt(cov(a, a) * cov(b, b));
-        out.correlation(a, b) = std::isfinite(c) ? c : 1.0;
-      }
-
-  const bool profiled = options.profile_intervals && !profiles.sides.empty();
-  const int identifiable = interval_estimates(problem, best.x, cov, q, profiled ? &profiles : nullptr, other_basins,
-                                              coarse_ok ? coarse_best.x : best.x, out);
+  const bool profiled = options.profile_intervals && !s.profiles.sides.empty();
+  const int identifiable = interval_estimates(problem, s.best.x, s.cov, s.q, profiled ? &s.profiles : nullptr,
+                                              s.other_basins, s.coarse_ok ? s.coarse_best.x : s.best.x, out);
   if (profiled && options.likelihood_draws > 0)
-    draw_for_bands(coarse_ok ? *coarse : problem, problem, coarse_ok ? coarse_best : best, best.x, s2, q, profiles,
-                   other_basins, options.likelihood_draws, out);
-  describe_fit(series, problem, best.x, best.r, out);
-  out.evaluations = problem.evaluations() + (coarse ? coarse->evaluations() : 0);
+    draw_for_bands(s.coarse_ok ? *s.coarse : problem, problem, s.coarse_ok ? s.coarse_best : s.best, s.best.x,
+                   s.variance(s.best), s.q, s.profiles, s.other_basins, options.likelihood_draws, out);
+  describe_fit(series, problem, s.best.x, s.best.r, out);
+  out.evaluations = solves();
   // Stopped on the iteration limit in a flat valley, but no profile refit found a lower cost (by 1% of the
   // cut-off scale) anywhere along six traces through it: the point is an optimum for every purpose of the
   // intervals, which come from the likelihood itself.
-  const bool optimum = best.converged || (profiled && !profiles.better);
+  const bool optimum = s.best.converged || (profiled && !s.profiles.better);
   if (!optimum) {
     out.status = FitStatus::NotConverged;
-    out.reason = best.message;
+    out.reason = s.best.message;
   } else if (identifiable == 0 && !arrested_yield_stress(series, problem, out)) {
     out.status = FitStatus::NotIdentifiable;
     out.reason = "no material parameter is determined by these readings";
