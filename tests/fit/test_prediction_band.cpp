@@ -148,7 +148,8 @@ TEST_CASE("central_95_range: at least 95% of any sample inside, the normal distr
     CHECK(high == std::ceil(0.975 * double(n - 1)));
   }
   // A large standard-normal sample: the range approaches the normal distribution's 2.5% and 97.5% points,
-  // -/+1.959964 (Abramowitz & Stegun 1964, table 26.1; the value quoted from memory), within the sampling error of a 100,000-point sample.
+  // -/+1.959964 (Abramowitz & Stegun 1964, table 26.1; the value quoted from memory), within the sampling error
+  // of a 100,000-point sample.
   std::mt19937 rng(11);
   std::normal_distribution<double> normal(0.0, 1.0);
   std::vector<double> sample(100000);
