@@ -149,9 +149,11 @@ report::FitOutcome fit_material(std::vector<io::TestDescription> tests, const st
     const std::optional<Law> law = forced ? forced : first.fit.model;
     // With a flow-index prior the reported fit is usually the refit with it (fit_with_prior), and the likelihood
     // draws of the fit before it (about 400 of its solves) would be thrown away: the first pass draws none, and the
-    // fit reported gets its draws below.
+    // fit reported gets its draws below. A law given without a flow index never takes the prior: its one fit keeps
+    // its draws (a refit for them would repeat the whole fit).
+    const auto has_flow_index = [](Law l) { return l == Law::PowerLaw || l == Law::HerschelBulkley; };
     fit::FitOptions first_pass = options;
-    if (prior) first_pass.likelihood_draws = 0;
+    if (prior && (!law || has_flow_index(*law))) first_pass.likelihood_draws = 0;
     if (law) {
       o.candidates.push_back(fit::fit_law(series, *law, first_pass));
       o.chosen = o.candidates.front().converged() ? 0 : -1;
@@ -165,7 +167,7 @@ report::FitOutcome fit_material(std::vector<io::TestDescription> tests, const st
     }
     if (o.result()) {
       fit::FitResult& r = o.candidates[std::size_t(o.chosen)];
-      const bool has_n = r.law == Law::PowerLaw || r.law == Law::HerschelBulkley;
+      const bool has_n = has_flow_index(r.law);
       if (prior && has_n) r = fit::fit_with_prior(series, r, options, *prior);
       else if (has_n && !prior_absent.empty()) r.warnings.push_back(prior_absent);
       if (prior) r = fit::with_likelihood_draws(series, std::move(r), options);  // kept as is when it has them
