@@ -24,6 +24,7 @@ void require_positive(double v, const char* field) {
 SpreadingOptions spreading_options(const ForwardOptions& o) {
   SpreadingOptions s;
   s.cells = o.cells;
+  s.extrapolate = o.extrapolate;
   s.rel_tol = o.rel_tol;
   s.max_steps = o.max_steps;
   s.jacobian_reuse = o.jacobian_reuse;

@@ -13,9 +13,11 @@
 
 namespace spreadfit {
 
-/// Numerical settings of the forward solvers. Defaults give < 0.3% error against a converged solution.
+/// Numerical settings of the forward solvers. Defaults give 0.09% mean, 0.8% worst error against a converged
+/// solution over a population of channel and plate cases (SpreadingOptions::extrapolate).
 struct ForwardOptions {
-  int cells = 40;                ///< Lagrangian cells of the thin-film models (>= 8)
+  int cells = 20;                  ///< Lagrangian cells of the thin-film models (>= 8; >= 16 with extrapolate)
+  bool extrapolate = true;         ///< thin-film: Richardson extrapolation from cells and cells / 2 (SpreadingOptions)
   double rel_tol = 1e-4;           ///< relative local error tolerance of the thin-film time stepper
   std::size_t max_steps = 200000;  ///< bound on time steps per solve (SpreadingOptions, SqueezeOptions::max_steps)
   int jacobian_reuse = 4;          ///< Ros2 stepper only: accepted steps one Jacobian serves (SpreadingOptions)

@@ -45,7 +45,19 @@ enum class TimeStepper {
 
 struct SpreadingOptions {
   TimeStepper stepper = TimeStepper::Rodas;
-  int cells = 40;                  ///< Lagrangian cells (>= 8)
+  /// Lagrangian cells (>= 8; with extrapolate, >= 16: the second solve runs on cells / 2).
+  int cells = 20;
+  /// Richardson extrapolation in the cell count: solve on N = cells and on N/2 cells and report
+  ///     f = f_N + (f_N - f_{N/2}) / ((N / (N/2))^p - 1),   p = grid_order,
+  /// which removes the leading grid error term (Richardson 1911; e.g. Roache, Verification and Validation in
+  /// Computational Science and Engineering, 1998, ch. 5). Both solves are smooth in the parameters, so the
+  /// extrapolated readings are too. Measured over 48 channel and plate cases (tests/models/test_thin_film.cpp,
+  /// scripts/bench): 10 + 20 cells extrapolated are 0.09% from a 320-cell solution on average (worst 0.8%), where 40
+  /// cells alone are 0.30% (worst 1.2%), at about half the cost.
+  bool extrapolate = true;
+  /// Order of the leading grid error term: the scheme's observed order between 10 and 20 cells (1.6 in the
+  /// bench's grid convergence; 1.7 between 20 and 40), where the front cell's profile dominates the error.
+  double grid_order = 1.6;
   double grading = 3.0;            ///< initial node x_i = L0 (1 - (1 - i/N)^grading): > 1 refines the front
   double rel_tol = 1e-4;           ///< stepper tolerance (relative)
   double abs_tol = 1e-8;           ///< stepper tolerance, in units of the initial extent
@@ -98,7 +110,8 @@ class SpreadingSystem {
   double front_height_factor_;
 };
 
-/// Front positions at the given times [s] (non-decreasing, >= 0; t = 0 is the release).
+/// Front positions at the given times [s] (non-decreasing, >= 0; t = 0 is the release), extrapolated in the cell
+/// count unless options.extrapolate is false (final_nodes are then the finer grid's).
 /// Throws std::invalid_argument for an invalid problem or options.
 SpreadingSolution solve_spreading(const SpreadingProblem& problem, const std::vector<double>& times,
                                   const SpreadingOptions& options = {});

@@ -85,8 +85,13 @@ std::vector<QualityFinding> judge_fit_quality(const std::vector<SeriesResiduals>
       last = sign;
     }
   }
+  // Residuals a hundredth of the stated resolution and below are under anything the readings can show (readings
+  // simulated by the same model, solver rounding): their signs say nothing about the readings' shape.
+  double resolution = 0.0;
+  for (const SeriesResiduals& s : series) resolution = std::max(resolution, s.sigma);
+  const bool visible = !stated || rmse >= 0.01 * resolution;
   const int m = plus + minus;
-  if (m >= 10 && plus > 0 && minus > 0) {
+  if (visible && m >= 10 && plus > 0 && minus > 0) {
     const double mean = 2.0 * plus * minus / m + 1.0;
     const double var = (mean - 1.0) * (mean - 2.0) / (m - 1.0);
     const double z = var > 0 ? (runs - mean) / std::sqrt(var) : 0.0;

@@ -17,7 +17,13 @@ class TruthCurve {
  public:
   TruthCurve(const TestSetup& setup, const Material& material, double end) {
     for (double t = 0; t <= end + 1e-9; t += 0.005) times_.push_back(t);
-    const ForwardResult r = predict_readings(setup, material, times_);
+    // The curve only has to be a plausible front to render; its solver settings are pinned (40 cells, no
+    // extrapolation: the defaults the videos were first rendered with) so a change of the forward defaults does not
+    // move the rendered fronts by a fraction of a pixel under the capture requirements.
+    ForwardOptions o;
+    o.extrapolate = false;
+    o.cells = 40;
+    const ForwardResult r = predict_readings(setup, material, times_, o);
     if (!r.ok()) throw std::runtime_error("truth curve: " + r.message);
     for (double v : r.readings) values_.push_back(1000 * v);
   }

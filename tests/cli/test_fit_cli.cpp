@@ -303,7 +303,8 @@ TEST_CASE("predict --plot: the channel readings of the true material lie in the 
   CHECK(svg.find("nan") == std::string::npos);
   {
     // The header's "95% of draws" range of each parameter is the 2.5-97.5% range of the draws stored in the
-    // result (the draws the band is solved from), so it stays inside the fit's box: definition of the statement.
+    // result (the draws the band is solved from), so it stays inside the fit's box: definition of the statement,
+    // with the order-statistic index rounded outward as for the band (fit::central_95_range).
     const auto result = nlohmann::json::parse(read_text(json_file));
     const auto& log_space = result.at("fit").at("log_space");
     const auto& draws = log_space.at("draws");
@@ -313,10 +314,11 @@ TEST_CASE("predict --plot: the channel readings of the true material lie in the 
     std::vector<double> values;
     for (const auto& d : draws) values.push_back(d.at(parameter).get<double>());
     std::sort(values.begin(), values.end());
-    const auto at = [&](double q) { return values[std::size_t(std::lround(q * double(values.size() - 1)))]; };
+    const double last = double(values.size() - 1);
+    const double low = values[std::size_t(std::floor(0.025 * last))], high = values[std::size_t(std::ceil(0.975 * last))];
     const std::string stated = fmt::format("yield stress {:.4g} Pa (95% of draws: {:.3g} to {:.3g})",
                                            std::exp(log_space.at("estimate").at(parameter).get<double>()),
-                                           std::exp(at(0.025)), std::exp(at(0.975)));
+                                           std::exp(low), std::exp(high));
     INFO(stated);
     CHECK(svg.find(stated) != std::string::npos);
   }

@@ -70,6 +70,16 @@ TEST_CASE("long runs of one residual sign are a systematic misfit") {
   CHECK_FALSE(has(f, fit::FitQuality::Outlier));
 }
 
+TEST_CASE("runs of one sign far below the stated resolution are no misfit") {
+  // The same three blocks at 1e-8 m against a 1 mm resolution: the residuals of readings the model itself
+  // simulated (solver rounding); no reading could show such a pattern. At a tenth of the resolution it counts.
+  fit::SeriesResiduals s = gaussian(1e-4, 1e-3, 3);
+  for (int i = 0; i < 30; ++i) s.residuals[std::size_t(i)] = (i / 10 == 1 ? -1.0 : 1.0) * 1e-8;
+  CHECK(fit::judge_fit_quality({s}, 4).empty());
+  for (double& r : s.residuals) r *= 1e4;  // 1e-4 m
+  CHECK(has(fit::judge_fit_quality({s}, 4), fit::FitQuality::SystematicMisfit));
+}
+
 TEST_CASE("a fit with a misread reading fails its verdict with a fit-quality check") {
   fit::FitSeries s = synthetic(channel_setup(), {30, 2.0, 1.0}, 5e-4, 21, 0.3, 3.0, 90.0);
   s.values[9] += 7.4e-3;

@@ -5,7 +5,8 @@ ratio. No thresholds: a benchmark, not a test.
 
 Equal accuracy: the SciPy solves use cells of 0.4 mm, whose error against the converged solution is estimated by
 the change when the cells are halved (printed with the full run; a first-order scheme at the front, so the error
-is about that change). spreadfit's error against 4x the cells is its bench column "error".
+is about that change). spreadfit's error against its converged solution (320 cells) is its bench column "error"
+of the default settings.
 
 Usage: bench_scipy.py SPREADFIT_BENCH_OUTPUT SPREADFIT_FORWARD_READINGS [--quick]
 """
@@ -34,8 +35,10 @@ def parse_spreadfit(path):
     with open(path) as f:
         for line in f:
             tok = line.split()
-            if len(tok) >= 5 and tok[0] in ("channel", "plate") and tok[1] in dict(LAWS) and tok[4].endswith("%"):
-                forward[(tok[0], tok[1])] = (float(tok[2]), tok[4])
+            # rig law TIME ms STEPS ERROR% ... (the default settings' columns come first)
+            if len(tok) >= 6 and tok[0] in ("channel", "plate") and tok[1] in dict(LAWS) and tok[3] == "ms" \
+                    and tok[5].endswith("%"):
+                forward[(tok[0], tok[1])] = (float(tok[2]), tok[5])
             elif len(tok) == 5 and tok[0] in ("channel", "plate") and tok[2] in ("HB", "HB-point", "auto"):
                 fits[(tok[0], tok[2])] = (float(tok[3]), float(tok[4]))
     return forward, fits
