@@ -48,7 +48,8 @@ class SolveStepBudget {
 SpreadingSystem::SpreadingSystem(const SpreadingProblem& problem, int cells, double grading)
     : p_(problem),
       film_(problem.material),
-      walls_(problem.channel_width > 0 ? &side_wall_table() : nullptr) {
+      walls_(problem.channel_width > 0 ? &side_wall_table() : nullptr),
+      inverse_width_(problem.channel_width > 0 ? 1.0 / problem.channel_width : 0.0) {
   initial_.resize(cells);
   for (int i = 1; i <= cells; ++i) initial_[i - 1] = 1.0 - std::pow(1.0 - double(i) / cells, grading);
   initial_[cells - 1] = 1.0;
@@ -81,8 +82,8 @@ SpreadingSystem::NodeVelocity SpreadingSystem::node_velocity(double slope, doubl
   const FilmVelocity fv = film_.with_derivatives(p_.rho_g * std::abs(slope), depth);
   double U = fv.u, U_G = fv.du_dG, U_h = fv.du_dh;
   if (walls_) {
-    const SideWallFactor sw = walls_->factor_with_slope(depth / p_.channel_width);
-    U_h = U_h * sw.f + U * sw.df / p_.channel_width;
+    const SideWallFactor sw = walls_->factor_with_slope(depth * inverse_width_);
+    U_h = U_h * sw.f + U * sw.df * inverse_width_;
     U *= sw.f;
     U_G *= sw.f;
   }
@@ -185,10 +186,9 @@ void SpreadingSystem::operator()(const Eigen::VectorXd& x, Eigen::VectorXd& dxdt
     h[j] = mass_[j] / cell_area(left, x[j]);
     left = x[j];
   }
-  const double inverse_width = walls_ ? 1.0 / p_.channel_width : 0.0;
   auto velocity = [&](double slope, double depth) {
     double u = film_.velocity(p_.rho_g * std::abs(slope), depth);
-    if (walls_) u *= walls_->factor(depth * inverse_width);
+    if (walls_) u *= walls_->factor(depth * inverse_width_);
     return slope > 0 ? -u : u;
   };
   // Interior node i sits between cells i-1 and i: height interpolated linearly between the cell centres,

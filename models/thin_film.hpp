@@ -104,6 +104,7 @@ class SpreadingSystem {
   SpreadingProblem p_;
   FilmVelocityKernel film_;           // the material's film velocity, constants worked out once
   const SideWallTable* walls_;        // the side-wall factor's table, null without side walls
+  double inverse_width_;              // 1 / channel width [1/m] (0 without side walls): multiplied, not divided
   Eigen::VectorXd initial_;  // scaled node positions at release
   Eigen::VectorXd mass_;     // cell volume / (2 pi)^s, constant in time
   double front_alpha_;
