@@ -160,7 +160,7 @@ Profiles profile_material(const FitProblem& problem, const LmResult& best, doubl
     return problem.residuals(x, r);
   };
   const ProfileLikelihood profile(f, problem.lower(), problem.upper(), fd_steps(problem), best.x, reference_cost, s2,
-                                  q, cov);
+                                  q, cov, {}, best.jacobian);
   Profiles out;
   const int pm = problem.material_parameters();
   out.sides.resize(std::size_t(2 * pm));

@@ -83,6 +83,9 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
   // updated one fails to give a step, and before any convergence is declared (the covariance needs a true one).
   bool fresh = false;
   int since_refresh = 0;
+  if (o.initial_jacobian.rows() == out.r.size() && o.initial_jacobian.cols() == out.x.size() &&
+      o.initial_jacobian.allFinite())
+    out.jacobian = o.initial_jacobian;
   auto refresh = [&] {
     fresh = finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
     since_refresh = 0;
@@ -123,7 +126,7 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
       const Eigen::VectorXd gn = JtJ.completeOrthogonalDecomposition().solve(g);
       const double predicted = 0.5 * g.dot(gn);
       if (std::isfinite(predicted) && predicted <= o.decrease_tolerance * s2) {
-        if (!fresh) {  // judged on an updated Jacobian: confirm with a true one
+        if (!fresh && o.confirm_on_update) {  // judged on an updated Jacobian: confirm with a true one
           if (!refresh()) {
             out.message = "the model failed while differentiating";
             out.model_failed = true;
@@ -140,7 +143,10 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
       }
     }
     bool accepted = false;
-    for (int attempt = 0; attempt < 12 && !accepted; ++attempt) {
+    // A true Jacobian gets twelve ever more damped tries; an updated one two, then a true one is computed (a
+    // residual call a try either way, and a poor model of the residuals fails at every damping).
+    const int attempts = fresh ? 12 : 2;
+    for (int attempt = 0; attempt < attempts && !accepted; ++attempt) {
       Eigen::MatrixXd A = JtJ;
       // Marquardt's scaling: damp each parameter by its own curvature (floored so a flat direction is damped too).
       const double floor = 1e-12 * std::max(JtJ.diagonal().maxCoeff(), 1e-300);

@@ -20,6 +20,13 @@ struct LmOptions {
   int broyden_refresh = 4;       ///< finite-difference Jacobian every this many iterations, Broyden updates
                                  ///< between (1: finite differences every iteration)
   Eigen::VectorXd fd_step;       ///< finite-difference step per parameter (required)
+  /// A Jacobian from a nearby point (rows = residuals, columns = parameters) to start from, updated by Broyden
+  /// like any other; empty or mis-sized: finite differences at the start. A warm-started refit (a profile's next
+  /// point) then begins with one residual call instead of size() + 1.
+  Eigen::MatrixXd initial_jacobian;
+  bool confirm_on_update = true;  ///< a convergence judged on a Broyden-updated Jacobian is confirmed with a
+                                  ///< finite-difference one (false: accepted as judged, for refits that use only
+                                  ///< the cost)
   bool final_jacobian = true;    ///< leave a finite-difference Jacobian at the returned point (for a covariance);
                                  ///< false saves up to size() residual calls where only x and the cost are used
                                  ///< (profile refits). The search path and x are the same either way.

@@ -55,10 +55,12 @@ class ProfileLikelihood {
  public:
   /// f, lower, upper, fd_step: the problem as given to levenberg_marquardt; best: its optimum (x, cost);
   /// s2: residual variance; q: the cut-off (t quantile); covariance: the quadratic covariance at the optimum
-  /// (entries may be infinite), used for the first step and warm start only.
+  /// (entries may be infinite), used for the first step and warm start only; jacobian: the residuals' Jacobian
+  /// at the optimum (empty if none), which starts the first refit of every side instead of finite differences.
+  /// Each later refit starts from the Jacobian the previous one ended with (a nearby point of the same walk).
   ProfileLikelihood(ResidualFunction f, Eigen::VectorXd lower, Eigen::VectorXd upper, Eigen::VectorXd fd_step,
                     Eigen::VectorXd best_x, double best_cost, double s2, double q, Eigen::MatrixXd covariance,
-                    ProfileOptions options = {});
+                    ProfileOptions options = {}, Eigen::MatrixXd jacobian = {});
 
   /// One side (dir = +1 upper, -1 lower) of parameter j's interval. Safe to call from several threads.
   ProfileSide side(int j, int dir) const;
@@ -71,14 +73,15 @@ class ProfileLikelihood {
   struct Refit {
     bool ok = false;
     double tau = 0;
-    Eigen::VectorXd rest;  // the other parameters at the conditional optimum
+    Eigen::VectorXd rest;      // the other parameters at the conditional optimum
+    Eigen::MatrixXd jacobian;  // the residuals' Jacobian in them, where the refit ended (the next one's start)
   };
-  Refit refit(int j, double value, const Eigen::VectorXd& warm) const;
+  Refit refit(int j, double value, const Eigen::VectorXd& warm, const Eigen::MatrixXd& warm_jacobian) const;
 
   ResidualFunction f_;
   Eigen::VectorXd lower_, upper_, step_, best_;
   double best_cost_, s2_, q_;
-  Eigen::MatrixXd cov_;
+  Eigen::MatrixXd cov_, jacobian_;
   ProfileOptions options_;
   mutable std::mutex better_lock_;
   mutable std::optional<Eigen::VectorXd> better_;
