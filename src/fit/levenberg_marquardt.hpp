@@ -16,7 +16,9 @@ struct LmOptions {
   double decrease_tolerance = 1e-2;  ///< stop when the Gauss-Newton predicted decrease < this x residual variance
   double stall_tolerance = 0.005;   ///< two accepted steps in a row lowering the cost by less than this x
                                     ///< residual variance end the search (a flat valley)
-  double initial_damping = 1e-3; ///< first lambda relative to the largest diagonal of J^T J (small from a good start)
+  double initial_damping = 1e-3; ///< first lambda relative to the largest diagonal of J^T J (small from a good start);
+                                 ///< with Marquardt's per-parameter scaling on top, a problem should be scaled to
+                                 ///< parameters of order one (the fits work in logarithms)
   int broyden_refresh = 4;       ///< finite-difference Jacobian every this many iterations, Broyden updates
                                  ///< between (1: finite differences every iteration)
   Eigen::VectorXd fd_step;       ///< finite-difference step per parameter (required)

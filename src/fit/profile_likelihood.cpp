@@ -49,6 +49,7 @@ ProfileLikelihood::Refit ProfileLikelihood::refit(int j, double value, const Eig
   LmOptions o;
   o.max_iterations = options_.refit_iterations;
   o.initial_damping = 1e-6;
+  o.decrease_tolerance = options_.refit_decrease_tolerance;
   o.fd_step = h;
   o.final_jacobian = false;  // a refit gives a conditional optimum and its cost, never a covariance
   o.initial_jacobian = warm_jacobian;

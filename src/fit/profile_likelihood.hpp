@@ -45,6 +45,10 @@ struct ProfileSide {
 struct ProfileOptions {
   int max_refits = 10;         ///< refits a side, tracing and refining together (the loop's bound)
   int refit_iterations = 12;   ///< Levenberg-Marquardt iterations of one refit
+  /// A refit ends when its Gauss-Newton predicted decrease is below this x s^2 (LmOptions::decrease_tolerance):
+  /// the cost then errs by about that much, tau at the cut-off by about 0.3% at the default, well inside
+  /// `tolerance`. Smaller for a comparison with another program's profile to more digits.
+  double refit_decrease_tolerance = 1e-2;
   double tolerance = 0.04;     ///< accepted relative error of tau at the limit
   double first_step = 0.5;     ///< the walk's first step, as a fraction of the quadratic (Wald) half-width
   double max_first_step = 0.5; ///< ... and at most this much (in the parameter's units)

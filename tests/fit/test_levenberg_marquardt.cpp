@@ -7,8 +7,10 @@
 
 #include <Eigen/Cholesky>
 #include <algorithm>
+#include <atomic>
 #include <cmath>
 #include <limits>
+#include <memory>
 #include <string>
 
 #include "nist_strd_problems.hpp"
@@ -176,4 +178,126 @@ TEST_CASE("levenberg_marquardt status: model failure at the start, while differe
   CHECK_FALSE(short_run.model_failed);
   CHECK(short_run.iterations == 2);
   CHECK(std::string(fit::lm_status_name(short_run.status)) == "max_iterations");
+}
+
+namespace {
+
+/// A residual function that counts its calls (finite-difference columns run in parallel, hence atomic).
+struct CountedResiduals {
+  fit::ResidualFunction inner;
+  std::shared_ptr<std::atomic<int>> calls = std::make_shared<std::atomic<int>>(0);
+  fit::ResidualFunction function() const {
+    return [inner = inner, calls = calls](const Eigen::VectorXd& b, Eigen::VectorXd& r) {
+      ++*calls;
+      return inner(b, r);
+    };
+  }
+};
+
+/// Misra1a in parameters of order one, as the fits pose their problems (they work in logarithms): x = b / b_certified,
+/// so the certified minimum is at x = (1, 1) and the initial damping (relative to the largest diagonal of J^T J)
+/// means what it means in a fit.
+fit::ResidualFunction scaled_misra1a(const StrdProblem& p) {
+  const Eigen::Vector2d scale(p.certified[0], p.certified[1]);
+  const fit::ResidualFunction f = residuals_of(p);
+  return [f, scale](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return f(x.cwiseProduct(scale), r); };
+}
+
+/// The fits' settings (LmOptions defaults: statistical stopping rules, Broyden updates between finite-difference
+/// Jacobians) with forward-difference steps of sqrt(machine epsilon) (Dennis and Schnabel 1983, sec. 5.4).
+fit::LmOptions fit_options() {
+  fit::LmOptions o;
+  o.fd_step = Eigen::Vector2d::Constant(std::sqrt(std::numeric_limits<double>::epsilon()));
+  return o;
+}
+
+/// Where the statistical stopping rules leave a search: the cost within a small fraction of the residual variance s^2
+/// above the certified minimum (decrease_tolerance stops at a predicted 0.01 s^2 to go), so each parameter within a
+/// fraction of its certified standard deviation (|dx| <= sd sqrt(2 dcost / s^2) along the worst direction).
+void check_statistically_at_minimum(const StrdProblem& p, const fit::LmResult& r) {
+  const double s2 = p.certified_rss / double(p.x.size() - p.certified.size());
+  const double excess_cost = 0.5 * (r.r.squaredNorm() - p.certified_rss);
+  const double off0 = std::abs(r.x[0] - 1.0) * p.certified[0] / p.certified_sd[0];
+  const double off1 = std::abs(r.x[1] - 1.0) * p.certified[1] / p.certified_sd[1];
+  MESSAGE(p.name, ": cost above the certified minimum ", excess_cost / s2, " s^2, parameters off by ", off0, " and ",
+          off1, " standard deviations");
+  CHECK(excess_cost >= -1e-9 * p.certified_rss);
+  CHECK(excess_cost <= 0.05 * s2);
+  CHECK(off0 <= 0.35);
+  CHECK(off1 <= 0.35);
+}
+
+}  // namespace
+
+// A warm start (LmOptions::initial_jacobian) is what profile refits use: a Jacobian from a nearby point replaces the
+// finite differences at the start. Defining properties checked on Misra1a (NIST ITL StRD, certified values in
+// tests/fit/nist_strd_problems.hpp): the search still reaches the certified minimum, it spends fewer residual calls
+// than a cold start from the same point, and a mis-sized matrix is ignored (the run is the cold one, call for call).
+TEST_CASE("levenberg_marquardt warm start: initial_jacobian reaches the certified minimum for fewer calls") {
+  const StrdProblem p = misra1a();
+  const fit::ResidualFunction f = scaled_misra1a(p);
+  const Eigen::VectorXd certified = Eigen::Vector2d(1.0, 1.0);
+  const Eigen::VectorXd lower = Eigen::Vector2d(0.1, 0.1), upper = Eigen::Vector2d(10, 10);
+  const fit::LmOptions o = fit_options();
+  for (const Eigen::Vector2d x0 : {Eigen::Vector2d(1.02, 0.97), Eigen::Vector2d(0.95, 1.06)}) {  // a profile's next point
+    Eigen::VectorXd r_at_certified;
+    Eigen::MatrixXd jacobian_nearby;
+    REQUIRE(f(certified, r_at_certified));
+    REQUIRE(fit::finite_difference_jacobian(f, certified, r_at_certified, upper, o.fd_step, jacobian_nearby));
+
+    auto run = [&](const fit::LmOptions& options, int& calls) {
+      CountedResiduals counted{f};
+      const fit::LmResult r = levenberg_marquardt(counted.function(), x0, lower, upper, options);
+      calls = *counted.calls;
+      return r;
+    };
+    int cold_calls = 0, warm_calls = 0, missized_calls = 0;
+    const fit::LmResult cold = run(o, cold_calls);
+    fit::LmOptions warm_options = o;
+    warm_options.initial_jacobian = jacobian_nearby;
+    const fit::LmResult warm = run(warm_options, warm_calls);
+    fit::LmOptions missized_options = o;
+    missized_options.initial_jacobian = Eigen::MatrixXd::Zero(3, 2);
+    const fit::LmResult missized = run(missized_options, missized_calls);
+    CAPTURE(x0.transpose());
+    MESSAGE("Misra1a near the minimum: cold ", cold_calls, " calls (", std::string(fit::lm_status_name(cold.status)),
+            "), warm ", warm_calls, " (", std::string(fit::lm_status_name(warm.status)), "), mis-sized ",
+            missized_calls);
+    for (const fit::LmResult* r : {&cold, &warm}) {
+      CHECK(r->converged);
+      check_statistically_at_minimum(p, *r);
+    }
+    CHECK(warm_calls < cold_calls);
+    CHECK(missized_calls == cold_calls);
+    CHECK(missized.x == cold.x);
+  }
+}
+
+// confirm_on_update false (profile refits, which use only the cost): a convergence judged on a Broyden-updated
+// Jacobian is accepted without a finite-difference confirmation. Defining properties on Misra1a (NIST ITL StRD): no
+// more calls than with the confirmation, and the point reached still at the certified minimum within the statistical
+// stopping rules.
+TEST_CASE("levenberg_marquardt confirm_on_update false: no extra calls, still at the certified minimum") {
+  const StrdProblem p = misra1a();
+  const fit::ResidualFunction f = scaled_misra1a(p);
+  const Eigen::VectorXd lower = Eigen::Vector2d(0.1, 0.1), upper = Eigen::Vector2d(10, 10);
+  for (const double shift : {0.9, 0.97, 1.05}) {
+    const Eigen::VectorXd x0 = Eigen::Vector2d(shift, 2.0 - shift);
+    fit::LmOptions confirmed = fit_options();
+    confirmed.final_jacobian = false;
+    fit::LmOptions unconfirmed = confirmed;
+    unconfirmed.confirm_on_update = false;
+    CountedResiduals a{f}, b{f};
+    const fit::LmResult with = levenberg_marquardt(a.function(), x0, lower, upper, confirmed);
+    const fit::LmResult without = levenberg_marquardt(b.function(), x0, lower, upper, unconfirmed);
+    CAPTURE(shift);
+    MESSAGE("Misra1a from ", shift, " x certified: confirmed ", int(*a.calls), " calls (",
+            std::string(fit::lm_status_name(with.status)), "), unconfirmed ", int(*b.calls), " (",
+            std::string(fit::lm_status_name(without.status)), ")");
+    CHECK(with.converged);
+    CHECK(without.converged);
+    CHECK(*b.calls <= *a.calls);
+    check_statistically_at_minimum(p, with);
+    check_statistically_at_minimum(p, without);
+  }
 }
