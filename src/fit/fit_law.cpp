@@ -150,6 +150,7 @@ Eigen::MatrixXd wald_covariance(const Eigen::MatrixXd& J, double s2) {
 // ...), and a point below the optimum if a refit found one.
 struct Profiles {
   std::vector<ProfileSide> sides;
+  std::vector<bool> on_fine;  ///< per side: its limit was re-evaluated on the fine problem (absolute, not moved)
   std::optional<Eigen::VectorXd> better;
   int refits = 0;
 };
@@ -169,7 +170,84 @@ Profiles profile_material(const FitProblem& problem, const LmResult& best, doubl
   });
   for (const ProfileSide& s : out.sides) out.refits += s.refits;
   out.better = profile.better_point();
+  out.on_fine.assign(out.sides.size(), false);
   return out;
+}
+
+// The profile t of the fine problem at `theta` with parameter j held: the fine residuals there, the other
+// parameters moved by one Gauss-Newton step on the coarse walk's Jacobian `jacobian` (the coarse and fine
+// conditional optima differ by the models' small difference; a step that would leave the box leaves that
+// parameter where it is), and the lower of the two real costs (never a linear prediction, so tau errs high by a
+// hair, never low). Moves `theta` to the point taken. NaN where the fine model cannot be solved.
+double fine_tau(const FitProblem& fine, int j, const Eigen::MatrixXd& jacobian, double best_cost, double s2,
+                Eigen::VectorXd& theta) {
+  const Eigen::Index p = theta.size();
+  Eigen::VectorXd r;
+  if (!fine.residuals(theta, r) || !r.allFinite()) return std::numeric_limits<double>::quiet_NaN();
+  double cost = 0.5 * r.squaredNorm();
+  if (jacobian.rows() == r.size() && jacobian.cols() == p - 1 && p > 1) {
+    std::vector<Eigen::Index> free;  // indices into the rest that may move
+    for (Eigen::Index k = 0; k < p - 1; ++k) free.push_back(k);
+    auto index = [&](Eigen::Index k) { return k < j ? k : k + 1; };  // rest index -> full index
+    Eigen::VectorXd step = Eigen::VectorXd::Zero(p);
+    for (int pass = 0; pass < 2 && !free.empty(); ++pass) {
+      Eigen::MatrixXd a(r.size(), Eigen::Index(free.size()));
+      for (std::size_t c = 0; c < free.size(); ++c) a.col(Eigen::Index(c)) = jacobian.col(free[c]);
+      const Eigen::VectorXd d = a.colPivHouseholderQr().solve(-r);
+      step.setZero();
+      std::vector<Eigen::Index> inside;
+      for (std::size_t c = 0; c < free.size(); ++c) {
+        const Eigen::Index i = index(free[c]);
+        const double moved = theta[i] + d[Eigen::Index(c)];
+        if (moved >= fine.lower()[i] && moved <= fine.upper()[i]) inside.push_back(free[c]);
+        step[i] = d[Eigen::Index(c)];
+      }
+      if (inside.size() == free.size()) break;
+      free = inside;
+      step.setZero();
+    }
+    if (step.allFinite() && step.squaredNorm() > 0) {
+      const Eigen::VectorXd moved = theta + step;
+      Eigen::VectorXd rm;
+      if (fine.residuals(moved, rm) && rm.allFinite() && 0.5 * rm.squaredNorm() < cost) {
+        cost = 0.5 * rm.squaredNorm();
+        theta = moved;
+      }
+    }
+  }
+  return std::sqrt(2.0 * std::max(cost - best_cost, 0.0) / s2);
+}
+
+// The profiles run on the coarse problem; each crossed limit is then re-evaluated on the fine one: the fine
+// profile t at the coarse limit (fine_tau), and a secant step along the coarse slope of tau towards the cut-off,
+// at most twice more. Moving the coarse limits by the difference of the two optima instead is exact only where
+// the likelihood is quadratic: in a flat valley (a yield stress traded against the flow index) the two optima
+// lie far apart along the valley while the wall that bounds it has hardly moved, and the moved limit landed
+// beyond the wall (tests/fit/test_profile_stability.cpp). A limit the fine model cannot be solved at keeps the
+// moved value. Costs two fine solves per evaluation.
+void limits_on_fine(const FitProblem& fine, double best_cost, double s2, double q, const Eigen::VectorXd& x_best,
+                    Profiles& profiles) {
+  constexpr double tolerance = 0.04;  // as ProfileOptions::tolerance
+  parallel_for(profiles.sides.size(), [&](std::size_t k) {
+    ProfileSide& side = profiles.sides[k];
+    const int j = int(k / 2);
+    const double dir = k % 2 == 0 ? -1.0 : 1.0;
+    if (side.end != ProfileEnd::Crossed || side.at_limit.size() != x_best.size() || !(side.limit_slope > 0)) return;
+    Eigen::VectorXd theta = side.at_limit;
+    double v = side.limit;
+    for (int round = 0; round < 3; ++round) {
+      const double tau = fine_tau(fine, j, side.limit_jacobian, best_cost, s2, theta);
+      if (!std::isfinite(tau)) return;
+      if (std::abs(tau / q - 1.0) <= tolerance) break;
+      // Outward distance from the fine optimum, kept on its side of it and inside the box.
+      const double out_now = dir * (v - x_best[j]);
+      const double out_next = std::max(out_now + (q - tau) / side.limit_slope, 0.05 * out_now);
+      v = std::clamp(x_best[j] + dir * out_next, fine.lower()[j], fine.upper()[j]);
+      theta[j] = v;
+    }
+    side.limit = v;
+    profiles.on_fine[k] = true;
+  });
 }
 
 // A sample at rest from the first reading on (a stiff paste that stopped within seconds): the curve carries no
@@ -244,21 +322,21 @@ int interval_estimates(const FitProblem& problem, const Eigen::VectorXd& x_best,
     bool lo_open = !std::isfinite(lo) || lo <= lo_box, hi_open = !std::isfinite(hi) || hi >= hi_box;
     if (profiles && log_scale) {
       e.profiled = true;
-      const ProfileSide& down = profiles->sides[std::size_t(2 * i)];
-      const ProfileSide& up = profiles->sides[std::size_t(2 * i + 1)];
-      lo_open = down.end != ProfileEnd::Crossed;
-      hi_open = up.end != ProfileEnd::Crossed;
-      lo = lo_open ? lo_box : x - (profile_centre[i] - down.limit);
-      hi = hi_open ? hi_box : x + (up.limit - profile_centre[i]);
+      auto moved = [&](const Profiles& set, int side) {  // a limit in the fine problem's coordinates
+        const double limit = set.sides[std::size_t(2 * i + side)].limit;
+        return set.on_fine[std::size_t(2 * i + side)] ? limit : limit + (x - profile_centre[i]);
+      };
+      lo = lo_open ? lo_box : moved(*profiles, 0);
+      hi = hi_open ? hi_box : moved(*profiles, 1);
       // The hull with the other valleys' intervals (in the coarse problem's coordinates, shifted like the main
       // one's).
       for (const Profiles& other : other_basins) {
         const ProfileSide& d = other.sides[std::size_t(2 * i)];
         const ProfileSide& u = other.sides[std::size_t(2 * i + 1)];
         if (d.end != ProfileEnd::Crossed) lo_open = true, lo = lo_box;
-        else if (!lo_open) lo = std::min(lo, d.limit + (x - profile_centre[i]));
+        else if (!lo_open) lo = std::min(lo, moved(other, 0));
         if (u.end != ProfileEnd::Crossed) hi_open = true, hi = hi_box;
-        else if (!hi_open) hi = std::max(hi, u.limit + (x - profile_centre[i]));
+        else if (!hi_open) hi = std::max(hi, moved(other, 1));
       }
       // The coarse optimum and the fine one differ slightly; a limit can never be on the wrong side of the value.
       lo = std::min(lo, x);
@@ -661,6 +739,10 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
     const std::vector<LmResult> basins = other_valleys(s);
     profile_optimum(s);
     profile_other_valleys(s, basins);
+    if (s.coarse_ok) {
+      limits_on_fine(problem, s.best.cost, s.variance(s.best), s.q, s.best.x, s.profiles);
+      for (Profiles& other : s.other_basins) limits_on_fine(problem, s.best.cost, s.variance(s.best), s.q, s.best.x, other);
+    }
   }
   describe_optimum(s, series, out);
 

@@ -133,12 +133,22 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
                                : Eigen::VectorXd(rest0 + slope * (dir * at));
     return w.cwiseMax(lo).cwiseMin(hi);
   };
+  auto full_at = [&](double at, const Eigen::VectorXd& rest) {
+    Eigen::VectorXd theta(p);
+    for (Eigen::Index i = 0, k = 0; i < p; ++i) theta[i] = i == j ? x + dir * at : rest[k++];
+    return theta;
+  };
   auto keep_trace = [&](double at, const Refit& r) {
     if (!r.ok || r.tau > 1.5 * goal) return;
-    Eigen::VectorXd theta(p);
-    for (Eigen::Index i = 0, k = 0; i < p; ++i) theta[i] = i == j ? x + dir * at : r.rest[k++];
-    out.trace.push_back(std::move(theta));
+    out.trace.push_back(full_at(at, r.rest));
     out.trace_tau.push_back(r.tau);
+  };
+  auto crossed_at = [&](double at, const Eigen::VectorXd& rest, double outward_slope) {
+    out.limit = x + dir * at;
+    out.end = ProfileEnd::Crossed;
+    out.at_limit = full_at(at, rest);
+    out.limit_jacobian = jacobian;
+    out.limit_slope = outward_slope;
   };
   while (out.refits < options_.max_refits) {
     Refit r = refit_at(x + dir * t, warm_at(t));
@@ -162,8 +172,7 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
     failures = 0;
     if (r.tau >= goal * (1.0 - tol)) {
       if (r.tau <= goal * (1.0 + tol)) {
-        out.limit = x + dir * t;
-        out.end = ProfileEnd::Crossed;
+        crossed_at(t, r.rest, (r.tau - prev.tau) / (t - prev.t));
         return out;
       }
       // Bracketed between prev (below) and this point (above): regula falsi on tau with the Illinois
@@ -176,14 +185,19 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
       int last = 0;  // which end was replaced last: -1 a, +1 b
       double ts = a.t - fa * (b.t - a.t) / (fb - fa);
       const double width_tol = options_.step_tolerance * std::max(1.0, std::abs(x));
+      auto between = [&](double at) {
+        const double w = (at - a.t) / (b.t - a.t);
+        return Eigen::VectorXd(((1.0 - w) * a.rest + w * b.rest).cwiseMax(lo).cwiseMin(hi));
+      };
       while (out.refits < options_.max_refits && b.t - a.t > width_tol) {
-        const double w = (ts - a.t) / (b.t - a.t);
-        const Eigen::VectorXd warm = ((1.0 - w) * a.rest + w * b.rest).cwiseMax(lo).cwiseMin(hi);
-        const Refit m = refit_at(x + dir * ts, warm);
+        const Refit m = refit_at(x + dir * ts, between(ts));
         ++out.refits;
         keep_trace(ts, m);
         if (!m.ok) break;
-        if (std::abs(m.tau / goal - 1.0) <= tol) break;
+        if (std::abs(m.tau / goal - 1.0) <= tol) {
+          crossed_at(ts, m.rest, (b.tau - a.tau) / (b.t - a.t));
+          return out;
+        }
         if (m.tau < goal) {
           a = Point{ts, m.tau, m.rest};
           fa = m.tau - goal;
@@ -197,8 +211,7 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
         }
         ts = a.t - fa * (b.t - a.t) / (fb - fa);
       }
-      out.limit = x + dir * ts;
-      out.end = ProfileEnd::Crossed;
+      crossed_at(ts, between(ts), (b.tau - a.tau) / (b.t - a.t));
       return out;
     }
     if (t >= room * (1.0 - 1e-12)) return out;  // the box's edge within the cut-off: open

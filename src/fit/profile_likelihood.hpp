@@ -40,6 +40,13 @@ struct ProfileSide {
   /// likelihood's ridge (src/fit/likelihood_draws.hpp centres its proposals on them).
   std::vector<Eigen::VectorXd> trace;
   std::vector<double> trace_tau;  ///< the profile t at each trace point
+  /// At a crossed limit, what re-evaluating it on another model of the same readings needs: the full parameter
+  /// vector there (the conditional optimum, interpolated across the last bracket when the limit was not refitted
+  /// itself), the residuals' Jacobian in the other parameters near it (the last refit's), and the slope of tau
+  /// outward (d tau / d|v - x_j|) across the bracket. Empty / 0 on an open side.
+  Eigen::VectorXd at_limit;
+  Eigen::MatrixXd limit_jacobian;
+  double limit_slope = 0;
 };
 
 struct ProfileOptions {
