@@ -5,8 +5,11 @@
 // film_velocity_with_derivatives are this kernel, so there is one formula.
 #pragma once
 
+#include <algorithm>
 #include <cmath>
+#include <cstddef>
 
+#include "models/batch_power.hpp"
 #include "models/rheology.hpp"
 
 namespace spreadfit {
@@ -29,18 +32,40 @@ class FilmVelocityKernel {
 
   /// u = q/h [m/s] at stress gradient G [Pa/m] and depth h [m]; 0 where the layer does not yield.
   double velocity(double G, double h) const {
-    if (!(G > 0) || !(h > 0)) return 0.0;
-    const double Y = h - tau_ / G;
-    if (Y <= 0) return 0.0;
-    if (unit_exponent_) return 0.5 * (G * inverse_K_) * Y * Y * (h - Y / 3.0) / h;
-    // (G/K)^(1/n) Y^(1+1/n) = Y (G Y / K)^(1/n): one power instead of two, and as exp(log(x)/n), which agrees with
-    // std::pow to ~1e-15 here and costs about a quarter less. Divisions by material constants are multiplications
-    // by their inverses (a division costs several multiplications).
-    return c_ * Y * std::exp(std::log(G * Y * inverse_K_) * inverse_n_) * (h - a_ * Y) / h;
+    const double Y = yielded_depth(G, h);
+    return velocity(h, Y, power(power_argument(G, Y)));
   }
 
   /// u with du/dG and du/dh (the chain rule of film_velocity_with_derivatives in rheology.hpp).
   FilmVelocity with_derivatives(double G, double h) const {
+    const double Y = yielded_depth(G, h);
+    return with_derivatives(G, h, Y, power(power_argument(G, Y)));
+  }
+
+  // The same in three passes, for many nodes at once (the thin-film right-hand side): Y and the power's argument
+  // per node, then all the powers P = (G Y / K)^(1/n) together (`powers`: vectorised, models/batch_power.hpp), then
+  // the velocities from P. One formula either way: the scalar forms above are these passes for one node.
+
+  /// Y = h - tau_y/G, the depth of the yielded layer [m]; <= 0 where it does not flow (also for G <= 0 or h <= 0).
+  double yielded_depth(double G, double h) const {
+    if (!(G > 0) || !(h > 0)) return 0.0;
+    return h - tau_ / G;
+  }
+  /// The number whose 1/n-th power the velocity needs, G Y / K where the layer yields; 1 elsewhere (any positive
+  /// number: the velocity there is 0 whatever the power).
+  double power_argument(double G, double Y) const { return Y > 0 ? G * Y * inverse_K_ : 1.0; }
+  /// P[i] = argument[i]^(1/n) (argument and P may be the same array).
+  void powers(const double* argument, double* P, std::size_t count) const {
+    if (unit_exponent_) {
+      if (P != argument) std::copy(argument, argument + count, P);
+      return;
+    }
+    positive_powers(argument, inverse_n_, P, count);
+  }
+  /// u from the yielded depth and P: n/(n+1) Y P (h - aY) / h, the film flux of rheology.hpp over h.
+  double velocity(double h, double Y, double P) const { return Y > 0 ? c_ * Y * P * (h - a_ * Y) / h : 0.0; }
+  /// u, du/dG and du/dh from G, h, the yielded depth and P.
+  FilmVelocity with_derivatives(double G, double h, double Y, double P) const {
     FilmVelocity out;
     if (!(h > 0)) return out;
     if (!(G > 0)) {
@@ -48,9 +73,7 @@ class FilmVelocityKernel {
       if (newtonian_) out.du_dG = h * h / (3.0 * K_);
       return out;
     }
-    const double Y = h - tau_ / G;
     if (Y <= 0) return out;
-    const double P = unit_exponent_ ? G * Y * inverse_K_ : std::exp(std::log(G * Y * inverse_K_) * inverse_n_);
     const double rest = h - a_ * Y;
     const double q = c_ * Y * P * rest;
     const double dq_dY = c_ * P * (one_plus_inv_n_ * rest - a_ * Y);
@@ -64,6 +87,9 @@ class FilmVelocityKernel {
   }
 
  private:
+  // x^(1/n) for one node, as exp(log(x)/n): agrees with std::pow to ~1e-15 here and costs about a quarter less.
+  double power(double x) const { return unit_exponent_ ? x : std::exp(std::log(x) * inverse_n_); }
+
   double tau_, K_, n_, inverse_K_, inverse_n_, c_, a_, one_plus_inv_n_;
   bool unit_exponent_, newtonian_;
 };

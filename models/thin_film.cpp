@@ -78,8 +78,9 @@ double SpreadingSystem::area_slope(double node) const {
 
 // Node velocity v = -sign(slope) U(rho g |slope|, depth), U = film velocity times the side-wall factor, with
 // dv/dslope = -rho g dU/dG and dv/ddepth = -sign(slope) dU/dh.
-SpreadingSystem::NodeVelocity SpreadingSystem::node_velocity(double slope, double depth) const {
-  const FilmVelocity fv = film_.with_derivatives(p_.rho_g * std::abs(slope), depth);
+// Y and P are the yielded depth and the power of the film kernel's three passes (film_velocity_kernel.hpp).
+SpreadingSystem::NodeVelocity SpreadingSystem::node_velocity(double slope, double depth, double Y, double P) const {
+  const FilmVelocity fv = film_.with_derivatives(p_.rho_g * std::abs(slope), depth, Y, P);
   double U = fv.u, U_G = fv.du_dG, U_h = fv.du_dh;
   if (walls_) {
     const SideWallFactor sw = walls_->factor_with_slope(depth * inverse_width_);
@@ -120,29 +121,45 @@ void SpreadingSystem::tridiagonal_jacobian(const Eigen::VectorXd& x, double /*t*
     dh_left[j] = h[j] * area_slope(left) * inverse_area;
     left = x[j];
   }
-  // Interior node i between cells i and i+1 (the operator() formulas), differentiated in hl, hr, wl, wr; the
-  // widths move with dw/dx_right = L, dw/dx_left = -L; dxdt = v/L.
+  // Node depths and slopes (the operator() formulas), then the film kernel's yielded depths and all powers at once.
+  thread_local Eigen::VectorXd slope, depth, yielded, power;
+  slope.resize(n);
+  depth.resize(n);
+  yielded.resize(n);
+  power.resize(n);
+  for (Eigen::Index i = 0; i + 1 < n; ++i) {
+    const double inverse_sum = 1.0 / (w[i] + w[i + 1]);
+    depth[i] = (h[i] * w[i + 1] + h[i + 1] * w[i]) * inverse_sum;
+    slope[i] = 2.0 * (h[i + 1] - h[i]) * inverse_sum;
+  }
+  const Eigen::Index f = n - 1;
+  depth[f] = front_height_factor_ * h[f];
+  slope[f] = -2.0 * front_alpha_ * depth[f] / w[f];
+  for (Eigen::Index i = 0; i < n; ++i) {
+    const double G = p_.rho_g * std::abs(slope[i]);
+    yielded[i] = film_.yielded_depth(G, depth[i]);
+    power[i] = film_.power_argument(G, yielded[i]);
+  }
+  film_.powers(power.data(), power.data(), std::size_t(n));
+  // Interior node i between cells i and i+1, differentiated in hl, hr, wl, wr; the widths move with
+  // dw/dx_right = L, dw/dx_left = -L; dxdt = v/L.
   for (Eigen::Index i = 0; i + 1 < n; ++i) {
     const double wl = w[i], wr = w[i + 1], hl = h[i], hr = h[i + 1], inverse_sum = 1.0 / (wl + wr);
-    const double depth = (hl * wr + hr * wl) * inverse_sum;
-    const double slope = 2.0 * (hr - hl) * inverse_sum;
-    const NodeVelocity nv = node_velocity(slope, depth);
+    const NodeVelocity nv = node_velocity(slope[i], depth[i], yielded[i], power[i]);
     const double a_hl = (nv.dv_dslope * -2.0 + nv.dv_ddepth * wr) * inverse_sum;
     const double a_hr = (nv.dv_dslope * 2.0 + nv.dv_ddepth * wl) * inverse_sum;
-    const double a_wl = (-nv.dv_dslope * slope + nv.dv_ddepth * (hr - depth)) * inverse_sum;
-    const double a_wr = (-nv.dv_dslope * slope + nv.dv_ddepth * (hl - depth)) * inverse_sum;
+    const double a_wl = (-nv.dv_dslope * slope[i] + nv.dv_ddepth * (hr - depth[i])) * inverse_sum;
+    const double a_wr = (-nv.dv_dslope * slope[i] + nv.dv_ddepth * (hl - depth[i])) * inverse_sum;
     dxdt[i] = nv.v * inverse_L;
     if (i > 0) lower[i] = (a_hl * dh_left[i] - a_wl * L) * inverse_L;
     diag[i] = (a_hl * dh_right[i] + a_wl * L + a_hr * dh_left[i + 1] - a_wr * L) * inverse_L;
     upper[i] = (a_hr * dh_right[i + 1] + a_wr * L) * inverse_L;
   }
   // Front node: h_mid = F h, slope = -2 alpha h_mid / w of the last cell.
-  const Eigen::Index f = n - 1;
-  const double h_mid = front_height_factor_ * h[f];
-  const double slope = -2.0 * front_alpha_ * h_mid / w[f];
-  const NodeVelocity nv = node_velocity(slope, h_mid);
-  const double a_h = (nv.dv_dslope * slope / h_mid + nv.dv_ddepth) * front_height_factor_;
-  const double a_w = -nv.dv_dslope * slope / w[f];
+  const double h_mid = depth[f];
+  const NodeVelocity nv = node_velocity(slope[f], h_mid, yielded[f], power[f]);
+  const double a_h = (nv.dv_dslope * slope[f] / h_mid + nv.dv_ddepth) * front_height_factor_;
+  const double a_w = -nv.dv_dslope * slope[f] / w[f];
   dxdt[f] = nv.v * inverse_L;
   if (f > 0) lower[f] = (a_h * dh_left[f] - a_w * L) * inverse_L;
   diag[f] = (a_h * dh_right[f] + a_w * L) * inverse_L;
@@ -186,22 +203,35 @@ void SpreadingSystem::operator()(const Eigen::VectorXd& x, Eigen::VectorXd& dxdt
     h[j] = mass_[j] / cell_area(left, x[j]);
     left = x[j];
   }
-  auto velocity = [&](double slope, double depth) {
-    double u = film_.velocity(p_.rho_g * std::abs(slope), depth);
-    if (walls_) u *= walls_->factor(depth * inverse_width_);
-    return slope > 0 ? -u : u;
-  };
-  // Interior node i sits between cells i-1 and i: height interpolated linearly between the cell centres,
-  // slope the centred difference of the cell averages. (Divisions are multiplications by one inverse: this loop is
-  // most of a solve.)
+  // Node depths and slopes. Interior node i sits between cells i and i+1: height interpolated linearly between the
+  // cell centres, slope the centred difference of the cell averages; the front node takes the front cell's profile.
+  // (Divisions are multiplications by one inverse: these loops are most of a solve.)
+  thread_local Eigen::VectorXd slope, depth;
+  slope.resize(n);
+  depth.resize(n);
   for (Eigen::Index i = 0; i + 1 < n; ++i) {
     const double wl = w[i], wr = w[i + 1], inverse_sum = 1.0 / (wl + wr);
-    const double depth = (h[i] * wr + h[i + 1] * wl) * inverse_sum;
-    const double slope = 2.0 * (h[i + 1] - h[i]) * inverse_sum;
-    dxdt[i] = velocity(slope, depth) * inverse_L;
+    depth[i] = (h[i] * wr + h[i + 1] * wl) * inverse_sum;
+    slope[i] = 2.0 * (h[i + 1] - h[i]) * inverse_sum;
   }
-  const double h_mid = front_height_factor_ * h[n - 1];
-  dxdt[n - 1] = velocity(-2.0 * front_alpha_ * h_mid / w[n - 1], h_mid) * inverse_L;
+  depth[n - 1] = front_height_factor_ * h[n - 1];
+  slope[n - 1] = -2.0 * front_alpha_ * depth[n - 1] / w[n - 1];
+  // The film velocity in three passes (models/film_velocity_kernel.hpp): yielded depths, all powers at once, then
+  // the velocities, times the side-wall factor, against the slope.
+  thread_local Eigen::VectorXd yielded, power;
+  yielded.resize(n);
+  power.resize(n);
+  for (Eigen::Index i = 0; i < n; ++i) {
+    const double G = p_.rho_g * std::abs(slope[i]);
+    yielded[i] = film_.yielded_depth(G, depth[i]);
+    power[i] = film_.power_argument(G, yielded[i]);
+  }
+  film_.powers(power.data(), power.data(), std::size_t(n));
+  for (Eigen::Index i = 0; i < n; ++i) {
+    double u = film_.velocity(depth[i], yielded[i], power[i]);
+    if (walls_) u *= walls_->factor(depth[i] * inverse_width_);
+    dxdt[i] = (slope[i] > 0 ? -u : u) * inverse_L;
+  }
 }
 
 namespace {

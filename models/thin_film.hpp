@@ -100,7 +100,7 @@ class SpreadingSystem {
   struct NodeVelocity {
     double v, dv_dslope, dv_ddepth;  // [m/s], [m^2/s], [1/s]
   };
-  NodeVelocity node_velocity(double slope, double depth) const;
+  NodeVelocity node_velocity(double slope, double depth, double yielded_depth, double power) const;
   SpreadingProblem p_;
   FilmVelocityKernel film_;           // the material's film velocity, constants worked out once
   const SideWallTable* walls_;        // the side-wall factor's table, null without side walls
