@@ -219,12 +219,14 @@ double fine_tau(const FitProblem& fine, int j, const Eigen::MatrixXd& jacobian, 
 }
 
 // The profiles run on the coarse problem; each crossed limit is then re-evaluated on the fine one: the fine
-// profile t at the coarse limit (fine_tau), and a secant step along the coarse slope of tau towards the cut-off,
-// at most twice more. Moving the coarse limits by the difference of the two optima instead is exact only where
-// the likelihood is quadratic: in a flat valley (a yield stress traded against the flow index) the two optima
-// lie far apart along the valley while the wall that bounds it has hardly moved, and the moved limit landed
-// beyond the wall (tests/fit/test_profile_stability.cpp). A limit the fine model cannot be solved at keeps the
-// moved value. Costs two fine solves per evaluation.
+// profile t at the coarse limit (fine_tau), then at most two secant steps towards the cut-off along the walk's
+// ridge (the other parameters moved with the limit along the bracket's direction), the first on the coarse
+// slope of tau, the next on the fine one. Moving the coarse limits by the difference of the two optima instead is
+// exact only where the likelihood is quadratic: in a flat valley (a yield stress traded against the flow index)
+// the two optima lie far apart along the valley while the wall that bounds it has hardly moved, and the moved
+// limit landed beyond the wall (tests/fit/test_profile_stability.cpp). Where the fine tau does not rise outward
+// or the fine model fails, the evaluated point nearest the cut-off is kept; a limit the fine model cannot be
+// solved at at all keeps the moved value. Two fine solves per evaluation.
 void limits_on_fine(const FitProblem& fine, double best_cost, double s2, double q, const Eigen::VectorXd& x_best,
                     Profiles& profiles) {
   constexpr double tolerance = 0.04;  // as ProfileOptions::tolerance
@@ -232,20 +234,42 @@ void limits_on_fine(const FitProblem& fine, double best_cost, double s2, double 
     ProfileSide& side = profiles.sides[k];
     const int j = int(k / 2);
     const double dir = k % 2 == 0 ? -1.0 : 1.0;
-    if (side.end != ProfileEnd::Crossed || side.at_limit.size() != x_best.size() || !(side.limit_slope > 0)) return;
-    Eigen::VectorXd theta = side.at_limit;
-    double v = side.limit;
+    const Eigen::Index p = x_best.size();
+    if (side.end != ProfileEnd::Crossed || side.at_limit.size() != p || side.limit_direction.size() != p ||
+        !(side.limit_slope > 0) || !side.limit_direction.allFinite())
+      return;
+    // u: outward distance from the coarse limit. It may move inward at most to a twentieth of the way from the
+    // fine optimum, and outward at most as far again as the limit is from it.
+    const double reach = dir * (side.limit - x_best[j]);
+    if (!(reach > 0)) return;
+    const double u_min = -0.95 * reach, u_max = reach;
+    double u_prev = 0, tau_prev = 0, u = 0;
+    double closest_u = 0, closest_miss = std::numeric_limits<double>::infinity();  // best evaluated so far
+    bool evaluated = false;
     for (int round = 0; round < 3; ++round) {
-      const double tau = fine_tau(fine, j, side.limit_jacobian, best_cost, s2, theta);
-      if (!std::isfinite(tau)) return;
+      Eigen::VectorXd theta = (side.at_limit + u * side.limit_direction).cwiseMax(fine.lower()).cwiseMin(fine.upper());
+      theta[j] = side.limit + dir * u;
+      const double tau = theta[j] >= fine.lower()[j] && theta[j] <= fine.upper()[j]
+                             ? fine_tau(fine, j, side.limit_jacobian, best_cost, s2, theta)
+                             : std::numeric_limits<double>::quiet_NaN();
+      if (!std::isfinite(tau)) {
+        u = closest_u;
+        break;
+      }
+      evaluated = true;
+      if (std::abs(tau - q) < closest_miss) closest_miss = std::abs(tau - q), closest_u = u;
       if (std::abs(tau / q - 1.0) <= tolerance) break;
-      // Outward distance from the fine optimum, kept on its side of it and inside the box.
-      const double out_now = dir * (v - x_best[j]);
-      const double out_next = std::max(out_now + (q - tau) / side.limit_slope, 0.05 * out_now);
-      v = std::clamp(x_best[j] + dir * out_next, fine.lower()[j], fine.upper()[j]);
-      theta[j] = v;
+      const double slope = round == 0 ? side.limit_slope : (tau - tau_prev) / (u - u_prev);
+      if (!(slope > 0)) {  // fine tau not rising outward here: no basis for a step
+        u = closest_u;
+        break;
+      }
+      u_prev = u;
+      tau_prev = tau;
+      u = std::clamp(u + (q - tau) / slope, u_min, u_max);  // after the third: the secant's estimate
     }
-    side.limit = v;
+    if (!evaluated) return;
+    side.limit += dir * u;
     profiles.on_fine[k] = true;
   });
 }
@@ -322,6 +346,8 @@ int interval_estimates(const FitProblem& problem, const Eigen::VectorXd& x_best,
     bool lo_open = !std::isfinite(lo) || lo <= lo_box, hi_open = !std::isfinite(hi) || hi >= hi_box;
     if (profiles && log_scale) {
       e.profiled = true;
+      lo_open = profiles->sides[std::size_t(2 * i)].end != ProfileEnd::Crossed;
+      hi_open = profiles->sides[std::size_t(2 * i + 1)].end != ProfileEnd::Crossed;
       auto moved = [&](const Profiles& set, int side) {  // a limit in the fine problem's coordinates
         const double limit = set.sides[std::size_t(2 * i + side)].limit;
         return set.on_fine[std::size_t(2 * i + side)] ? limit : limit + (x - profile_centre[i]);

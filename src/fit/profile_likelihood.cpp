@@ -143,12 +143,15 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
     out.trace.push_back(full_at(at, r.rest));
     out.trace_tau.push_back(r.tau);
   };
-  auto crossed_at = [&](double at, const Eigen::VectorXd& rest, double outward_slope) {
+  // A crossed limit at `at`, the bracket's ends (t, tau, rest) on either side of it.
+  auto crossed_at = [&](double at, const Eigen::VectorXd& rest, double ta, double tau_a, const Eigen::VectorXd& rest_a,
+                        double tb, double tau_b, const Eigen::VectorXd& rest_b) {
     out.limit = x + dir * at;
     out.end = ProfileEnd::Crossed;
     out.at_limit = full_at(at, rest);
     out.limit_jacobian = jacobian;
-    out.limit_slope = outward_slope;
+    out.limit_slope = (tau_b - tau_a) / (tb - ta);
+    out.limit_direction = (full_at(tb, rest_b) - full_at(ta, rest_a)) / (tb - ta);
   };
   while (out.refits < options_.max_refits) {
     Refit r = refit_at(x + dir * t, warm_at(t));
@@ -158,6 +161,15 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
       // start again from the last point of the trace before counting a failure.
       r = refit_at(x + dir * t, prev.rest);
       ++out.refits;
+    } else if (r.ok && r.tau > 1.5 * goal) {
+      // A wall: tau leapt far past the cut-off in one step. The refit may have left the ridge for another branch
+      // of the conditional optimum (the extrapolated start overshot a bend); the start from the last point of the
+      // trace follows the ridge itself. The lower of the two is the conditional optimum.
+      const Eigen::MatrixXd kept = jacobian;
+      Refit again = refit_at(x + dir * t, prev.rest);
+      ++out.refits;
+      if (again.ok && again.tau < r.tau) r = std::move(again);
+      else jacobian = kept;
     }
     keep_trace(t, r);
     if (!r.ok) {
@@ -172,7 +184,7 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
     failures = 0;
     if (r.tau >= goal * (1.0 - tol)) {
       if (r.tau <= goal * (1.0 + tol)) {
-        crossed_at(t, r.rest, (r.tau - prev.tau) / (t - prev.t));
+        crossed_at(t, r.rest, prev.t, prev.tau, prev.rest, t, r.tau, r.rest);
         return out;
       }
       // Bracketed between prev (below) and this point (above): regula falsi on tau with the Illinois
@@ -195,7 +207,7 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
         keep_trace(ts, m);
         if (!m.ok) break;
         if (std::abs(m.tau / goal - 1.0) <= tol) {
-          crossed_at(ts, m.rest, (b.tau - a.tau) / (b.t - a.t));
+          crossed_at(ts, m.rest, a.t, a.tau, a.rest, b.t, b.tau, b.rest);
           return out;
         }
         if (m.tau < goal) {
@@ -211,7 +223,7 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
         }
         ts = a.t - fa * (b.t - a.t) / (fb - fa);
       }
-      crossed_at(ts, between(ts), (b.tau - a.tau) / (b.t - a.t));
+      crossed_at(ts, between(ts), a.t, a.tau, a.rest, b.t, b.tau, b.rest);
       return out;
     }
     if (t >= room * (1.0 - 1e-12)) return out;  // the box's edge within the cut-off: open

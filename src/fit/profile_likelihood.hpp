@@ -43,8 +43,9 @@ struct ProfileSide {
   /// At a crossed limit, what re-evaluating it on another model of the same readings needs: the full parameter
   /// vector there (the conditional optimum, interpolated across the last bracket when the limit was not refitted
   /// itself), the residuals' Jacobian in the other parameters near it (the last refit's), and the slope of tau
-  /// outward (d tau / d|v - x_j|) across the bracket. Empty / 0 on an open side.
-  Eigen::VectorXd at_limit;
+  /// outward (d tau / d|v - x_j|) and of the full parameter vector (the ridge's direction, per unit of |v - x_j|)
+  /// across the bracket. Empty / 0 on an open side.
+  Eigen::VectorXd at_limit, limit_direction;
   Eigen::MatrixXd limit_jacobian;
   double limit_slope = 0;
 };
