@@ -121,26 +121,10 @@ void SpreadingSystem::tridiagonal_jacobian(const Eigen::VectorXd& x, double /*t*
     dh_left[j] = h[j] * area_slope(left) * inverse_area;
     left = x[j];
   }
-  // Node depths and slopes (the operator() formulas), then the film kernel's yielded depths and all powers at once.
-  thread_local Eigen::VectorXd slope, depth, yielded, power;
-  slope.resize(n);
-  depth.resize(n);
-  yielded.resize(n);
-  power.resize(n);
-  for (Eigen::Index i = 0; i + 1 < n; ++i) {
-    const double inverse_sum = 1.0 / (w[i] + w[i + 1]);
-    depth[i] = (h[i] * w[i + 1] + h[i + 1] * w[i]) * inverse_sum;
-    slope[i] = 2.0 * (h[i + 1] - h[i]) * inverse_sum;
-  }
+  thread_local NodeStates nodes;
+  node_states(w, h, nodes);
+  const Eigen::VectorXd &slope = nodes.slope, &depth = nodes.depth, &yielded = nodes.yielded, &power = nodes.power;
   const Eigen::Index f = n - 1;
-  depth[f] = front_height_factor_ * h[f];
-  slope[f] = -2.0 * front_alpha_ * depth[f] / w[f];
-  for (Eigen::Index i = 0; i < n; ++i) {
-    const double G = p_.rho_g * std::abs(slope[i]);
-    yielded[i] = film_.yielded_depth(G, depth[i]);
-    power[i] = film_.power_argument(G, yielded[i]);
-  }
-  film_.powers(power.data(), power.data(), std::size_t(n));
   // Interior node i between cells i and i+1, differentiated in hl, hr, wl, wr; the widths move with
   // dw/dx_right = L, dw/dx_left = -L; dxdt = v/L.
   for (Eigen::Index i = 0; i + 1 < n; ++i) {
@@ -203,12 +187,27 @@ void SpreadingSystem::operator()(const Eigen::VectorXd& x, Eigen::VectorXd& dxdt
     h[j] = mass_[j] / cell_area(left, x[j]);
     left = x[j];
   }
-  // Node depths and slopes. Interior node i sits between cells i and i+1: height interpolated linearly between the
-  // cell centres, slope the centred difference of the cell averages; the front node takes the front cell's profile.
-  // (Divisions are multiplications by one inverse: these loops are most of a solve.)
-  thread_local Eigen::VectorXd slope, depth;
+  // The film velocity from the node states, times the side-wall factor, against the slope.
+  thread_local NodeStates nodes;
+  node_states(w, h, nodes);
+  for (Eigen::Index i = 0; i < n; ++i) {
+    double u = film_.velocity(nodes.depth[i], nodes.yielded[i], nodes.power[i]);
+    if (walls_) u *= walls_->factor(nodes.depth[i] * inverse_width_);
+    dxdt[i] = (nodes.slope[i] > 0 ? -u : u) * inverse_L;
+  }
+}
+
+// Interior node i sits between cells i and i+1: height interpolated linearly between the cell centres, slope the
+// centred difference of the cell averages; the front node takes the front cell's profile. Then the film velocity's
+// first two passes (models/film_velocity_kernel.hpp): yielded depths, and all powers at once. (Divisions are
+// multiplications by one inverse: these loops are most of a solve.)
+void SpreadingSystem::node_states(const Eigen::VectorXd& w, const Eigen::VectorXd& h, NodeStates& nodes) const {
+  const Eigen::Index n = w.size();
+  Eigen::VectorXd &slope = nodes.slope, &depth = nodes.depth, &yielded = nodes.yielded, &power = nodes.power;
   slope.resize(n);
   depth.resize(n);
+  yielded.resize(n);
+  power.resize(n);
   for (Eigen::Index i = 0; i + 1 < n; ++i) {
     const double wl = w[i], wr = w[i + 1], inverse_sum = 1.0 / (wl + wr);
     depth[i] = (h[i] * wr + h[i + 1] * wl) * inverse_sum;
@@ -216,22 +215,12 @@ void SpreadingSystem::operator()(const Eigen::VectorXd& x, Eigen::VectorXd& dxdt
   }
   depth[n - 1] = front_height_factor_ * h[n - 1];
   slope[n - 1] = -2.0 * front_alpha_ * depth[n - 1] / w[n - 1];
-  // The film velocity in three passes (models/film_velocity_kernel.hpp): yielded depths, all powers at once, then
-  // the velocities, times the side-wall factor, against the slope.
-  thread_local Eigen::VectorXd yielded, power;
-  yielded.resize(n);
-  power.resize(n);
   for (Eigen::Index i = 0; i < n; ++i) {
     const double G = p_.rho_g * std::abs(slope[i]);
     yielded[i] = film_.yielded_depth(G, depth[i]);
     power[i] = film_.power_argument(G, yielded[i]);
   }
   film_.powers(power.data(), power.data(), std::size_t(n));
-  for (Eigen::Index i = 0; i < n; ++i) {
-    double u = film_.velocity(depth[i], yielded[i], power[i]);
-    if (walls_) u *= walls_->factor(depth[i] * inverse_width_);
-    dxdt[i] = (slope[i] > 0 ? -u : u) * inverse_L;
-  }
 }
 
 namespace {

@@ -101,6 +101,12 @@ class SpreadingSystem {
     double v, dv_dslope, dv_ddepth;  // [m/s], [m^2/s], [1/s]
   };
   NodeVelocity node_velocity(double slope, double depth, double yielded_depth, double power) const;
+  // Per node: slope and depth of the film, and the film kernel's yielded depth and power (film_velocity_kernel.hpp).
+  struct NodeStates {
+    Eigen::VectorXd slope, depth, yielded, power;
+  };
+  // The node states from the cells' widths w and heights h, shared by the right-hand side and its Jacobian.
+  void node_states(const Eigen::VectorXd& w, const Eigen::VectorXd& h, NodeStates& nodes) const;
   SpreadingProblem p_;
   FilmVelocityKernel film_;           // the material's film velocity, constants worked out once
   const SideWallTable* walls_;        // the side-wall factor's table, null without side walls
