@@ -150,7 +150,6 @@ Eigen::MatrixXd wald_covariance(const Eigen::MatrixXd& J, double s2) {
 // ...), and a point below the optimum if a refit found one.
 struct Profiles {
   std::vector<ProfileSide> sides;
-  std::vector<bool> on_fine;  ///< per side: its limit was re-evaluated on the fine problem (absolute, not moved)
   std::optional<Eigen::VectorXd> better;
   int refits = 0;
 };
@@ -170,7 +169,6 @@ Profiles profile_material(const FitProblem& problem, const LmResult& best, doubl
   });
   for (const ProfileSide& s : out.sides) out.refits += s.refits;
   out.better = profile.better_point();
-  out.on_fine.assign(out.sides.size(), false);
   return out;
 }
 
@@ -226,22 +224,26 @@ double fine_tau(const FitProblem& fine, int j, const Eigen::MatrixXd& jacobian, 
 // the two optima lie far apart along the valley while the wall that bounds it has hardly moved, and the moved
 // limit landed beyond the wall (tests/fit/test_profile_stability.cpp). Where the fine tau does not rise outward
 // or the fine model fails, the evaluated point nearest the cut-off is kept; a limit the fine model cannot be
-// solved at at all keeps the moved value. Two fine solves per evaluation.
+// solved at at all is moved by the difference of the fine optimum x_best and the coarse one `coarse_best`. Every
+// crossed limit is in the fine problem's coordinates afterwards. Two fine solves per evaluation.
 void limits_on_fine(const FitProblem& fine, double best_cost, double s2, double q, const Eigen::VectorXd& x_best,
-                    Profiles& profiles) {
+                    const Eigen::VectorXd& coarse_best, Profiles& profiles) {
   constexpr double tolerance = 0.04;  // as ProfileOptions::tolerance
   parallel_for(profiles.sides.size(), [&](std::size_t k) {
     ProfileSide& side = profiles.sides[k];
     const int j = int(k / 2);
     const double dir = k % 2 == 0 ? -1.0 : 1.0;
     const Eigen::Index p = x_best.size();
-    if (side.end != ProfileEnd::Crossed || side.at_limit.size() != p || side.limit_direction.size() != p ||
-        !(side.limit_slope > 0) || !side.limit_direction.allFinite())
-      return;
+    if (side.end != ProfileEnd::Crossed) return;
+    const double moved = side.limit + x_best[j] - coarse_best[j];
     // u: outward distance from the coarse limit. It may move inward at most to a twentieth of the way from the
     // fine optimum, and outward at most as far again as the limit is from it.
     const double reach = dir * (side.limit - x_best[j]);
-    if (!(reach > 0)) return;
+    if (side.at_limit.size() != p || side.limit_direction.size() != p || !(side.limit_slope > 0) ||
+        !side.limit_direction.allFinite() || !(reach > 0)) {
+      side.limit = moved;
+      return;
+    }
     const double u_min = -0.95 * reach, u_max = reach;
     double u_prev = 0, tau_prev = 0, u = 0;
     double closest_u = 0, closest_miss = std::numeric_limits<double>::infinity();  // best evaluated so far
@@ -268,9 +270,7 @@ void limits_on_fine(const FitProblem& fine, double best_cost, double s2, double 
       tau_prev = tau;
       u = std::clamp(u + (q - tau) / slope, u_min, u_max);  // after the third: the secant's estimate
     }
-    if (!evaluated) return;
-    side.limit += dir * u;
-    profiles.on_fine[k] = true;
+    side.limit = evaluated ? side.limit + dir * u : moved;
   });
 }
 
@@ -327,11 +327,11 @@ bool arrested_yield_stress(const std::vector<FitSeries>& series, const FitProble
 // The reported estimates and their 95% limits, with a plain warning for every open side or undetermined
 // parameter: profile-likelihood limits of the material parameters (their hull over every valley within the
 // cut-off) when `profiles` is given, else quadratic ones; the release times keep quadratic limits. The profile
-// limits were found around `profile_centre` (the coarse problem's optimum) and are moved to `x_best` with it.
+// limits are in the fine problem's coordinates (limits_on_fine).
 // Returns how many material parameters the readings determine.
 int interval_estimates(const FitProblem& problem, const Eigen::VectorXd& x_best, const Eigen::MatrixXd& cov, double q,
                        const Profiles* profiles, const std::vector<Profiles>& other_basins,
-                       const Eigen::VectorXd& profile_centre, FitResult& out) {
+                       FitResult& out) {
   int identifiable = 0;
   const int p = problem.size();
   for (int i = 0; i < p; ++i) {
@@ -348,21 +348,16 @@ int interval_estimates(const FitProblem& problem, const Eigen::VectorXd& x_best,
       e.profiled = true;
       lo_open = profiles->sides[std::size_t(2 * i)].end != ProfileEnd::Crossed;
       hi_open = profiles->sides[std::size_t(2 * i + 1)].end != ProfileEnd::Crossed;
-      auto moved = [&](const Profiles& set, int side) {  // a limit in the fine problem's coordinates
-        const double limit = set.sides[std::size_t(2 * i + side)].limit;
-        return set.on_fine[std::size_t(2 * i + side)] ? limit : limit + (x - profile_centre[i]);
-      };
-      lo = lo_open ? lo_box : moved(*profiles, 0);
-      hi = hi_open ? hi_box : moved(*profiles, 1);
-      // The hull with the other valleys' intervals (in the coarse problem's coordinates, shifted like the main
-      // one's).
+      lo = lo_open ? lo_box : profiles->sides[std::size_t(2 * i)].limit;
+      hi = hi_open ? hi_box : profiles->sides[std::size_t(2 * i + 1)].limit;
+      // The hull with the other valleys' intervals.
       for (const Profiles& other : other_basins) {
         const ProfileSide& d = other.sides[std::size_t(2 * i)];
         const ProfileSide& u = other.sides[std::size_t(2 * i + 1)];
         if (d.end != ProfileEnd::Crossed) lo_open = true, lo = lo_box;
-        else if (!lo_open) lo = std::min(lo, moved(other, 0));
+        else if (!lo_open) lo = std::min(lo, d.limit);
         if (u.end != ProfileEnd::Crossed) hi_open = true, hi = hi_box;
-        else if (!hi_open) hi = std::max(hi, moved(other, 1));
+        else if (!hi_open) hi = std::max(hi, u.limit);
       }
       // The coarse optimum and the fine one differ slightly; a limit can never be on the wrong side of the value.
       lo = std::min(lo, x);
@@ -766,15 +761,16 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
     profile_optimum(s);
     profile_other_valleys(s, basins);
     if (s.coarse_ok) {
-      limits_on_fine(problem, s.best.cost, s.variance(s.best), s.q, s.best.x, s.profiles);
-      for (Profiles& other : s.other_basins) limits_on_fine(problem, s.best.cost, s.variance(s.best), s.q, s.best.x, other);
+      limits_on_fine(problem, s.best.cost, s.variance(s.best), s.q, s.best.x, s.coarse_best.x, s.profiles);
+      for (Profiles& other : s.other_basins)
+        limits_on_fine(problem, s.best.cost, s.variance(s.best), s.q, s.best.x, s.coarse_best.x, other);
     }
   }
   describe_optimum(s, series, out);
 
   const bool profiled = options.profile_intervals && !s.profiles.sides.empty();
   const int identifiable = interval_estimates(problem, s.best.x, s.cov, s.q, profiled ? &s.profiles : nullptr,
-                                              s.other_basins, s.coarse_ok ? s.coarse_best.x : s.best.x, out);
+                                              s.other_basins, out);
   if (profiled && options.likelihood_draws > 0)
     draw_for_bands(s.coarse_ok ? *s.coarse : problem, problem, s.coarse_ok ? s.coarse_best : s.best, s.best.x,
                    s.variance(s.best), s.q, s.profiles, s.other_basins, options.likelihood_draws, out);
