@@ -12,7 +12,6 @@
 #include <future>
 #include <limits>
 #include <mutex>
-#include <nlopt.hpp>
 #include <optional>
 #include <stdexcept>
 
@@ -23,6 +22,7 @@
 #include "src/fit/fit_quality.hpp"
 #include "src/fit/final_only.hpp"
 #include "src/fit/likelihood_draws.hpp"
+#include "src/fit/surrogate_start.hpp"
 #include "src/parallel_for.hpp"
 
 namespace spreadfit::fit {
@@ -52,69 +52,6 @@ double aicc(double ssr, int n, int k) {
 namespace {
 
 std::string plain_name(const std::string& name) { return parameter_plain_name(name); }
-
-// Stage 1: DIRECT-L on the surrogate over the box of the material parameters; release times are held at zero
-// (the clock is started at the release; clamped into their range), the least surprising guess, and left to the polish:
-// DIRECT's cost grows quickly with the dimension and the release times are nuisance parameters.
-Eigen::VectorXd global_start(const FitProblem& problem, int evaluations) {
-  const int p = problem.size();
-  const int pm = problem.material_parameters();
-  Eigen::VectorXd best = 0.5 * (problem.lower() + problem.upper());
-  for (int i = pm; i < p; ++i) best[i] = std::clamp(0.0, problem.lower()[i], problem.upper()[i]);
-  if (evaluations <= 0) return best;
-  double best_cost = std::numeric_limits<double>::infinity();
-  Eigen::VectorXd r, theta = best;
-  std::exception_ptr error;
-  // Surrogate cost of the first `count` parameters (the rest held), remembering the best point seen. NLopt turns
-  // exceptions into a generic failure, so the original is kept and rethrown.
-  int count = pm;
-  std::function<double(const double*)> objective = [&](const double* x) {
-    try {
-      for (int i = 0; i < count; ++i) theta[i] = x[i];
-      problem.surrogate_residuals(theta, r);
-      const double c = r.allFinite() ? 0.5 * r.squaredNorm() : 1e300;
-      if (c < best_cost) {
-        best_cost = c;
-        best = theta;
-      }
-      return c;
-    } catch (...) {
-      error = std::current_exception();
-      throw nlopt::forced_stop();
-    }
-  };
-  auto run = [&](nlopt::algorithm algorithm, int n, int budget) {
-    count = n;
-    theta = best;
-    nlopt::opt opt(algorithm, unsigned(n));
-    opt.set_lower_bounds(std::vector<double>(problem.lower().data(), problem.lower().data() + n));
-    opt.set_upper_bounds(std::vector<double>(problem.upper().data(), problem.upper().data() + n));
-    opt.set_maxeval(budget);
-    if (algorithm == nlopt::LN_BOBYQA) opt.set_xtol_abs(1e-4);
-    opt.set_min_objective(
-        [](unsigned, const double* x, double*, void* data) -> double {
-          return (*static_cast<std::function<double(const double*)>*>(data))(x);
-        },
-        &objective);
-    std::vector<double> x(best.data(), best.data() + n);
-    double value = 0;
-    try {
-      opt.optimize(x, value);
-    } catch (const std::runtime_error&) {
-      // NLopt's ways of stopping early (nlopt::forced_stop and nlopt::roundoff_limited derive from
-      // std::runtime_error, as does its generic failure): the best point seen is kept either way.
-    } catch (const std::invalid_argument&) {
-      // NLopt refuses a start that rounding put a hair outside the box ("bounds ... fail"): the start is kept.
-    }
-    if (error) std::rethrow_exception(error);
-  };
-  run(nlopt::GN_DIRECT_L, pm, evaluations);
-  // Local stage, still on the surrogate: NLopt LN_BOBYQA (Powell 2009; derivative-free, bounded, quadratic models)
-  // frees the release times together with the material parameters from DIRECT's point. Cheap, and it hands the
-  // full-model polish a start whose release times are already consistent with the material.
-  if (p > pm) run(nlopt::LN_BOBYQA, p, evaluations / 3);
-  return best;
-}
 
 Eigen::VectorXd fd_steps(const FitProblem& problem) {
   Eigen::VectorXd h(problem.size());

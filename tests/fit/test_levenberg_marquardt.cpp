@@ -239,7 +239,7 @@ TEST_CASE("levenberg_marquardt warm start: initial_jacobian reaches the certifie
   const Eigen::VectorXd certified = Eigen::Vector2d(1.0, 1.0);
   const Eigen::VectorXd lower = Eigen::Vector2d(0.1, 0.1), upper = Eigen::Vector2d(10, 10);
   const fit::LmOptions o = fit_options();
-  for (const Eigen::Vector2d x0 : {Eigen::Vector2d(1.02, 0.97), Eigen::Vector2d(0.95, 1.06)}) {  // a profile's next point
+  for (const Eigen::Vector2d& x0 : {Eigen::Vector2d(1.02, 0.97), Eigen::Vector2d(0.95, 1.06)}) {  // a profile's next point
     Eigen::VectorXd r_at_certified;
     Eigen::MatrixXd jacobian_nearby;
     REQUIRE(f(certified, r_at_certified));
