@@ -6,6 +6,7 @@
 #include <unistd.h>
 #include <map>
 #include <mutex>
+#include <set>
 #include <optional>
 #include <memory>
 
@@ -467,12 +468,25 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
     }
     return fit_one_material(options, std::move(batch.by_sample.at(order[index])), catalogue_of[index], forced);
   };
-  // Without --db the materials are independent: they are fitted on every core at once (each fit is deterministic
-  // and the results are reported in input order below, so the output equals a run of one material after another).
-  // With --db a material's flow-index prior learns from the batches recorded before it in the same run, so each is
-  // fitted and recorded in turn.
+  // The materials are fitted on every core at once (each fit is deterministic and the results are reported in input
+  // order below, so the output equals a run of one material after another), except where --db makes a material
+  // depend on another of the same run: its flow-index prior learns from the batches of its product recorded before
+  // it, so a material whose product already came earlier in the run is fitted in turn, after those are recorded.
+  // The first of each product (and one without a product code, or whose prior is the catalogue's, or any with
+  // --no-prior) sees the history only as it was before the run, which no record of another product changes.
   std::vector<std::optional<MaterialRun>> runs(order.size());
-  if (!options.db) parallel_for(order.size(), [&](std::size_t i) { runs[i] = fit_one(i); });
+  std::vector<std::size_t> independent;
+  std::set<std::string> products_seen;
+  for (std::size_t i = 0; i < order.size(); ++i) {
+    const std::string& product = batch.by_sample.at(order[i]).front().product;
+    const auto* catalogue = catalogue_of[i];
+    const auto entry = catalogue ? catalogue->find(product) : std::map<std::string, io::ProductSpec>::const_iterator{};
+    const bool catalogue_prior = catalogue && entry != catalogue->end() && entry->second.flow_index_prior;
+    const bool first_of_product = products_seen.insert(product).second;
+    if (!options.db || !options.use_prior || product.empty() || catalogue_prior || first_of_product)
+      independent.push_back(i);
+  }
+  parallel_for(independent.size(), [&](std::size_t k) { runs[independent[k]] = fit_one(independent[k]); });
   RunState state;
   for (std::size_t index = 0; index < order.size(); ++index) {
     if (!runs[index]) runs[index] = fit_one(index);

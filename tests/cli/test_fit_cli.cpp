@@ -25,8 +25,9 @@ volume = "150 mL"
 
 /// Writes a plate test whose readings are the binary's own simulation of `sets` plus the given [spec] text.
 std::filesystem::path plate_test(const TempDir& dir, const std::string& id, const std::string& sets,
-                                 const std::string& spec) {
-  const std::string head = "[sample]\nid = \"" + id + "\"\nproduct = \"LT9\"\ndensity = \"1.0 g/mL\"\n\n";
+                                 const std::string& spec, const std::string& product = "LT9") {
+  const std::string head =
+      "[sample]\nid = \"" + id + "\"\nproduct = \"" + product + "\"\ndensity = \"1.0 g/mL\"\n\n";
   const auto bare = dir.write(id + "-rig.toml", head + plate_rig);
   const Run sim = run_spreadfit(dir, "simulate " + quoted(bare.string()) + " " + sets +
                                          " --times 2,4,6,8,10,15,20,25,30,40,50,60,75,90,105,120");
@@ -119,6 +120,62 @@ TEST_CASE("fit: a batch list reports each material exactly as a fit of that mate
     CHECK(read_text(batch / (stem + ".json")) == read_text(dir.path() / ("alone-" + stem) / (stem + ".json")));
     CHECK(read_text(batch / (stem + ".svg")) == read_text(dir.path() / ("alone-" + stem) / (stem + ".svg")));
   }
+}
+
+TEST_CASE("fit --db: a batch list fitted on every core reports exactly what one material after another does") {
+  // With --db a material's flow-index prior learns from the batches of its product recorded before it, also those of
+  // the same run; the batch fits the first material of each product at once and the rest in turn. The reference is
+  // the same binary fitting the files one at a time into its own history: every report, result file and the history
+  // rows' results must agree, and the sixth batch of LT8 must have learned its prior from the five before it
+  // (src/fit/flow_index_prior.hpp: at least 5). Two invented products, interleaved.
+  TempDir dir;
+  const std::string fit_power = "[fit]\nmodel = \"power-law\"\n";
+  struct Batch {
+    std::string id, product, sets;
+  };
+  const std::vector<Batch> batches{
+      {"LT8-0001", "LT8", "consistency=6 --set flow_index=0.42"}, {"LT7-0001", "LT7", "consistency=3 --set flow_index=0.6"},
+      {"LT8-0002", "LT8", "consistency=7 --set flow_index=0.40"}, {"LT8-0003", "LT8", "consistency=5 --set flow_index=0.44"},
+      {"LT8-0004", "LT8", "consistency=6 --set flow_index=0.45"}, {"LT8-0005", "LT8", "consistency=8 --set flow_index=0.39"},
+      {"LT7-0002", "LT7", "consistency=2 --set flow_index=0.65"}, {"LT8-0006", "LT8", "consistency=6 --set flow_index=0.43"}};
+  std::string list, alone_out;
+  std::vector<std::filesystem::path> tests;
+  for (const Batch& b : batches) {
+    tests.push_back(plate_test(dir, b.id, "--model power-law --set " + b.sets + " --set time_origin=0", fit_power,
+                               b.product));
+    list += " " + quoted(tests.back().string());
+  }
+  const auto alone_dir = dir.path() / "alone", batch_dir = dir.path() / "batch";
+  std::filesystem::create_directory(alone_dir);
+  std::filesystem::create_directory(batch_dir);
+  const auto alone_db = dir.path() / "alone.sqlite", batch_db = dir.path() / "batch.sqlite";
+  for (const auto& t : tests) {
+    const Run one = run_spreadfit(dir, "fit " + quoted(t.string()) + " --db " + quoted(alone_db.string()) +
+                                           " --out-dir " + quoted(alone_dir.string()));
+    INFO(one.out << one.err);
+    REQUIRE(one.exit_code == 0);
+    alone_out += one.out;
+  }
+  const Run run = run_spreadfit(dir, "fit" + list + " --db " + quoted(batch_db.string()) + " --out-dir " +
+                                         quoted(batch_dir.string()));
+  INFO(run.out << run.err);
+  REQUIRE(run.exit_code == 0);
+  // The reports name the history file they added to: the same but for the file's name.
+  auto with_db = [](std::string text, const std::filesystem::path& db) {
+    for (std::size_t at = text.find(db.string()); at != std::string::npos; at = text.find(db.string(), at))
+      text.replace(at, db.string().size(), "HISTORY");
+    return text;
+  };
+  CHECK(with_db(run.out, batch_db) == with_db(alone_out, alone_db));
+  for (const Batch& b : batches) {
+    INFO(b.id);
+    CHECK(read_text(batch_dir / (b.id + ".json")) == read_text(alone_dir / (b.id + ".json")));
+  }
+  const auto sixth = nlohmann::json::parse(read_text(batch_dir / "LT8-0006.json"));
+  REQUIRE(sixth["fit"].contains("prior"));
+  CHECK(sixth["fit"]["prior"].dump().find("5 earlier batches") != std::string::npos);
+  const auto fifth = nlohmann::json::parse(read_text(batch_dir / "LT8-0005.json"));
+  CHECK_FALSE(fifth["fit"].contains("prior"));
 }
 
 TEST_CASE("fit: a final-only plate reading gives the Roussel & Coussot yield stress") {
