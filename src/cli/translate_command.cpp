@@ -98,9 +98,7 @@ TranslateInputs read_inputs(const TranslateCommandOptions& options) {
     throw io::InputError(where, 0, "--map-points", fmt::format("{} points (expected 5 to 61)", options.map_points));
   TranslateInputs in;
   in.law = parse_simulation_model(options.model);
-  const std::vector<double> at = parse_times(options.at);
-  if (at.size() != 1) throw io::InputError(where, 0, "--at", "expected one time");
-  in.at = at.front();
+  in.at = parse_one_time(options.at, "--at");
   if (options.vary.empty()) throw io::InputError(where, 0, "--vary", "expected at least one PARAM=LOW:HIGH");
   if (options.solve && !options.between) throw io::InputError(where, 0, "--solve", "only with --between");
   if (options.grid && options.between)

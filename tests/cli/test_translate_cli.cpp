@@ -157,28 +157,31 @@ TEST_CASE("translate --map: units as a reader writes them, Pa\u00b7s\u207f for a
   spreadfit::svg_test::check_renders(svg, 900, "translate-map-consistency");
 }
 
-TEST_CASE("translate: bad --between, --solve, --map and --map-points exit 2 naming the option") {
+TEST_CASE("translate: bad --at, --between, --solve, --map and --map-points exit 2 naming the option") {
   TempDir dir;
   const auto rig = dir.write("slump.toml", slump_rig);
-  const std::string base =
-      "translate " + quoted(rig.string()) + " --model bingham --vary 'yield_stress=10:500' --at 300";
+  const std::string base = "translate " + quoted(rig.string()) + " --model bingham --vary 'yield_stress=10:500'";
   const std::string map = " --map " + quoted((dir.path() / "m.svg").string());
   const struct {
     std::string extra, field;
   } cases[] = {
-      {"--set viscosity=5 --between 5cm", "--between"},
-      {"--set viscosity=5 --between '3 Pa:5 cm'", "--between"},
-      {"--set viscosity=5 --between '5 cm:3 cm'", "--between"},
-      {"--set viscosity=5 --between '3 cm:5 cm' --solve viscosity", "--solve viscosity"},
-      {"--set viscosity=5 --solve yield_stress", "--solve"},
-      {"--set viscosity=5" + map, "--map"},
-      {"--vary viscosity=1:5 --map-points 3" + map, "--map-points"},
+      {"--set viscosity=5 --at 300 --between 5cm", "--between"},
+      {"--set viscosity=5 --at 300 --between '3 Pa:5 cm'", "--between"},
+      {"--set viscosity=5 --at 300 --between '5 cm:3 cm'", "--between"},
+      {"--set viscosity=5 --at 300 --between '3 cm:5 cm' --solve viscosity", "--solve viscosity"},
+      {"--set viscosity=5 --at 300 --solve yield_stress", "--solve"},
+      {"--set viscosity=5 --at 300" + map, "--map"},
+      {"--vary viscosity=1:5 --at 300 --map-points 3" + map, "--map-points"},
+      {"--set viscosity=5 --at -3", "--at"},
+      {"--set viscosity=5 --at '3 x'", "--at"},
+      {"--set viscosity=5 --at 10,20", "--at"},
   };
   for (const auto& c : cases) {
     const Run bad = run_spreadfit(dir, base + " " + c.extra);
     INFO(bad.command << "\n" << bad.err);
     CHECK(bad.exit_code == 2);
     CHECK(bad.err.find(c.field) != std::string::npos);
+    CHECK(bad.err.find("--times") == std::string::npos);  // the option given, not simulate's
     CHECK(bad.out.empty());
   }
   CHECK_FALSE(std::filesystem::exists(dir.path() / "m.svg"));
