@@ -64,16 +64,70 @@ bool finite_difference_jacobian(const ResidualFunction& f, const Eigen::VectorXd
   return std::all_of(ok.begin(), ok.end(), [](char c) { return c != 0; });
 }
 
+namespace {
+
+// The result's end: status, message and the flags they imply.
+LmResult& end_search(LmResult& out, LmStatus status, const char* message) {
+  out.status = status;
+  out.message = message;
+  out.converged = status == LmStatus::CostTolerance || status == LmStatus::StepTolerance ||
+                  status == LmStatus::DecreaseTolerance || status == LmStatus::Stall || status == LmStatus::NoDecrease;
+  out.model_failed = status == LmStatus::ModelFailedAtStart || status == LmStatus::ModelFailedDifferentiating;
+  return out;
+}
+
+LmResult& failed_differentiating(LmResult& out) {
+  return end_search(out, LmStatus::ModelFailedDifferentiating, "the model failed while differentiating");
+}
+
+// Active set: a parameter on a bound that the gradient pushes further out is held there (its row and column of
+// J^T J decoupled, its gradient zeroed), so the step and the convergence test concern the free parameters only.
+void hold_parameters_on_bounds(const Eigen::VectorXd& x, const Eigen::VectorXd& lower, const Eigen::VectorXd& upper,
+                               Eigen::MatrixXd& JtJ, Eigen::VectorXd& g) {
+  for (Eigen::Index j = 0; j < g.size(); ++j) {
+    const double span = upper[j] - lower[j];
+    const bool at_lower = x[j] <= lower[j] + 1e-9 * span && g[j] > 0;
+    const bool at_upper = x[j] >= upper[j] - 1e-9 * span && g[j] < 0;
+    if (at_lower || at_upper) {
+      const double d = std::max(JtJ(j, j), 1e-300);
+      JtJ.row(j).setZero();
+      JtJ.col(j).setZero();
+      JtJ(j, j) = d;
+      g[j] = 0.0;
+    }
+  }
+}
+
+// Statistical convergence: the undamped Gauss-Newton step would lower the cost by 0.5 g^T (J^T J)^-1 g; once that
+// is a negligible fraction of the residual variance s^2 = |r|^2 / (m - p), further steps move the parameters by a
+// negligible fraction of their standard errors (the objective's numerical noise would otherwise keep the
+// iteration busy for nothing).
+bool gauss_newton_decrease_negligible(const Eigen::MatrixXd& JtJ, const Eigen::VectorXd& g, const Eigen::VectorXd& r,
+                                      double tolerance) {
+  const Eigen::Index m = r.size(), p = g.size();
+  const double s2 = r.squaredNorm() / double(std::max<Eigen::Index>(1, m - p));
+  const Eigen::VectorXd gn = JtJ.completeOrthogonalDecomposition().solve(g);
+  const double predicted = 0.5 * g.dot(gn);
+  return std::isfinite(predicted) && predicted <= tolerance * s2;
+}
+
+// The damped step -(J^T J + lambda D)^-1 g, D Marquardt's scaling: each parameter damped by its own curvature
+// (floored so a flat direction is damped too).
+Eigen::VectorXd damped_step(const Eigen::MatrixXd& JtJ, const Eigen::VectorXd& g, double lambda) {
+  Eigen::MatrixXd A = JtJ;
+  const double floor = 1e-12 * std::max(JtJ.diagonal().maxCoeff(), 1e-300);
+  for (Eigen::Index j = 0; j < A.rows(); ++j) A(j, j) += lambda * std::max(JtJ(j, j), floor);
+  return -A.ldlt().solve(g);
+}
+
+}  // namespace
+
 LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x0, const Eigen::VectorXd& lower,
                              const Eigen::VectorXd& upper, const LmOptions& o) {
   LmResult out;
   out.x = x0.cwiseMax(lower).cwiseMin(upper);
-  if (!f(out.x, out.r)) {
-    out.message = "the model could not be evaluated at the starting point";
-    out.model_failed = true;
-    out.status = LmStatus::ModelFailedAtStart;
-    return out;
-  }
+  if (!f(out.x, out.r))
+    return end_search(out, LmStatus::ModelFailedAtStart, "the model could not be evaluated at the starting point");
   out.cost = 0.5 * out.r.squaredNorm();
   double lambda = -1.0;
   int stalls = 0;
@@ -93,73 +147,32 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
   };
   for (out.iterations = 0; out.iterations < o.max_iterations; ++out.iterations) {
     if ((!fresh && (o.broyden_refresh <= 1 || since_refresh >= o.broyden_refresh || out.jacobian.size() == 0)) &&
-        !refresh()) {
-      out.message = "the model failed while differentiating";
-      out.model_failed = true;
-      out.status = LmStatus::ModelFailedDifferentiating;
-      return out;
-    }
+        !refresh())
+      return failed_differentiating(out);
     Eigen::MatrixXd JtJ = out.jacobian.transpose() * out.jacobian;
     Eigen::VectorXd g = out.jacobian.transpose() * out.r;
-    // Active set: a parameter on a bound that the gradient pushes further out is held there (its row and column
-    // decoupled), so the step and the convergence test concern the free parameters only.
-    for (Eigen::Index j = 0; j < g.size(); ++j) {
-      const double span = upper[j] - lower[j];
-      const bool at_lower = out.x[j] <= lower[j] + 1e-9 * span && g[j] > 0;
-      const bool at_upper = out.x[j] >= upper[j] - 1e-9 * span && g[j] < 0;
-      if (at_lower || at_upper) {
-        const double d = std::max(JtJ(j, j), 1e-300);
-        JtJ.row(j).setZero();
-        JtJ.col(j).setZero();
-        JtJ(j, j) = d;
-        g[j] = 0.0;
-      }
-    }
+    hold_parameters_on_bounds(out.x, lower, upper, JtJ, g);
     if (lambda < 0) lambda = o.initial_damping * JtJ.diagonal().maxCoeff();
-    // Statistical convergence: the undamped Gauss-Newton step would lower the cost by 0.5 g^T (J^T J)^-1 g; once
-    // that is a negligible fraction of the residual variance s^2 = |r|^2 / (m - p), further steps move the
-    // parameters by a negligible fraction of their standard errors (the objective's numerical noise would
-    // otherwise keep the iteration busy for nothing).
-    {
-      const Eigen::Index m = out.r.size(), p = out.x.size();
-      const double s2 = out.r.squaredNorm() / double(std::max<Eigen::Index>(1, m - p));
-      const Eigen::VectorXd gn = JtJ.completeOrthogonalDecomposition().solve(g);
-      const double predicted = 0.5 * g.dot(gn);
-      if (std::isfinite(predicted) && predicted <= o.decrease_tolerance * s2) {
-        if (!fresh && o.confirm_on_update) {  // judged on an updated Jacobian: confirm with a true one
-          if (!refresh()) {
-            out.message = "the model failed while differentiating";
-            out.model_failed = true;
-            out.status = LmStatus::ModelFailedDifferentiating;
-            return out;
-          }
-          --out.iterations;
-          continue;
-        }
-        out.converged = true;
-        out.status = LmStatus::DecreaseTolerance;
-        out.message = "predicted decrease below decrease_tolerance of the residual variance";
-        return out;
+    if (gauss_newton_decrease_negligible(JtJ, g, out.r, o.decrease_tolerance)) {
+      if (!fresh && o.confirm_on_update) {  // judged on an updated Jacobian: confirm with a true one
+        if (!refresh()) return failed_differentiating(out);
+        --out.iterations;
+        continue;
       }
+      return end_search(out, LmStatus::DecreaseTolerance,
+                        "predicted decrease below decrease_tolerance of the residual variance");
     }
     bool accepted = false;
     // A true Jacobian gets twelve ever more damped tries; an updated one two, then a true one is computed (a
     // residual call a try either way, and a poor model of the residuals fails at every damping).
     const int attempts = fresh ? 12 : 2;
     for (int attempt = 0; attempt < attempts && !accepted; ++attempt) {
-      Eigen::MatrixXd A = JtJ;
-      // Marquardt's scaling: damp each parameter by its own curvature (floored so a flat direction is damped too).
-      const double floor = 1e-12 * std::max(JtJ.diagonal().maxCoeff(), 1e-300);
-      for (Eigen::Index j = 0; j < A.rows(); ++j) A(j, j) += lambda * std::max(JtJ(j, j), floor);
-      const Eigen::VectorXd dx = -A.ldlt().solve(g);
+      const Eigen::VectorXd dx = damped_step(JtJ, g, lambda);
       const Eigen::VectorXd x_new = (out.x + dx).cwiseMax(lower).cwiseMin(upper);
       const double step = (x_new - out.x).cwiseAbs().maxCoeff();
       if (!(step > o.step_tolerance)) {
         if (!fresh && o.final_jacobian) refresh();
-        out.converged = true;
-        out.status = LmStatus::StepTolerance;
-        out.message = "parameter change below step_tolerance";
-        return out;
+        return end_search(out, LmStatus::StepTolerance, "parameter change below step_tolerance");
       }
       if (f(x_new, trial_r) && trial_r.allFinite()) {
         const double c = 0.5 * trial_r.squaredNorm();
@@ -183,13 +196,11 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
           lambda = std::max(lambda / 5.0, 1e-12);
           accepted = true;
           if (decrease < o.cost_tolerance || stalls >= 3) {
-            out.converged = true;
-            out.status = stalls >= 3 ? LmStatus::Stall : LmStatus::CostTolerance;
-            out.message = stalls >= 3 ? "cost stationary within the residual variance (stall_tolerance)"
-                                      : "relative cost decrease below cost_tolerance";
             // Keep the Jacobian at the final point for the covariance.
             if (o.final_jacobian) finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
-            return out;
+            return stalls >= 3 ? end_search(out, LmStatus::Stall,
+                                            "cost stationary within the residual variance (stall_tolerance)")
+                               : end_search(out, LmStatus::CostTolerance, "relative cost decrease below cost_tolerance");
           }
           continue;
         }
@@ -197,25 +208,15 @@ LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x
       lambda *= 4.0;
     }
     if (!accepted && !fresh) {  // an updated Jacobian may just be poor: retry with a true one
-      if (!refresh()) {
-        out.message = "the model failed while differentiating";
-        out.model_failed = true;
-        out.status = LmStatus::ModelFailedDifferentiating;
-        return out;
-      }
+      if (!refresh()) return failed_differentiating(out);
       continue;
     }
-    if (!accepted) {
-      // No damped step improves the cost: at a (numerical) minimum for this model's smoothness.
-      out.converged = true;
-      out.status = LmStatus::NoDecrease;
-      out.message = "no further decrease possible";
-      return out;
-    }
+    // No damped step improves the cost: at a (numerical) minimum for this model's smoothness.
+    if (!accepted) return end_search(out, LmStatus::NoDecrease, "no further decrease possible");
   }
-  out.status = LmStatus::MaxIterations;
-  out.message = "stopped after max_iterations (" + std::to_string(o.max_iterations) + ")";
   if (o.final_jacobian) finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
+  end_search(out, LmStatus::MaxIterations, "");
+  out.message = "stopped after max_iterations (" + std::to_string(o.max_iterations) + ")";
   return out;
 }
 
