@@ -4,7 +4,6 @@
 
 #include <algorithm>
 #include <cmath>
-#include <deque>
 #include <numbers>
 #include <opencv2/imgproc.hpp>
 #include <optional>
@@ -12,8 +11,8 @@
 
 #include "src/capture/board_homography.hpp"
 #include "src/capture/capture_error.hpp"
+#include "src/capture/frame_selection.hpp"
 #include "src/capture/measurement.hpp"
-#include "src/capture/release_detection.hpp"
 #include "src/capture/segmentation.hpp"
 
 namespace spreadfit::capture {
@@ -21,25 +20,6 @@ namespace spreadfit::capture {
 namespace {
 
 using Scale = io::CaptureSettings::Scale;
-
-struct Kept {
-  double time = 0;  ///< [s] in the video
-  int index = 0;
-  cv::Mat image;
-};
-
-/// Everything one decoding pass gives.
-struct Decoded {
-  std::vector<double> times;
-  std::vector<Kept> stills;    ///< still frames before the release
-  std::vector<Kept> readings;  ///< the frame nearest each reading time
-  double release = 0;
-  bool detected = false;
-  int width = 0, height = 0;
-  double nominal_rate = 0;
-  bool from_container = true;
-  std::size_t targets_missed = 0;  ///< times given that lie after the video's end
-};
 
 double quantile(std::vector<double> v, double q) {
   if (v.empty()) return 0;
@@ -49,120 +29,6 @@ double quantile(std::vector<double> v, double q) {
 }
 
 std::string seconds(double t) { return fmt::format("{:.2f} s", t); }
-
-Decoded decode(const io::CaptureSettings& s, const CaptureOptions& o) {
-  VideoReader video(s.video);
-  Decoded out;
-  out.width = video.width();
-  out.height = video.height();
-  out.nominal_rate = video.nominal_rate();
-  // A quarter of a second between the frames compared (3 to 8 frames): slow drifts stay small, and a video
-  // needs about half a second of stillness before the release at any frame rate.
-  ReleaseOptions release_options;
-  const double rate = video.nominal_rate() > 0 ? video.nominal_rate() : 30.0;
-  release_options.lag = std::clamp(static_cast<int>(std::lround(0.25 * rate)), 3, 8);
-  ReleaseDetector detector(release_options);
-  std::optional<double> release = s.release;
-  int release_index = -1;
-  std::size_t next = 0;  // next reading time
-  auto target = [&](std::size_t k) -> std::optional<double> {
-    if (!s.times.empty()) return k < s.times.size() ? std::optional<double>(s.times[k]) : std::nullopt;
-    return static_cast<double>(k + 1) * s.every;
-  };
-  double interval = video.nominal_rate() > 0 ? 1.0 / video.nominal_rate() : 1.0 / 30.0;
-  std::size_t step = 1;     // every step-th frame before the release is a still candidate
-  std::deque<Kept> recent;  // auto release: the frames the detector saw after the release
-  // Takes a frame for the readings when it is the first at (or within half a frame before) the next time.
-  auto wanted = [&](double t) {
-    const auto next_time = target(next);
-    return release && next_time && t >= *release + *next_time - 0.5 * interval;
-  };
-  auto take = [&](Kept k) {
-    if (static_cast<int>(out.readings.size()) >= o.max_readings)
-      throw std::invalid_argument(
-          fmt::format("capture: more than {} readings asked for (expected a longer "
-                      "interval, every, or fewer times)",
-                      o.max_readings));
-    while (wanted(k.time)) ++next;  // one frame serves all the times it is nearest to
-    out.readings.push_back(std::move(k));
-  };
-  auto keep_still = [&](Kept k) {
-    if (k.index % static_cast<int>(step) != 0) return;
-    out.stills.push_back(std::move(k));
-    if (out.stills.size() > 16) {  // keep 8 spread over the still start, and take half as many from now on
-      std::vector<Kept> thinned;
-      for (std::size_t i = 0; i < out.stills.size(); i += 2) thinned.push_back(std::move(out.stills[i]));
-      out.stills = std::move(thinned);
-      step *= 2;
-    }
-  };
-
-  while (video.grab()) {
-    if (video.index() >= o.max_frames)
-      throw std::invalid_argument(fmt::format("capture: the video has more than {} frames", o.max_frames));
-    const double t = video.time();
-    if (!out.times.empty() && video.index() > 0)
-      interval = (t - out.times.front()) / static_cast<double>(video.index());
-    out.times.push_back(t);
-    if (!release) {  // detecting: every frame is looked at until something moves
-      Kept k{t, video.index(), video.retrieve()};
-      recent.push_back(Kept{t, k.index, k.image});
-      if (recent.size() > 8) recent.pop_front();
-      const bool done = detector.add(k.image, t);
-      keep_still(std::move(k));
-      if (done) {
-        release = detector.release_time();
-        release_index = detector.release_index();
-        out.detected = true;
-        for (Kept& r : recent)
-          if (r.index >= release_index && wanted(r.time)) take(std::move(r));
-      }
-      continue;
-    }
-    if (t < *release - 1.5 * interval) {
-      if (video.index() % static_cast<int>(step) == 0) keep_still(Kept{t, video.index(), video.retrieve()});
-      continue;
-    }
-    if (wanted(t)) take(Kept{t, video.index(), video.retrieve()});
-    if (!target(next)) break;  // every time given is read: the rest of the video is not needed
-  }
-  out.from_container = video.timestamps_from_container();
-  if (out.times.empty()) throw std::runtime_error("cannot be read as a video (no frame decodes)");
-
-  if (!release && detector.moving_from_start())
-    throw NotFoundInVideo(
-        "release not detectable: the video does not start still (expected a second or so of the plate before "
-        "the ring or gate moves; or give the time, such as release = \"2.4 s\", in [capture])");
-  if (!release)
-    throw NotFoundInVideo(
-        "no release found: nothing moves in the video after its still start (expected the ring or gate to be "
-        "lifted in view; or give the time, such as release = \"2.4 s\", in [capture])");
-  out.release = *release;
-  if (out.detected) {
-    std::erase_if(out.stills, [&](const Kept& k) { return k.index >= release_index - 1; });
-    if (release_index <= release_options.lag + 1 || out.stills.empty())
-      throw NotFoundInVideo(
-          "release not detectable: the video does not start still (expected a second or so of the plate before "
-          "the ring or gate moves; or give the time, such as release = \"2.4 s\", in [capture])");
-  } else {
-    if (*release > out.times.back())
-      throw std::invalid_argument(fmt::format("capture.release: {} is after the video's end ({})", seconds(*release),
-                                              seconds(out.times.back())));
-    std::erase_if(out.stills, [&](const Kept& k) { return k.time >= *release - 1.5 * interval; });
-    if (out.stills.empty())
-      throw std::invalid_argument(fmt::format(
-          "capture.release: {} leaves no still frame before the release (expected at least one frame of the "
-          "plate before the ring or gate moves)",
-          seconds(*release)));
-  }
-  if (!s.times.empty()) out.targets_missed = s.times.size() - std::min(next, s.times.size());
-  if (out.readings.empty())
-    throw NotFoundInVideo(
-        fmt::format("no reading: the video ends {} after the release, before the first reading "
-                    "time ({})",
-                    seconds(out.times.back() - out.release), seconds(*target(0))));
-  return out;
-}
 
 /// Every pixel of a frame-sized mask that is non-zero, subsampled to about `limit` points.
 std::vector<cv::Point> mask_points(const cv::Mat& mask, std::size_t limit = 20000) {
@@ -311,7 +177,7 @@ int hidden_margin(const cv::Mat& background, const cv::Mat& holes, const cv::Rec
 
 /// The decoding pass's facts about the video (size, frames, timing, release) into the result, with the notes a
 /// reader of the readings needs: times from the nominal rate, frames dropped, reading times after the end.
-void record_timing(const Decoded& video, CaptureResult& result) {
+void record_timing(const DecodedVideo& video, CaptureResult& result) {
   result.width = video.width;
   result.height = video.height;
   result.frames = static_cast<int>(video.times.size());
@@ -342,7 +208,7 @@ struct StillStart {
 
 /// The still start from up to 7 of the kept still frames, taken evenly from first to last, so that the median
 /// sees the whole still start.
-StillStart still_start(const Decoded& video) {
+StillStart still_start(const DecodedVideo& video) {
   std::vector<cv::Mat> stills;
   const std::size_t use = std::min<std::size_t>(video.stills.size(), 7);
   for (std::size_t i = 0; i < use; ++i)
@@ -401,7 +267,7 @@ struct LateChange {
 /// The late frame's change: the sample's whole spread (and the ring or gate, gone since the still start). The
 /// threshold is 5 times the noise of |d| over the three colours (sqrt(3) times one colour's), and at least 10
 /// grey levels.
-LateChange late_change(const Decoded& video, const StillStart& still, cv::Size frame_size) {
+LateChange late_change(const DecodedVideo& video, const StillStart& still, cv::Size frame_size) {
   LateChange c;
   c.late = video.readings.back().image;
   const cv::Mat& late = c.late;
@@ -566,13 +432,13 @@ ChannelLayout channel_axis(const io::CaptureSettings& s, const ChannelRig& chann
 
 /// Channel: which way the sample flows, the end that moved between an earlier reading and the last one; the
 /// other end (the sample's back) is the gate line's first guess.
-void flow_direction(const Decoded& video, const StillStart& still, const LateChange& late, const PlaneMap& map,
+void flow_direction(const DecodedVideo& video, const StillStart& still, const LateChange& late, const PlaneMap& map,
                     cv::Size frame_size, ChannelLayout& c) {
   if (video.readings.size() < 2)
     throw NotFoundInVideo(
         "a channel needs at least two readings to tell which way the sample flows (expected "
         "a shorter interval, every, or more times)");
-  const Kept& earlier = video.readings[video.readings.size() >= 3 ? video.readings.size() / 2 : 0];
+  const KeptFrame& earlier = video.readings[video.readings.size() >= 3 ? video.readings.size() / 2 : 0];
   const cv::Rect all(cv::Point(0, 0), frame_size);
   const cv::Mat& background = still.background;
   cv::Mat changed_earlier =
@@ -699,7 +565,7 @@ SampleMasks channel_masks(const StillStart& still, const LateChange& late, Chann
 /// Channel: the layout stage by stage (axis and scale, flow direction, sides, position maps, gate line), then
 /// the masks.
 SampleMasks channel_sample_masks(const io::CaptureSettings& s, const ChannelRig& channel, const CaptureOptions& o,
-                                 const Decoded& video, const StillStart& still, const LateChange& late,
+                                 const DecodedVideo& video, const StillStart& still, const LateChange& late,
                                  cv::Size frame_size, PlaneMap& map, CaptureResult& result) {
   ChannelLayout c = channel_axis(s, channel, late, map, result);
   flow_direction(video, still, late, map, frame_size, c);
@@ -762,7 +628,7 @@ struct MeasureContext {
 /// One kept frame measured: its sample fraction against the reference, the mask (f > 1/2, in a channel also a
 /// strong change in the gate band; the parts touching the sure sample, holes filled, in a channel only what
 /// counts), its outline, and the diameter of its area (plate) or the front along the middle band (channel).
-CapturedReading measure_frame(const Kept& k, const MeasureContext& x) {
+CapturedReading measure_frame(const KeptFrame& k, const MeasureContext& x) {
   const SampleMasks& m = x.masks;
   const cv::Rect& roi = x.late.roi;
   const bool channel = !x.plate;
@@ -800,11 +666,11 @@ CapturedReading measure_frame(const Kept& k, const MeasureContext& x) {
 /// Every kept frame measured, in time order. A reading whose outline touches the frame's edge is left out, with
 /// one warning from the first; none left is NotFoundInVideo. A plate outline that is far from round is a warning
 /// naming the worst.
-void measure_readings(const Decoded& video, const CaptureOptions& o, const MeasureContext& context,
+void measure_readings(const DecodedVideo& video, const CaptureOptions& o, const MeasureContext& context,
                       CaptureResult& result) {
   double worst_round = 0, worst_round_time = 0;
   std::optional<double> edge_time;
-  for (const Kept& k : video.readings) {
+  for (const KeptFrame& k : video.readings) {
     CapturedReading r = measure_frame(k, context);
     if (context.plate && r.ellipticity > worst_round) worst_round = r.ellipticity, worst_round_time = r.time;
     if (r.at_edge) {
@@ -840,7 +706,7 @@ CaptureResult capture_readings(const io::CaptureSettings& s, const Rig& rig, con
 
   CaptureResult result;
   result.reading = plate ? Reading::Diameter : Reading::Front;
-  const Decoded video = decode(s, o);
+  const DecodedVideo video = decode_video(s, o);
   record_timing(video, result);
   const cv::Size frame_size(video.width, video.height);
   const StillStart still = still_start(video);
