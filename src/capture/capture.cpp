@@ -28,8 +28,6 @@ double quantile(std::vector<double> v, double q) {
   return v[k];
 }
 
-std::string seconds(double t) { return fmt::format("{:.2f} s", t); }
-
 /// Every pixel of a frame-sized mask that is non-zero, subsampled to about `limit` points.
 std::vector<cv::Point> mask_points(const cv::Mat& mask, std::size_t limit = 20000) {
   std::vector<cv::Point> points;
@@ -281,7 +279,7 @@ LateChange late_change(const DecodedVideo& video, const StillStart& still, cv::S
         fmt::format("sample not found: the frame at {} after the release looks like the frames "
                     "before it (expected the sample to spread, and to differ from the plate "
                     "in colour or brightness)",
-                    seconds(video.readings.back().time - video.release)));
+                    seconds_text(video.readings.back().time - video.release)));
   c.outline = fill_holes(c.changed);
   c.roi = grown(cv::boundingRect(c.outline), 0.15, 12, frame_size);
   cv::dilate(c.outline, c.outline_grown, disc_kernel(std::max(8, c.roi.width / 20)));
@@ -684,7 +682,7 @@ void measure_readings(const DecodedVideo& video, const CaptureOptions& o, const 
     result.warnings.push_back(
         fmt::format("the sample reached the frame's edge at {} after the release: readings from then "
                     "on are left out (keep the whole spread in view)",
-                    seconds(*edge_time)));
+                    seconds_text(*edge_time)));
   if (result.readings.empty())
     throw NotFoundInVideo(
         "sample not found whole: it touches the frame's edge in every reading (expected the "
@@ -693,7 +691,7 @@ void measure_readings(const DecodedVideo& video, const CaptureOptions& o, const 
     result.warnings.push_back(
         fmt::format("the outline is not round: its axes differ by {:.0f}% at {} (was the ring lifted "
                     "unevenly, or the plate not level?)",
-                    100 * worst_round, seconds(worst_round_time)));
+                    100 * worst_round, seconds_text(worst_round_time)));
 }
 
 }  // namespace

@@ -3,6 +3,8 @@
 // exit code 3 (README, "Exit codes") with the one-line message, and no readings file is written.
 #pragma once
 
+#include <fmt/format.h>
+
 #include <stdexcept>
 #include <string>
 
@@ -13,5 +15,8 @@ class NotFoundInVideo : public std::runtime_error {
  public:
   using std::runtime_error::runtime_error;
 };
+
+/// A time in the video as capture's messages write it, e.g. "2.40 s".
+inline std::string seconds_text(double t) { return fmt::format("{:.2f} s", t); }
 
 }  // namespace spreadfit::capture

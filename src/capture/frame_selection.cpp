@@ -17,8 +17,6 @@ namespace spreadfit::capture {
 
 namespace {
 
-std::string seconds(double t) { return fmt::format("{:.2f} s", t); }
-
 constexpr const char* not_still_at_start =
     "release not detectable: the video does not start still (expected a second or so of the plate before the ring "
     "or gate moves; or give the time, such as release = \"2.4 s\", in [capture])";
@@ -138,20 +136,20 @@ DecodedVideo decode_video(const io::CaptureSettings& s, const CaptureOptions& o)
     if (release_index <= release_options.lag + 1 || out.stills.empty()) throw NotFoundInVideo(not_still_at_start);
   } else {
     if (*release > out.times.back())
-      throw std::invalid_argument(fmt::format("capture.release: {} is after the video's end ({})", seconds(*release),
-                                              seconds(out.times.back())));
+      throw std::invalid_argument(fmt::format("capture.release: {} is after the video's end ({})", seconds_text(*release),
+                                              seconds_text(out.times.back())));
     std::erase_if(out.stills, [&](const KeptFrame& k) { return k.time >= *release - 1.5 * pick.interval(); });
     if (out.stills.empty())
       throw std::invalid_argument(fmt::format(
           "capture.release: {} leaves no still frame before the release (expected at least one frame of the "
           "plate before the ring or gate moves)",
-          seconds(*release)));
+          seconds_text(*release)));
   }
   if (!s.times.empty()) out.targets_missed = s.times.size() - std::min(pick.served(), s.times.size());
   if (out.readings.empty())
     throw NotFoundInVideo(fmt::format("no reading: the video ends {} after the release, before the first reading "
                                       "time ({})",
-                                      seconds(out.times.back() - out.release), seconds(*pick.target(0))));
+                                      seconds_text(out.times.back() - out.release), seconds_text(*pick.target(0))));
   return out;
 }
 
