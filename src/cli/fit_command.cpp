@@ -156,7 +156,7 @@ report::FitOutcome fit_material(std::vector<io::TestDescription> tests, const st
     fit::FitOptions first_pass = options;
     if (prior && (!law || has_flow_index(*law))) first_pass.likelihood_draws = 0;
     if (law) {
-      o.candidates.push_back(fit::fit_law(series, *law, first_pass));
+      o.candidates.push_back(fit::fit_named(series, *law, first_pass));
       o.chosen = o.candidates.front().converged() ? 0 : -1;
     } else {
       fit::ModelChoice choice = fit_auto(series, first_pass);

@@ -18,6 +18,29 @@ using std::numbers::pi;
 constexpr double default_sigma = 1e-3;  // a ruler read to the millimetre (common practice, no source)
 }  // namespace
 
+std::optional<std::string> partial_yield(const TestSetup& setup, double reading) {
+  // The relation assumes the whole sample yielded into the plastic profile. That profile is taller at its root
+  // than the sample was when released unless it reaches far enough: on the channel its wall height 3A/(2L) is at
+  // most the block's A/L0 from L = 1.5 L0 on; on the plate its centre height 15V/(8 pi R^2) is at most the
+  // cylinder's V/(pi R0^2) from R = sqrt(15/8) R0 on. A shorter arrest is a sample that yielded only in part,
+  // stiffer than the relation says (the thin-film model's arrested extents hold the relation within 1% beyond
+  // those lengths and fall short of it inside them, tests/fit/test_final_only.cpp): the reading bounds the yield
+  // stress from below only.
+  // The smallest reading, in the rig's own terms, that the relation holds at.
+  const std::optional<double> needed = std::visit(
+      overloaded{[&](const ChannelRig& c) -> std::optional<double> { return 0.5 * c.reservoir_length; },
+                 [&](const PlateRig& p) -> std::optional<double> {
+                   return std::sqrt(15.0 / 8.0) * p.ring_radius * (setup.reading == Reading::Diameter ? 2.0 : 1.0);
+                 },
+                 [](const auto&) -> std::optional<double> { return std::nullopt; }},
+      setup.rig);
+  if (!needed || reading >= *needed) return std::nullopt;
+  return fmt::format(
+      "the sample stopped too soon for all of it to have yielded (the plastic-limit relation needs a {} of at "
+      "least {:.3g} mm): the reading gives only a lower bound on the yield stress",
+      reading_name(setup.reading), *needed * 1e3);
+}
+
 FitResult fit_final_reading(const TestSetup& setup, double reading, std::optional<double> sigma) {
   FitResult out;
   out.law = Law::Bingham;
@@ -93,20 +116,28 @@ FitResult fit_final_reading(const TestSetup& setup, double reading, std::optiona
         "surface tension, ignored here, shortens the spread, so this yield stress reads high",
         deepest * 1e3, 3.0 * capillary_length * 1e3));
   const double se = dlog_tau * out.sigma;
-  out.parameters.push_back(ParameterEstimate{.name = std::string(parameter_name(Parameter::YieldStress)),
-                                             .unit = std::string(parameter_info(Parameter::YieldStress).unit),
-                                             .value = tau,
-                                             .lower = tau * std::exp(-1.96 * se),
-                                             .upper = tau * std::exp(1.96 * se)});
+  ParameterEstimate estimate{.name = std::string(parameter_name(Parameter::YieldStress)),
+                             .unit = std::string(parameter_info(Parameter::YieldStress).unit),
+                             .value = tau,
+                             .lower = tau * std::exp(-1.96 * se),
+                             .upper = tau * std::exp(1.96 * se)};
+  const std::optional<std::string> partial = partial_yield(setup, reading);
+  if (partial) {
+    estimate.value = estimate.lower;
+    estimate.upper = std::numeric_limits<double>::infinity();
+    estimate.upper_open = true;
+    out.warnings.push_back(*partial);
+  }
+  out.parameters.push_back(estimate);
   out.names = {std::string(parameter_name(Parameter::YieldStress))};
   out.material.yield_stress = tau;
   out.correlation = Eigen::MatrixXd::Identity(1, 1);
   out.status = FitStatus::Converged;
   out.aicc = std::numeric_limits<double>::quiet_NaN();  // one reading, no curve: no AICc and no residual to report
   out.rmse = std::numeric_limits<double>::quiet_NaN();
-  out.warnings.push_back(
-      "estimated from a single final reading by the plastic-limit relation: it assumes the sample had stopped and "
-      "had yielded throughout; no viscosity or flow index can be estimated");
+  out.warnings.push_back(fmt::format("estimated from a single final reading by the plastic-limit relation: it assumes "
+                                     "the sample had stopped{}; no viscosity or flow index can be estimated",
+                                     partial ? "" : " and had yielded throughout"));
   return out;
 }
 

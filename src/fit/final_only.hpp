@@ -9,12 +9,17 @@
 #pragma once
 
 #include <optional>
+#include <string>
 
 #include "src/fit/fit_types.hpp"
 
 namespace spreadfit::fit {
 
-/// Estimates the yield stress; status NotIdentifiable when the reading is outside the relation's range
+/// A plain warning when `reading` is an arrest too short for the whole sample to have yielded (channel and
+/// plate), where the plastic-limit relation bounds the yield stress from below only; nullopt otherwise.
+std::optional<std::string> partial_yield(const TestSetup& setup, double reading);
+
+/// Estimates the yield stress (a lower bound only, upper_open, where partial_yield warns); status NotIdentifiable when the reading is outside the relation's range
 /// (e.g. no slump at all: only a lower bound would follow).
 FitResult fit_final_reading(const TestSetup& setup, double reading, std::optional<double> sigma);
 

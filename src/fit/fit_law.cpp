@@ -243,12 +243,25 @@ bool arrested_yield_stress(const std::vector<FitSeries>& series, const FitProble
   // -3 on a channel, so that 1% (taken as a 95% bound) is added to the reading's own uncertainty in log space.
   const double model_sd = *exponent * 0.01 / 1.959964;
   ParameterEstimate tau = arrested.parameters.front();
-  const double reading_sd = std::log(tau.upper / tau.lower) / (2.0 * 1.959964);
-  const double half = 1.959964 * std::sqrt(reading_sd * reading_sd + model_sd * model_sd);
-  tau.lower = tau.value * std::exp(-half);
-  tau.upper = tau.value * std::exp(half);
+  if (tau.upper_open) {
+    // Stopped too soon for the relation to hold (partial_yield): a lower bound, taken 1% lower still.
+    tau.lower *= std::exp(-model_sd * 1.959964);
+    tau.value = tau.lower;
+    if (const std::optional<std::string> why = partial_yield(s.setup, mean)) out.warnings.push_back(*why);
+  } else {
+    const double reading_sd = std::log(tau.upper / tau.lower) / (2.0 * 1.959964);
+    const double half = 1.959964 * std::sqrt(reading_sd * reading_sd + model_sd * model_sd);
+    tau.lower = tau.value * std::exp(-half);
+    tau.upper = tau.value * std::exp(half);
+  }
   for (ParameterEstimate& e : out.parameters)
     if (is_parameter(e.name, Parameter::YieldStress)) {
+      // The curve's own finding on the yield stress (undetermined, or open on a side) no longer applies.
+      const std::string about = " " + plain_name(e.name) + " ";
+      std::erase_if(out.warnings, [&](const std::string& w) {
+        return w.find(about) != std::string::npos &&
+               (w.find("not determined") != std::string::npos || w.find("set no") != std::string::npos);
+      });
       e = tau;
       out.warnings.push_back(fmt::format(
           "the sample was at rest from the first reading on (readings within {:.2g} mm, as scattered as the "
@@ -763,29 +776,66 @@ std::vector<Law> simpler_relatives(Law law) {
     case Law::Newtonian: return {};
     case Law::PowerLaw: return {Law::Newtonian};
     case Law::Bingham: return {Law::Newtonian};
-    case Law::HerschelBulkley: return {Law::PowerLaw, Law::Bingham};
+    case Law::HerschelBulkley: return {Law::Bingham, Law::PowerLaw};
   }
   return {};
 }
-}  // namespace
 
-ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& options) {
+/// Whether `law` is `of` or one of its special cases (all the way down).
+bool is_relative(Law law, Law of) {
+  if (law == of) return true;
+  for (const Law r : simpler_relatives(of))
+    if (is_relative(law, r)) return true;
+  return false;
+}
+
+/// Quick fits (quadratic intervals) of `law` and of all its special cases, in all_laws() order (every law after
+/// its simpler relatives), each started from its simpler relatives' fits: the candidates of fit_auto, and of a
+/// named law.
+ModelChoice quick_candidates(const std::vector<FitSeries>& series, const FitOptions& options, Law law) {
   ModelChoice choice;
-  // Every law is fitted with quadratic intervals, for the comparison by AICc; nested laws start from their
-  // simpler relatives (Newtonian -> power law, Bingham -> Herschel-Bulkley).
   FitOptions quick = options;
   quick.profile_intervals = false;
-  // all_laws() lists every law after its simpler relatives, so each start is fitted before the law it starts.
-  for (const Law law : all_laws()) {
+  for (const Law l : all_laws()) {
+    if (!is_relative(l, law)) continue;
     std::vector<FitResult> starts;
-    for (const Law relative : simpler_relatives(law)) starts.push_back(*choice.candidate(relative));
-    choice.candidates.push_back(fit_law(series, law, quick, starts));
+    for (const Law relative : simpler_relatives(l)) starts.push_back(*choice.candidate(relative));
+    choice.candidates.push_back(fit_law(series, l, quick, starts));
   }
+  return choice;
+}
+
+/// The reported fit of `law` with the options' intervals, started from its quick candidate and its simpler
+/// relatives' (as fitted): that candidate has been through the global stage and the polish already, so the box is
+/// not searched again unless it failed; a candidate stopped on the iteration limit in a flat valley goes on from
+/// where it stopped. Its solves include its own and the candidate's (a caller adds the other candidates').
+FitResult refit_reported(const std::vector<FitSeries>& series, const FitOptions& options, const ModelChoice& quick,
+                         Law law) {
+  const FitResult& candidate = *quick.candidate(law);
+  std::vector<FitResult> starts{candidate};
+  for (const Law relative : simpler_relatives(law)) starts.push_back(*quick.candidate(relative));
+  FitOptions reported = options;
+  if (candidate.converged()) reported.global_evaluations = 0;
+  FitResult r = fit_law(series, law, reported, starts);
+  r.evaluations += candidate.evaluations;
+  return r;
+}
+}  // namespace
+
+FitResult fit_named(const std::vector<FitSeries>& series, Law law, const FitOptions& options) {
+  if (simpler_relatives(law).empty()) return fit_law(series, law, options);
+  const ModelChoice quick = quick_candidates(series, options, law);
+  FitResult r = refit_reported(series, options, quick, law);
+  for (const FitResult& c : quick.candidates)
+    if (c.law != law) r.evaluations += c.evaluations;
+  return r;
+}
+
+ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& options) {
+  // Every law is fitted with quadratic intervals, for the comparison by AICc; nested laws start from their
+  // simpler relatives (Newtonian -> power law, Bingham -> Herschel-Bulkley).
+  ModelChoice choice = quick_candidates(series, options, Law::HerschelBulkley);
   auto index_of = [&](Law law) { return choice.index_of(law); };
-  // The starts of the general fit below: the candidates as fitted, before the general fit replaces its own.
-  const std::vector<FitResult> liquid_starts{*choice.candidate(Law::Newtonian)};
-  const std::vector<FitResult> general_starts{*choice.candidate(Law::HerschelBulkley), *choice.candidate(Law::Bingham),
-                                              *choice.candidate(Law::PowerLaw)};
   double best = std::numeric_limits<double>::infinity();
   for (const FitResult& r : choice.candidates)
     if (r.converged()) best = std::min(best, r.aicc);
@@ -816,14 +866,7 @@ ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& opt
   const int newtonian_index = index_of(Law::Newtonian);
   const bool liquid = choice.best_description == newtonian_index;
   const int reported = liquid ? newtonian_index : index_of(Law::HerschelBulkley);
-  // The candidate of that law has already been through the global stage and the polish: start from it (and its
-  // relatives) instead of searching the box again.
-  FitOptions general_options = options;
-  if (choice.candidates[std::size_t(reported)].converged()) general_options.global_evaluations = 0;
-  FitResult general = fit_law(series, choice.candidates[std::size_t(reported)].law, general_options,
-                              liquid ? liquid_starts : general_starts);
-  // The general fit's solves include its own only; a caller adds the candidates' (fit.evaluations in the JSON).
-  general.evaluations += choice.candidates[std::size_t(reported)].evaluations;
+  FitResult general = refit_reported(series, options, choice, choice.candidates[std::size_t(reported)].law);
   const bool usable = general.status == FitStatus::Converged;
   if (usable) {
     choice.candidates[std::size_t(reported)] = std::move(general);

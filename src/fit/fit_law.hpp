@@ -35,6 +35,12 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
 /// the draws of the first fit unless that fit is the one reported.
 FitResult with_likelihood_draws(const std::vector<FitSeries>& series, FitResult fit, const FitOptions& options);
 
+/// Fits a law the user named, as fit_auto fits the law it reports: its special cases first (the power law and
+/// Bingham for Herschel-Bulkley, Newtonian for those two; quadratic intervals), then the law from the best of them
+/// and its own first fit, so that a named law and `auto` give the same answer for the same law. Laws without
+/// special cases (Newtonian) are fitted once. Evaluations count every fit's solves.
+FitResult fit_named(const std::vector<FitSeries>& series, Law law, const FitOptions& options = {});
+
 struct ModelChoice {
   std::vector<FitResult> candidates;  ///< every law tried, in all_laws() order
   int chosen = -1;                    ///< the reported result (index into candidates), -1 if none converged

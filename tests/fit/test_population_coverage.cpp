@@ -90,7 +90,7 @@ TEST_CASE("montecarlo: intervals over a population of shear-thinning yield-stres
           choice = fit::fit_auto({s});
           if (choice->chosen >= 0) r = &choice->candidates[std::size_t(choice->chosen)];
         } else {
-          single = fit::fit_law({s}, Law::HerschelBulkley);
+          single = fit::fit_named({s}, Law::HerschelBulkley);
           if (single->converged()) r = &*single;
         }
         Tally& t = tallies[rig + " " + mode];
