@@ -14,6 +14,7 @@
 #include <toml++/toml.h>
 
 #include "models/forward.hpp"
+#include "models/squeeze_flow.hpp"
 #include "src/io/input_error.hpp"
 #include "src/io/parameter_table.hpp"
 #include "src/io/test_time.hpp"
@@ -622,6 +623,12 @@ void DescriptionReader::read_fit(const toml::table& root, TestDescription& out) 
   }
 }
 
+// How far a squeeze reading may lie beyond the sample's starting disc (`start`: its gap, radius or diameter) by
+// reading error: three reading uncertainties, and at least 2% of it (common practice, no source).
+double squeeze_slack(double start, const std::optional<double>& resolution) {
+  return std::max(3.0 * resolution.value_or(0.0), 0.02 * start);
+}
+
 // A reading the sample's volume cannot give: spread so far that the layer would average less than 0.05 mm, a gap
 // wider than the sample is tall, a slump larger than the cylinder. Catches unit slips (a reading in mm labelled
 // cm) before any fitting; the thickness bound is common practice, no source.
@@ -641,10 +648,9 @@ void DescriptionReader::check_possible(const TestDescription& out) const {
                         },
                         [&](const SqueezeRig& q) {
                           const double radius = std::sqrt(q.volume / (std::numbers::pi * thinnest));
-                          largest = kind == Reading::Gap
-                                        ? std::max(q.initial_gap, std::cbrt(4.0 * q.volume / std::numbers::pi))
-                                        : radius * (kind == Reading::Diameter ? 2.0 : 1.0);
-                          why = kind == Reading::Gap ? "the gap would exceed the sample's starting height"
+                          largest = kind == Reading::Gap ? squeeze_initial_gap(q) + squeeze_slack(squeeze_initial_gap(q), out.resolution)
+                                                         : radius * (kind == Reading::Diameter ? 2.0 : 1.0);
+                          why = kind == Reading::Gap ? "the gap would exceed the gap the load is applied at"
                                                      : "the disc would be thinner than 0.05 mm";
                         },
                         [&](const SlumpRig& s) {
@@ -659,6 +665,21 @@ void DescriptionReader::check_possible(const TestDescription& out) const {
                          fmt::format("reading {:.4g} m is larger than the rig allows for this sample ({:.4g} m: {}); "
                                      "expected a reading in the header's unit",
                                      s.values[i], largest, why));
+  // Squeeze discs only widen: a radius or diameter below the disc the sample starts as (its volume at the initial
+  // gap) is a unit slip or a wrong initial_gap, and no material could fit it.
+  if (const SqueezeRig* q = std::get_if<SqueezeRig>(&out.setup.rig); q && kind != Reading::Gap) {
+    const double h0 = squeeze_initial_gap(*q);
+    const double start = std::sqrt(q->volume / (std::numbers::pi * h0)) * (kind == Reading::Diameter ? 2.0 : 1.0);
+    const double smallest = start - squeeze_slack(start, out.resolution);
+    for (const ReadingSeries& s : out.series)
+      for (std::size_t i = 0; i < s.values.size(); ++i)
+        if (s.values[i] < smallest)
+          throw InputError(s.source, i < s.lines.size() ? s.lines[i] : 0, std::string(reading_name(s.kind)),
+                           fmt::format("reading {:.4g} m is smaller than the disc the sample starts as ({:.4g} m: "
+                                       "its volume at the {} gap of {:.4g} m; the disc only widens); expected a "
+                                       "reading in the header's unit, or the rig's initial_gap",
+                                       s.values[i], start, q->initial_gap > 0 ? "initial" : "default", h0));
+  }
   if (out.final_reading && *out.final_reading > largest)
     fail(0, "readings.final",
          fmt::format("final reading {:.4g} m is larger than the rig allows for this sample ({:.4g} m: {})",

@@ -555,3 +555,37 @@ TEST_CASE("capture follows a plate's diameter and a channel's front; a squeeze o
   CHECK(captured_outline(SqueezeRig{}) == CapturedOutline::None);
   CHECK(captured_outline(SlumpRig{}) == CapturedOutline::None);
 }
+
+TEST_CASE("io: squeeze readings the starting disc rules out are refused with their line") {
+  // 2 mL loaded at an 8 mm gap starts as a disc of diameter 2 sqrt(V / (pi h0)) = 17.84 mm (arithmetic): the gap
+  // only closes and the disc only widens, beyond the reading error (3 resolutions, at least 2%).
+  spreadfit::io::test::TempDir dir;
+  const std::string rig = "[sample]\nid = \"X1\"\ndensity = \"1 g/mL\"\n[rig]\nkind = \"squeeze\"\nvolume = \"2 mL\"\n"
+                          "load = \"500 g\"\ninitial_gap = \"8 mm\"\n[readings]\nfile = \"run.csv\"\n"
+                          "resolution = \"0.1 mm\"\n";
+  auto error_of = [&](const std::string& csv, const std::string& reading) -> std::string {
+    dir.write("run.csv", csv);
+    try {
+      spreadfit::io::load_test_description(dir.write("t.toml", rig + "reading = \"" + reading + "\"\n"));
+    } catch (const spreadfit::io::InputError& e) {
+      return e.what();
+    }
+    return "";
+  };
+  SUBCASE("a gap above the initial gap") {
+    const std::string what = error_of("time [s],gap [mm]\n1,7.9\n2,9.5\n", "gap");
+    CHECK(what.find("run.csv:3") != std::string::npos);
+    CHECK(what.find("gap the load is applied at") != std::string::npos);
+  }
+  SUBCASE("a gap at the initial gap within the reading error is kept") {
+    CHECK(error_of("time [s],gap [mm]\n0,8.1\n2,6.5\n", "gap").empty());
+  }
+  SUBCASE("a diameter below the starting disc") {
+    const std::string what = error_of("time [s],diameter [mm]\n1,16.0\n2,19.5\n", "diameter");
+    CHECK(what.find("run.csv:2") != std::string::npos);
+    CHECK(what.find("smaller than the disc the sample starts as (0.01784 m") != std::string::npos);
+  }
+  SUBCASE("a diameter at the starting disc within the reading error is kept") {
+    CHECK(error_of("time [s],diameter [mm]\n0,17.6\n2,19.5\n", "diameter").empty());
+  }
+}
