@@ -7,6 +7,7 @@
 #include <cstdio>
 #include <cmath>
 #include <cstdlib>
+#include <limits>
 #include <numbers>
 #include <set>
 #include <string_view>
@@ -157,6 +158,7 @@ class DescriptionReader {
   void read_fit(const toml::table& root, TestDescription& out) const;
   void read_capture(const toml::table& root, TestDescription& out) const;
   void check_possible(const TestDescription& out) const;
+  void check_direction(const TestDescription& out) const;
   void check_final_reading(double value, const toml::node& node, const Rig& rig, Reading reading) const;
   void read_spec(const toml::table& root, TestDescription& out) const;
   void read_spec_table(const toml::table& spec, const std::string& section, std::vector<SpecLimit>& limits,
@@ -629,6 +631,34 @@ double squeeze_slack(double start, const std::optional<double>& resolution) {
   return std::max(3.0 * resolution.value_or(0.0), 0.02 * start);
 }
 
+// A spreading sample does not recede: a front, radius or diameter that falls (a squeeze gap that opens) by more
+// than the reading error below the furthest reading before it is kept with a warning (a typing slip, or a front
+// read at another place). Error: six resolutions, so that the noise of an arrested sample's readings about their
+// highest one does not warn, 3 mm when none is stated (common practice, no source).
+void DescriptionReader::check_direction(const TestDescription& out) const {
+  const double slack = 6.0 * out.resolution.value_or(0.5e-3);
+  for (const ReadingSeries& s : out.series) {
+    if (s.kind == Reading::Slump) continue;
+    const double sign = s.kind == Reading::Gap ? -1.0 : 1.0;  // a gap closes
+    double furthest = -std::numeric_limits<double>::infinity();
+    for (std::size_t i = 0; i < s.values.size(); ++i) {
+      const double v = sign * s.values[i];
+      if (v < furthest - slack) {
+        warnings_.push_back(InputError(s.source, i < s.lines.size() ? s.lines[i] : 0, std::string(reading_name(s.kind)),
+                                       fmt::format("reading {:.4g} mm {} the {:.4g} mm read earlier by more than the "
+                                                   "reading error ({:.2g} mm): {}; a typing slip?",
+                                                   s.values[i] * 1e3, sign > 0 ? "falls below" : "rises above",
+                                                   sign * furthest * 1e3, slack * 1e3,
+                                                   sign > 0 ? "a spreading sample does not recede"
+                                                            : "the gap only closes under the load"))
+                                .what());
+        break;  // one warning a series
+      }
+      furthest = std::max(furthest, v);
+    }
+  }
+}
+
 // A reading the sample's volume cannot give: spread so far that the layer would average less than 0.05 mm, a gap
 // wider than the sample is tall, a slump larger than the cylinder. Catches unit slips (a reading in mm labelled
 // cm) before any fitting; the thickness bound is common practice, no source.
@@ -680,6 +710,7 @@ void DescriptionReader::check_possible(const TestDescription& out) const {
                                        "reading in the header's unit, or the rig's initial_gap",
                                        s.values[i], start, q->initial_gap > 0 ? "initial" : "default", h0));
   }
+  check_direction(out);
   if (out.final_reading && *out.final_reading > largest)
     fail(0, "readings.final",
          fmt::format("final reading {:.4g} m is larger than the rig allows for this sample ({:.4g} m: {})",

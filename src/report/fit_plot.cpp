@@ -385,7 +385,8 @@ double legend(Document& doc, const std::vector<View>& views, const fit::FitResul
   };
   std::vector<Entry> entries;
   for (const View& v : views) {
-    std::string text = fmt::format("{}: {} readings", v.name, v.series->times.size());
+    std::string text = fmt::format("{}: {} reading{}", v.name, v.series->times.size(),
+                                   v.series->times.size() == 1 ? "" : "s");
     if (v.sigma > 0)
       text += v.sigma_stated ? fmt::format(", bars \u00b1{}, the stated resolution", mm(v.sigma))
                              : fmt::format(", bars \u00b1{}, the fit's scatter", mm(v.sigma));

@@ -229,8 +229,8 @@ int main(int argc, char** argv) {
   constexpr unsigned seeds = 8;
   for (const Rig_& r : {rigs[0], rigs[1]}) {
     const Material truth = {20, 10.0, 0.4};
-    double hb_ms = 0, auto_ms = 0, point_ms = 0;
-    int hb_solves = 0, auto_solves = 0, point_solves = 0;
+    double hb_ms = 0, auto_ms = 0, point_ms = 0, named_ms = 0;
+    int hb_solves = 0, auto_solves = 0, point_solves = 0, named_solves = 0;
     // The point fit (quadratic intervals, no profiles, no likelihood draws): like for like with a plain
     // least-squares fit (tests/reference/bench_scipy.py prints the SciPy peer beside it).
     fit::FitOptions point;
@@ -249,6 +249,8 @@ int main(int argc, char** argv) {
       s.sigma = 5e-4;
       hb_ms += median_ms([&] { hb_solves += fit::fit_law({s}, Law::HerschelBulkley).evaluations; }, 1);
       point_ms += median_ms([&] { point_solves += fit::fit_law({s}, Law::HerschelBulkley, point).evaluations; }, 1);
+      // What --model herschel-bulkley runs: the special cases first, as auto does (fit_named).
+      named_ms += median_ms([&] { named_solves += fit::fit_named({s}, Law::HerschelBulkley).evaluations; }, 1);
       fit::ModelChoice c;
       auto_ms += median_ms([&] { c = fit::fit_auto({s}); }, 1);
       for (const auto& f : c.candidates) auto_solves += f.evaluations;
@@ -259,6 +261,8 @@ int main(int argc, char** argv) {
                 double(hb_solves) / seeds);
     std::printf("%-9s %-17s %-8s %10.1f %8.1f\n", r.name, "herschel-bulkley", "HB-point", point_ms / seeds,
                 double(point_solves) / seeds);
+    std::printf("%-9s %-17s %-8s %10.1f %8.1f\n", r.name, "herschel-bulkley", "HB-named", named_ms / seeds,
+                double(named_solves) / seeds);
     std::printf("%-9s %-17s %-8s %10.1f %8.1f\n", r.name, "herschel-bulkley", "auto", auto_ms / seeds,
                 double(auto_solves) / seeds);
   }
