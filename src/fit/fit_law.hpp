@@ -57,7 +57,8 @@ struct ModelChoice {
 /// Fits every law and names the best description by AICc, preferring the simpler law when the evidence is weak
 /// (AICc within 2 of the best; Burnham & Anderson 2002). The reported result is the general law's
 /// (Herschel-Bulkley) with profile-likelihood intervals, so its intervals include the uncertainty of the law;
-/// a liquid best described as Newtonian reports its viscosity.
+/// a liquid (best described as Newtonian, with a power-law flow index settled within 0.8 to 1.25) reports its
+/// viscosity.
 ModelChoice fit_auto(const std::vector<FitSeries>& series, const FitOptions& options = {});
 
 /// Corrected Akaike information criterion for least squares with k estimated parameters (variance included):

@@ -24,6 +24,11 @@ ProfileLikelihood::ProfileLikelihood(ResidualFunction f, Eigen::VectorXd lower, 
       options_(options),
       better_cost_(best_cost) {}
 
+double ProfileLikelihood::better_cost() const {
+  const std::lock_guard<std::mutex> hold(better_lock_);
+  return better_cost_;
+}
+
 std::optional<Eigen::VectorXd> ProfileLikelihood::better_point() const {
   const std::lock_guard<std::mutex> hold(better_lock_);
   return better_;

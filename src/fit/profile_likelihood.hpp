@@ -80,6 +80,8 @@ class ProfileLikelihood {
   /// A point found by a refit with a clearly lower cost than the optimum (the optimum was not one: the caller
   /// should polish from it and profile again), if any.
   std::optional<Eigen::VectorXd> better_point() const;
+  /// The lowest cost a refit found (the optimum's own cost when none found a lower one).
+  double better_cost() const;
 
  private:
   struct Refit {
