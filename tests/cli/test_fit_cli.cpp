@@ -149,17 +149,19 @@ TEST_CASE("fit --db: a batch list fitted on every core reports exactly what one 
   std::filesystem::create_directory(alone_dir);
   std::filesystem::create_directory(batch_dir);
   const auto alone_db = dir.path() / "alone.sqlite", batch_db = dir.path() / "batch.sqlite";
+  int worst_exit = 0;  // a fit-quality finding fails a batch (exit 1) also without limits
   for (const auto& t : tests) {
     const Run one = run_spreadfit(dir, "fit " + quoted(t.string()) + " --db " + quoted(alone_db.string()) +
                                            " --out-dir " + quoted(alone_dir.string()));
     INFO(one.out << one.err);
-    REQUIRE(one.exit_code == 0);
+    REQUIRE(one.exit_code <= 1);
+    worst_exit = std::max(worst_exit, one.exit_code);
     alone_out += one.out;
   }
   const Run run = run_spreadfit(dir, "fit" + list + " --db " + quoted(batch_db.string()) + " --out-dir " +
                                          quoted(batch_dir.string()));
   INFO(run.out << run.err);
-  REQUIRE(run.exit_code == 0);
+  REQUIRE(run.exit_code == worst_exit);
   // The reports name the history file they added to: the same but for the file's name.
   auto with_db = [](std::string text, const std::filesystem::path& db) {
     for (std::size_t at = text.find(db.string()); at != std::string::npos; at = text.find(db.string(), at))

@@ -90,6 +90,14 @@ TEST_CASE("a fit with a misread reading fails its verdict with a fit-quality che
   const qc::Verdict v = qc::judge(r, {io::SpecLimit{"yield_stress", 1.0, 100.0}});
   CHECK(v.status == qc::Verdict::Status::Fail);
   CHECK(v.checks.back().parameter == "fit_quality");
+  // Without limits too: a batch with a finding never passes (exit 1), where one without both gives no verdict.
+  const qc::Verdict unlimited = qc::judge(r, {});
+  CHECK(unlimited.status == qc::Verdict::Status::Fail);
+  REQUIRE(unlimited.checks.size() == 1);
+  CHECK(unlimited.checks.front().parameter == "fit_quality");
+  fit::FitResult clean = r;
+  clean.quality.clear();
+  CHECK(qc::judge(clean, {}).status == qc::Verdict::Status::None);
 }
 
 TEST_CASE("a first row 0,0 marks the release and is not fitted") {
