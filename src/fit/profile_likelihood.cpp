@@ -197,15 +197,10 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
       // wall where the sample could no longer reach its final spread) from stalling the search; refits are
       // warm-started by interpolating the trace. Ends when tau is within the tolerance or the bracket is
       // narrower than step_tolerance.
-      // A wall (tau over ten times the cut-off at the far end) pins the interpolation to the near end for many
-      // steps, Illinois's halving notwithstanding, so while the far end is such a wall the bracket is bisected
-      // instead. A squeeze's yield-stress bound walked to tau 0.74 at 0.33 Pa and leapt to 325 at 18 Pa; six
-      // Illinois steps crept to 0.50 Pa and stopped there, while the profile crosses the cut-off near 0.95 Pa.
       Point a = prev, b{t, r.tau, r.rest};
       double fa = a.tau - goal, fb = b.tau - goal;
       int last = 0;  // which end was replaced last: -1 a, +1 b
-      auto next_estimate = [&] { return b.tau > 10.0 * goal ? 0.5 * (a.t + b.t) : a.t - fa * (b.t - a.t) / (fb - fa); };
-      double ts = next_estimate();
+      double ts = a.t - fa * (b.t - a.t) / (fb - fa);
       const double width_tol = options_.step_tolerance * std::max(1.0, std::abs(x));
       auto between = [&](double at) {
         const double w = (at - a.t) / (b.t - a.t);
@@ -231,11 +226,8 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
           if (last == +1) fa *= 0.5;
           last = +1;
         }
-        ts = next_estimate();
+        ts = a.t - fa * (b.t - a.t) / (fb - fa);
       }
-      // Out of refits with the bracket still wide: the crossing lies somewhere inside it, so its far end is
-      // reported (errs wide, never narrow); a bracket already narrower than the tolerance gives its estimate.
-      if (b.t - a.t > width_tol) ts = b.t;
       crossed_at(ts, between(ts), a.t, a.tau, a.rest, b.t, b.tau, b.rest);
       return out;
     }
