@@ -678,7 +678,8 @@ void DescriptionReader::check_possible(const TestDescription& out) const {
                         },
                         [&](const SqueezeRig& q) {
                           const double radius = std::sqrt(q.volume / (std::numbers::pi * thinnest));
-                          largest = kind == Reading::Gap ? squeeze_initial_gap(q) + squeeze_slack(squeeze_initial_gap(q), out.resolution)
+                          const double h0 = squeeze_initial_gap(q);
+                          largest = kind == Reading::Gap ? h0 + squeeze_slack(h0, out.resolution)
                                                          : radius * (kind == Reading::Diameter ? 2.0 : 1.0);
                           why = kind == Reading::Gap ? "the gap would exceed the gap the load is applied at"
                                                      : "the disc would be thinner than 0.05 mm";
@@ -710,7 +711,6 @@ void DescriptionReader::check_possible(const TestDescription& out) const {
                                        "reading in the header's unit, or the rig's initial_gap",
                                        s.values[i], start, q->initial_gap > 0 ? "initial" : "default", h0));
   }
-  check_direction(out);
   if (out.final_reading && *out.final_reading > largest)
     fail(0, "readings.final",
          fmt::format("final reading {:.4g} m is larger than the rig allows for this sample ({:.4g} m: {})",
@@ -932,6 +932,7 @@ TestDescription DescriptionReader::read() {
   out.setup.density = out.density;
   read_readings(root, out);
   check_possible(out);
+  check_direction(out);
   read_fit(root, out);
   read_spec(root, out);
   if (options_.read_capture) read_capture(root, out);
