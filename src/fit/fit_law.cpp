@@ -518,6 +518,14 @@ struct LawFit {
   }
 };
 
+// `again` (a search continued or restarted) replaces `kept`, its iterations added, when it solved with m residuals
+// and costs no more, or when `kept` has no usable result.
+void keep_if_no_worse(LmResult& kept, LmResult again, int m) {
+  if (again.r.size() != m || (kept.r.size() == m && again.cost > kept.cost)) return;
+  again.iterations += kept.iterations;
+  kept = std::move(again);
+}
+
 // Coarse-to-fine Levenberg-Marquardt from `start`: most iterations run on a coarse model, then the default model
 // polishes the last digits and supplies the Jacobian for the intervals. Coarse: with the default extrapolation,
 // the same extrapolation on 8 and 16 cells (about 0.75 of the cost, 0.1% mean model error; the 20-cell grid alone,
@@ -539,13 +547,11 @@ void optimise(LawFit& s, const std::vector<FitSeries>& series, Law law, Eigen::V
     // after step: one more budget from where it stopped. Without it the fine polish, damped for a nearby optimum,
     // took tiny steps there and stalled: a channel fit reported the iteration limit (or a point at twice the
     // optimum's chi-square) where 45 more iterations reach the optimum.
-    if (s.coarse_best.status == LmStatus::MaxIterations && s.coarse_best.r.size() == problem.residual_count()) {
-      LmResult again = levenberg_marquardt(s.coarse_residuals(), s.coarse_best.x, problem.lower(), problem.upper(), s.lm);
-      if (again.r.size() == problem.residual_count() && again.cost <= s.coarse_best.cost) {
-        again.iterations += s.coarse_best.iterations;
-        s.coarse_best = std::move(again);
-      }
-    }
+    if (s.coarse_best.status == LmStatus::MaxIterations && s.coarse_best.r.size() == problem.residual_count())
+      keep_if_no_worse(
+          s.coarse_best,
+          levenberg_marquardt(s.coarse_residuals(), s.coarse_best.x, problem.lower(), problem.upper(), s.lm),
+          problem.residual_count());
     // The coarse optimum starts the fine polish, unless the fine model fails there (a stiff corner that the
     // coarser grid still solves): then the fine polish starts where the coarse one did.
     Eigen::VectorXd probe;
@@ -561,11 +567,7 @@ void optimise(LawFit& s, const std::vector<FitSeries>& series, Law law, Eigen::V
   if (!s.best.converged && !s.best.model_failed && s.best.r.size() == m) {
     LmOptions more = s.lm;
     more.max_iterations = s.options.max_iterations;
-    LmResult again = levenberg_marquardt(s.f, s.best.x, problem.lower(), problem.upper(), more);
-    if (again.r.size() == m && again.cost <= s.best.cost) {
-      again.iterations += s.best.iterations;
-      s.best = std::move(again);
-    }
+    keep_if_no_worse(s.best, levenberg_marquardt(s.f, s.best.x, problem.lower(), problem.upper(), more), m);
   }
   // The profiles walk from the coarse optimum, which must lie in the fine one's valley: one that stopped short
   // of where the fine polish went on to (a channel fit's coarse search ended in a flat stretch at 3.5 times the
@@ -578,11 +580,8 @@ void optimise(LawFit& s, const std::vector<FitSeries>& series, Law law, Eigen::V
   if (s.coarse && !same_valley && s.best.r.size() == m) {
     LmOptions near = s.lm;
     near.initial_damping = 1e-6;
-    LmResult again = levenberg_marquardt(s.coarse_residuals(), s.best.x, problem.lower(), problem.upper(), near);
-    if (again.r.size() == m && (again.cost <= s.coarse_best.cost || s.coarse_best.r.size() != m)) {
-      again.iterations += s.coarse_best.iterations;
-      s.coarse_best = std::move(again);
-    }
+    keep_if_no_worse(s.coarse_best,
+                     levenberg_marquardt(s.coarse_residuals(), s.best.x, problem.lower(), problem.upper(), near), m);
   }
 }
 
@@ -880,14 +879,11 @@ ModelChoice quick_candidates(const std::vector<FitSeries>& series, const FitOpti
 FitResult refit_reported(const std::vector<FitSeries>& series, const FitOptions& options, const ModelChoice& quick,
                          Law law) {
   const FitResult& candidate = *quick.candidate(law);
-  // The law's own candidate, then its special cases (each a start, and a point of its parameter space whose
+  // The law's own candidate, then every special case's (each a start, and a point of its parameter space whose
   // valley other_valleys looks into).
   std::vector<FitResult> starts{candidate};
-  for (const Law relative : simpler_relatives(law)) starts.push_back(*quick.candidate(relative));
   for (const FitResult& c : quick.candidates)
-    if (c.law != law && is_relative(c.law, law) &&
-        std::none_of(starts.begin(), starts.end(), [&](const FitResult& s) { return s.law == c.law; }))
-      starts.push_back(c);
+    if (c.law != law && is_relative(c.law, law)) starts.push_back(c);
   FitOptions reported = options;
   if (candidate.converged()) reported.global_evaluations = 0;
   FitResult r = fit_law(series, law, reported, starts);
