@@ -3,6 +3,7 @@
 #include <boost/numeric/odeint/integrate/integrate_times.hpp>
 #include <boost/numeric/odeint/util/odeint_error.hpp>
 #include <algorithm>
+#include <atomic>
 #include <cmath>
 #include <functional>
 #include <limits>
@@ -10,6 +11,8 @@
 #include <string>
 #include <utility>
 #include <stdexcept>
+
+#include <tbb/parallel_invoke.h>
 
 #include "models/adaptive_dense_stepper.hpp"
 #include "models/side_wall.hpp"
@@ -27,19 +30,24 @@ struct NonFiniteStateReached {
 
 /// The bound on time steps of one solve, in odeint's step-checker form. odeint's max_step_checker is reset at every
 /// requested time, which would make max_steps a bound between two readings; this one is never reset, so
-/// SpreadingOptions::max_steps bounds the whole solve, as documented.
+/// SpreadingOptions::max_steps bounds the whole solve, as documented. The count is shared by the grids of an
+/// extrapolated solve, which run at the same time (`spent`, atomic): together they take at most max_steps.
 class SolveStepBudget {
  public:
-  explicit SolveStepBudget(std::size_t max_steps) : max_steps_(max_steps) {}
+  SolveStepBudget(std::size_t max_steps, std::atomic<std::size_t>& spent) : max_steps_(max_steps), spent_(spent) {}
   void operator()() {
-    if (steps_ >= max_steps_) throw StepLimitReached{};
+    std::size_t before = spent_.load(std::memory_order_relaxed);
+    do {
+      if (before >= max_steps_) throw StepLimitReached{};
+    } while (!spent_.compare_exchange_weak(before, before + 1, std::memory_order_relaxed));
     ++steps_;
   }
   void reset() {}  // called by odeint at every requested time: the budget is per solve
-  std::size_t steps() const { return steps_; }
+  std::size_t steps() const { return steps_; }  // this grid's steps
 
  private:
   std::size_t max_steps_;
+  std::atomic<std::size_t>& spent_;
   std::size_t steps_ = 0;
 };
 
@@ -227,7 +235,7 @@ namespace {
 
 // One method-of-lines solve on `cells` cells (no extrapolation); the arguments are checked by solve_spreading.
 SpreadingSolution solve_on_grid(const SpreadingProblem& problem, const std::vector<double>& times,
-                                const SpreadingOptions& options, int cells) {
+                                const SpreadingOptions& options, int cells, std::atomic<std::size_t>& steps_spent) {
   SpreadingSolution out;
   if (times.empty()) return out;
   SpreadingSystem system(problem, cells, options.grading);
@@ -256,7 +264,7 @@ SpreadingSolution solve_on_grid(const SpreadingProblem& problem, const std::vect
     if (!state.allFinite()) throw NonFiniteStateReached{t};
     if (seen++ > 0) out.fronts.push_back(state[state.size() - 1] * problem.initial_extent);
   };
-  SolveStepBudget budget(options.max_steps);
+  SolveStepBudget budget(options.max_steps, steps_spent);
   // One integration with either stepper; `current` gives the stepper's latest state and time (for the report of a
   // failed step-size adjustment: a non-finite rate there is a non-finite state, not a small step).
   auto integrate = [&](auto& stepper, auto current) {
@@ -331,14 +339,17 @@ SpreadingSolution solve_spreading(const SpreadingProblem& problem, const std::ve
     if (!(times[i] >= 0) || (i > 0 && times[i] < times[i - 1]))
       throw std::invalid_argument("spreading times must be finite, >= 0 and non-decreasing");
 
-  SpreadingSolution fine = solve_on_grid(problem, times, options, options.cells);
-  if (!options.extrapolate || !fine.ok()) return fine;
+  std::atomic<std::size_t> steps_spent{0};
+  if (!options.extrapolate) return solve_on_grid(problem, times, options, options.cells, steps_spent);
+  // The two grids are independent solves: they run at the same time on the shared pool (oneTBB; a caller that is
+  // itself one of many parallel tasks, a Jacobian column or a profile side, loses nothing by it).
   const int coarse_cells = options.cells / 2;
-  SpreadingOptions rest = options;  // max_steps bounds both grids' steps together
-  rest.max_steps = options.max_steps - std::min(options.max_steps, fine.steps);
-  const SpreadingSolution coarse = solve_on_grid(problem, times, rest, coarse_cells);
+  SpreadingSolution fine, coarse;
+  tbb::parallel_invoke([&] { fine = solve_on_grid(problem, times, options, options.cells, steps_spent); },
+                       [&] { coarse = solve_on_grid(problem, times, options, coarse_cells, steps_spent); });
   fine.steps += coarse.steps;
   fine.rhs_calls += coarse.rhs_calls;
+  if (!fine.ok()) return fine;
   if (!coarse.ok()) {
     fine.status = coarse.status;
     fine.message = coarse.status == SolveStatus::StepLimit

@@ -53,7 +53,8 @@ struct SpreadingOptions {
   /// Computational Science and Engineering, 1998, ch. 5). Both solves are smooth in the parameters, so the
   /// extrapolated readings are too. Measured over 48 channel and plate cases (tests/models/test_thin_film.cpp,
   /// scripts/bench): 10 + 20 cells extrapolated are 0.09% from a 320-cell solution on average (worst 0.8%), where 40
-  /// cells alone are 0.30% (worst 1.2%), at about half the cost.
+  /// cells alone are 0.30% (worst 1.2%), at about half the cost. The two solves run at the same time on the
+  /// process's shared thread pool (oneTBB), sharing max_steps; the result does not depend on the threads.
   bool extrapolate = true;
   /// Order of the leading grid error term: the scheme's observed order between 10 and 20 cells (1.6 in the
   /// bench's grid convergence; 1.7 between 20 and 40), where the front cell's profile dominates the error.
