@@ -29,6 +29,7 @@ SpreadingOptions spreading_options(const ForwardOptions& o) {
   s.max_steps = o.max_steps;
   s.jacobian_reuse = o.jacobian_reuse;
   s.stepper = o.stepper;
+  s.rates = o.rates;
   return s;
 }
 
@@ -41,6 +42,7 @@ void copy_solution(const SpreadingSolution& s, double offset, double scale, Forw
   }
   out.readings.reserve(s.fronts.size());
   for (double x : s.fronts) out.readings.push_back(scale * (x - offset));
+  for (double v : s.rates) out.rates.push_back(scale * v);
 }
 
 ForwardResult channel(const ChannelRig& rig, const TestSetup& setup, const Material& m,
@@ -92,21 +94,36 @@ ForwardResult squeeze(const SqueezeRig& rig, const TestSetup& setup, const Mater
     out.message = s.message;
     return out;
   }
-  for (double h : s.gaps) {
+  for (std::size_t i = 0; i < s.gaps.size(); ++i) {
+    const double h = s.gaps[i];
     const double radius = std::sqrt(rig.volume / (pi * h));
+    // The gap closes at the squeeze rate; the disc's radius sqrt(V / (pi h)) grows at -(radius / 2h) dh/dt. At
+    // t = 0 the load is applied: the rate there is the one it starts at.
+    const double gap_rate = o.rates ? -squeeze_rate(rig, m, h) : 0.0;
     switch (setup.reading) {
-      case Reading::Gap: out.readings.push_back(h); break;
-      case Reading::Radius: out.readings.push_back(radius); break;
-      default: out.readings.push_back(2.0 * radius); break;
+      case Reading::Gap:
+        out.readings.push_back(h);
+        if (o.rates) out.rates.push_back(gap_rate);
+        break;
+      case Reading::Radius:
+        out.readings.push_back(radius);
+        if (o.rates) out.rates.push_back(-radius / (2 * h) * gap_rate);
+        break;
+      default:
+        out.readings.push_back(2.0 * radius);
+        if (o.rates) out.rates.push_back(-radius / h * gap_rate);
+        break;
     }
   }
   return out;
 }
 
-ForwardResult slump(const SlumpRig& rig, const TestSetup& setup, const Material& m, const std::vector<double>& times) {
+ForwardResult slump(const SlumpRig& rig, const TestSetup& setup, const Material& m, const std::vector<double>& times,
+                    const ForwardOptions& o) {
   const SlumpPrediction s = predict_slump(rig, m, setup.density, setup.gravity);
   ForwardResult out;
   out.readings.assign(times.size(), s.slump);
+  if (o.rates) out.rates.assign(times.size(), 0.0);
   out.notes = s.warnings;
   out.notes.insert(out.notes.begin(), std::string("slump model regime: ") + std::string(slump_regime_name(s.regime)) +
                                           " (static final slump, the same at every time)");
@@ -114,6 +131,10 @@ ForwardResult slump(const SlumpRig& rig, const TestSetup& setup, const Material&
 }
 
 }  // namespace
+
+double reading_derivative_log_consistency(double time, double rate, double flow_index) {
+  return -time / flow_index * rate;
+}
 
 std::string_view reading_name(Reading reading) {
   switch (reading) {
@@ -136,7 +157,7 @@ ForwardResult predict_readings(const TestSetup& setup, const Material& m, const 
   return std::visit(overloaded{[&](const ChannelRig& rig) { return channel(rig, setup, m, times, options); },
                                [&](const PlateRig& rig) { return plate(rig, setup, m, times, options); },
                                [&](const SqueezeRig& rig) { return squeeze(rig, setup, m, times, options); },
-                               [&](const SlumpRig& rig) { return slump(rig, setup, m, times); }},
+                               [&](const SlumpRig& rig) { return slump(rig, setup, m, times, options); }},
                     setup.rig);
 }
 

@@ -22,16 +22,31 @@ struct ForwardOptions {
   std::size_t max_steps = 200000;  ///< bound on time steps per solve (SpreadingOptions, SqueezeOptions::max_steps)
   int jacobian_reuse = 4;          ///< Ros2 stepper only: accepted steps one Jacobian serves (SpreadingOptions)
   TimeStepper stepper = TimeStepper::Rodas;  ///< thin-film time stepper (SpreadingOptions)
+  bool rates = false;  ///< also each reading's rate of change in time (ForwardResult::rates; SpreadingOptions::rates)
 };
 
 struct ForwardResult {
   std::vector<double> readings;       ///< one per requested time, in the rig's reading [m]
+  /// d reading / dt [m/s] at each requested time when ForwardOptions::rates is set (else empty): the front's or
+  /// the gap's speed in the model at the reported state (0 for a slump, which does not evolve). With the
+  /// consistency scaling below it gives two Jacobian columns of a fit without solving again.
+  std::vector<double> rates;
   SolveStatus status = SolveStatus::Ok;
   std::string message;                ///< why a solve failed, naming the bound (empty when Ok)
   std::vector<std::string> notes;     ///< plain-words remarks on model validity (e.g. slump regime)
   std::size_t steps = 0;              ///< time steps taken
   bool ok() const { return status == SolveStatus::Ok; }
 };
+
+/// The consistency as a time scale. Every law's shear rate at a stress above the yield stress is
+/// ((tau - tau_y) / K)^(1/n), so multiplying K by c divides every velocity of these inertia-free, gravity- or
+/// load-driven flows by c^(1/n) at the same state (film flux, models/rheology.hpp, and its side-wall factor, a
+/// function of depth only; the squeeze rate, models/squeeze_flow.hpp): the solution at K c is the one at K, run
+/// c^(1/n) times slower. Hence, for a reading R(t) and its rate dR/dt,
+///     dR / d ln K = -(t / n) dR/dt,
+/// exact for the equations (the solvers' readings follow it to their discretisation error). For a viscosity
+/// (n = 1) the same.
+double reading_derivative_log_consistency(double time, double rate, double flow_index);
 
 /// Readings at the given times [s] (t = 0 is the release; times must be non-decreasing and >= 0).
 /// Throws std::invalid_argument for an invalid material or rig, or a reading the rig does not have.

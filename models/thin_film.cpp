@@ -260,9 +260,15 @@ SpreadingSolution solve_on_grid(const SpreadingProblem& problem, const std::vect
   obs_times.insert(obs_times.end(), times.begin(), times.end());
   out.fronts.reserve(times.size());
   std::size_t seen = 0;
+  Eigen::VectorXd node_rates;
   auto observer = [&](const Eigen::VectorXd& state, double t) {
     if (!state.allFinite()) throw NonFiniteStateReached{t};
-    if (seen++ > 0) out.fronts.push_back(state[state.size() - 1] * problem.initial_extent);
+    if (seen++ == 0) return;
+    out.fronts.push_back(state[state.size() - 1] * problem.initial_extent);
+    if (options.rates) {
+      system(state, node_rates, t);
+      out.rates.push_back(node_rates[node_rates.size() - 1] * problem.initial_extent);
+    }
   };
   SolveStepBudget budget(options.max_steps, steps_spent);
   // One integration with either stepper; `current` gives the stepper's latest state and time (for the report of a
@@ -357,12 +363,16 @@ SpreadingSolution solve_spreading(const SpreadingProblem& problem, const std::ve
                        : coarse.message + " (on the coarser grid of the extrapolation, " +
                              std::to_string(coarse_cells) + " cells)";
     fine.fronts.clear();
+    fine.rates.clear();
     return fine;
   }
   // The leading error term C N^-p cancels between the two grids.
   const double denominator = std::pow(double(options.cells) / coarse_cells, options.grid_order) - 1.0;
   for (std::size_t i = 0; i < fine.fronts.size(); ++i)
     fine.fronts[i] += (fine.fronts[i] - coarse.fronts[i]) / denominator;
+  // The speeds of the extrapolated fronts: the same combination (it is linear).
+  for (std::size_t i = 0; i < fine.rates.size() && i < coarse.rates.size(); ++i)
+    fine.rates[i] += (fine.rates[i] - coarse.rates[i]) / denominator;
   return fine;
 }
 

@@ -94,8 +94,8 @@ struct Profiles {
 
 Profiles profile_material(const FitProblem& problem, const LmResult& best, double s2, double q,
                           const Eigen::MatrixXd& cov, double reference_cost) {
-  const ResidualFunction f = [&problem](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
-    return problem.residuals(x, r);
+  const ResidualColumnsFunction f = [&problem](const Eigen::VectorXd& x, Eigen::VectorXd& r, Eigen::MatrixXd* columns) {
+    return problem.residuals(x, r, nullptr, columns);
   };
   const ProfileLikelihood profile(f, problem.lower(), problem.upper(), fd_steps(problem), best.x, reference_cost, s2,
                                   q, cov, {}, best.jacobian);
@@ -456,7 +456,7 @@ void describe_fit(const std::vector<FitSeries>& series, const FitProblem& proble
 // The polish starts from whichever candidate fits the full model best: the global stage's point, the related
 // fits' materials, and, should the full model fail at all of those (a stiff, nearly arrested flow at an extreme
 // corner of the box), points moved halfway, then all the way, to the centre of the box.
-Eigen::VectorXd polish_start(const FitProblem& problem, const ResidualFunction& f, Eigen::VectorXd start,
+Eigen::VectorXd polish_start(const FitProblem& problem, const ResidualColumnsFunction& f, Eigen::VectorXd start,
                              const std::vector<FitResult>& hints) {
   const int p = problem.size();
   Eigen::VectorXd r;
@@ -474,7 +474,7 @@ Eigen::VectorXd polish_start(const FitProblem& problem, const ResidualFunction& 
   }
   for (std::size_t c = 0; c < candidates.size(); ++c) {
     if (c >= first_fallback && std::isfinite(best_cost)) break;
-    if (f(candidates[c], r) && r.squaredNorm() < best_cost) {
+    if (f(candidates[c], r, nullptr) && r.squaredNorm() < best_cost) {
       best_cost = r.squaredNorm();
       start = candidates[c];
     }
@@ -487,12 +487,12 @@ Eigen::VectorXd polish_start(const FitProblem& problem, const ResidualFunction& 
 // What fit_law's stages share: the problem at the default resolution and its coarse twin (half the cells), the
 // optima on both, the covariance at the optimum, and the profiles.
 struct LawFit {
-  LawFit(const FitOptions& o, const FitProblem& fine, const ResidualFunction& residuals)
+  LawFit(const FitOptions& o, const FitProblem& fine, const ResidualColumnsFunction& residuals)
       : options(o), problem(fine), f(residuals) {}
 
   const FitOptions& options;
   const FitProblem& problem;
-  const ResidualFunction& f;  // the fine residuals, recording why the model failed
+  const ResidualColumnsFunction& f;  // the fine residuals (and known columns), recording why the model failed
   std::optional<FitProblem> coarse;
   LmOptions lm;
   LmResult best, coarse_best;
@@ -513,8 +513,10 @@ struct LawFit {
     const int m = problem.residual_count();
     return r.r.size() == m && r.jacobian.rows() == m;
   }
-  ResidualFunction coarse_residuals() const {
-    return [this](const Eigen::VectorXd& x, Eigen::VectorXd& r) { return coarse->residuals(x, r); };
+  ResidualColumnsFunction coarse_residuals() const {
+    return [this](const Eigen::VectorXd& x, Eigen::VectorXd& r, Eigen::MatrixXd* columns) {
+      return coarse->residuals(x, r, nullptr, columns);
+    };
   }
 };
 
@@ -743,9 +745,9 @@ FitResult fit_law(const std::vector<FitSeries>& series, Law law, const FitOption
 
   std::string failure;
   std::mutex failure_lock;  // Jacobian columns run on several threads
-  const ResidualFunction f = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r) {
+  const ResidualColumnsFunction f = [&](const Eigen::VectorXd& x, Eigen::VectorXd& r, Eigen::MatrixXd* columns) {
     std::string why;
-    if (problem.residuals(x, r, &why)) return true;
+    if (problem.residuals(x, r, &why, columns)) return true;
     const std::lock_guard<std::mutex> hold(failure_lock);
     failure = why;
     return false;

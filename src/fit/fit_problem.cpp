@@ -32,6 +32,7 @@ FitProblem::FitProblem(const std::vector<FitSeries>& series, Law law, const FitO
     const ParameterInfo& p = parameter_info(layout[i]);
     add(std::string(p.name), to_fit_space(p, p.fit_lower), to_fit_space(p, p.fit_upper));
     if (p.id == Parameter::FlowIndex && options.flow_index_prior) prior_index_ = int(i);
+    if (p.member == &Material::consistency) consistency_index_ = int(i);
   }
   material_count_ = int(names_.size());
 
@@ -117,27 +118,53 @@ std::vector<double> FitProblem::shifted(const std::vector<double>& t, double t0)
 }
 
 bool FitProblem::predict(const Eigen::VectorXd& theta, std::size_t s, const std::vector<double>& times,
-                         std::vector<double>& out, std::string* failure) const {
+                         std::vector<double>& out, std::string* failure, std::vector<double>* rates) const {
   const int idx = origin_index_[s];
   const double t0 = idx >= 0 ? theta[idx] : 0.0;
   ++evaluations_;
-  const ForwardResult r = predict_readings(series_[s].setup, material(theta), shifted(times, t0), options_.forward);
+  ForwardOptions forward = options_.forward;
+  forward.rates = rates != nullptr;
+  ForwardResult r = predict_readings(series_[s].setup, material(theta), shifted(times, t0), forward);
   if (!r.ok()) {
     if (failure) *failure = r.message;
     return false;
   }
-  out = r.readings;
+  out = std::move(r.readings);
+  if (rates) *rates = std::move(r.rates);
   return true;
 }
 
 bool FitProblem::residuals(const Eigen::VectorXd& theta, Eigen::VectorXd& r, std::string* failure) const {
+  return residuals(theta, r, failure, nullptr);
+}
+
+bool FitProblem::residuals(const Eigen::VectorXd& theta, Eigen::VectorXd& r, std::string* failure,
+                           Eigen::MatrixXd* columns) const {
   r.resize(points_);
+  if (columns) columns->setConstant(residual_count(), size(), std::numeric_limits<double>::quiet_NaN());
+  const Material m = material(theta);
   Eigen::Index k = 0;
-  std::vector<double> pred;
+  std::vector<double> pred, rates;
   for (std::size_t s = 0; s < series_.size(); ++s) {
     if (times_[s].empty()) continue;
-    if (!predict(theta, s, times_[s], pred, failure)) return false;
-    for (std::size_t i = 0; i < pred.size(); ++i) r[k++] = (pred[i] - values_[s][i]) / sigma_[s];
+    if (!predict(theta, s, times_[s], pred, failure, columns ? &rates : nullptr)) return false;
+    const bool with_rates = columns && rates.size() == pred.size();
+    const int idx = origin_index_[s];
+    const double t0 = idx >= 0 ? theta[idx] : 0.0;
+    for (std::size_t i = 0; i < pred.size(); ++i, ++k) {
+      r[k] = (pred[i] - values_[s][i]) / sigma_[s];
+      if (!with_rates) continue;
+      // The reading at t is the model's at t - t0 (0 before the release, where nothing depends on t0 or K).
+      const double since_release = times_[s][i] - t0;
+      const double rate = since_release > 0 ? rates[i] / sigma_[s] : 0.0;
+      for (int o : origin_index_)
+        if (o >= 0) (*columns)(k, o) = o == idx ? -rate : 0.0;
+      if (consistency_index_ >= 0) {
+        const double d_log = reading_derivative_log_consistency(std::max(since_release, 0.0), rate, m.flow_index);
+        const ParameterInfo& p = parameter_info(law_parameters(law_)[std::size_t(consistency_index_)]);
+        (*columns)(k, consistency_index_) = p.log_space ? d_log : d_log / m.consistency;
+      }
+    }
   }
   if (prior_index_ >= 0) {
     // The prior as one more observation of n: its square adds (n - typical)^2 / spread^2 to chi^2 in units of the
@@ -145,6 +172,10 @@ bool FitProblem::residuals(const Eigen::VectorXd& theta, Eigen::VectorXd& r, std
     const FlowIndexPrior& prior = *options_.flow_index_prior;
     r.conservativeResize(points_ + 1);
     r[points_] = options_.prior_scale * (std::exp(theta[prior_index_]) - prior.typical) / prior.spread;
+    if (columns)  // the prior is on n alone
+      for (Eigen::Index j = 0; j < size(); ++j)
+        if (j == consistency_index_ || std::find(origin_index_.begin(), origin_index_.end(), int(j)) != origin_index_.end())
+          (*columns)(points_, j) = 0.0;
   }
   return r.allFinite();
 }

@@ -55,7 +55,8 @@ struct LmResult {
   Eigen::VectorXd x;        ///< best parameters
   Eigen::VectorXd r;        ///< residuals at x
   Eigen::MatrixXd jacobian; ///< at x (columns of parameters resting on a bound included); with
-                            ///< final_jacobian false, possibly a Broyden update or one from an earlier point
+                            ///< final_jacobian false, possibly a Broyden update, one from an earlier point, or
+                            ///< one whose known columns are the model's closed forms
   double cost = 0;          ///< 0.5 |r|^2
   int iterations = 0;
   bool converged = false;
@@ -67,13 +68,31 @@ struct LmResult {
 /// Returns false from f to mark a failed evaluation (treated as an infinitely bad point). f must be safe to call
 /// from several threads at once: the columns of a finite-difference Jacobian are evaluated in parallel.
 using ResidualFunction = std::function<bool(const Eigen::VectorXd& x, Eigen::VectorXd& r)>;
+/// A residual function that also knows some columns of its Jacobian in closed form (a fit's consistency and
+/// release time, from the readings' rates: models/forward.hpp). With `columns` null it gives the residuals alone;
+/// otherwise it also sets *columns to (residuals x parameters), exact derivatives in the columns it knows and NaN
+/// in the others (or to an empty matrix: none known). The same thread-safety as ResidualFunction.
+using ResidualColumnsFunction =
+    std::function<bool(const Eigen::VectorXd& x, Eigen::VectorXd& r, Eigen::MatrixXd* columns)>;
 
 LmResult levenberg_marquardt(const ResidualFunction& f, const Eigen::VectorXd& x0, const Eigen::VectorXd& lower,
+                             const Eigen::VectorXd& upper, const LmOptions& options);
+/// The same search using the columns f knows: they replace finite differences while searching (a refresh of the
+/// Jacobian differences only the other columns, and a Broyden update keeps the known ones exact), but a convergence
+/// is confirmed, and the final Jacobian computed, with finite differences in every column as before (options
+/// confirm_on_update, final_jacobian): the closed forms hold for the equations, the differences for the solver's
+/// readings, which differ from them by the discretisation (up to a few percent near arrest).
+LmResult levenberg_marquardt(const ResidualColumnsFunction& f, const Eigen::VectorXd& x0, const Eigen::VectorXd& lower,
                              const Eigen::VectorXd& upper, const LmOptions& options);
 
 /// Forward-difference Jacobian of f at x (steps reversed at an upper bound), one column a thread
 /// (src/parallel_for.hpp). Returns false if f failed.
 bool finite_difference_jacobian(const ResidualFunction& f, const Eigen::VectorXd& x, const Eigen::VectorXd& r,
                                 const Eigen::VectorXd& upper, const Eigen::VectorXd& step, Eigen::MatrixXd& J);
+/// The same, differencing only the columns that `known` (r.size() x x.size(), or empty) does not hold finite; the
+/// known ones are copied.
+bool finite_difference_jacobian(const ResidualFunction& f, const Eigen::VectorXd& x, const Eigen::VectorXd& r,
+                                const Eigen::VectorXd& upper, const Eigen::VectorXd& step, const Eigen::MatrixXd& known,
+                                Eigen::MatrixXd& J);
 
 }  // namespace spreadfit::fit

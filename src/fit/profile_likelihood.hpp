@@ -73,6 +73,11 @@ class ProfileLikelihood {
   ProfileLikelihood(ResidualFunction f, Eigen::VectorXd lower, Eigen::VectorXd upper, Eigen::VectorXd fd_step,
                     Eigen::VectorXd best_x, double best_cost, double s2, double q, Eigen::MatrixXd covariance,
                     ProfileOptions options = {}, Eigen::MatrixXd jacobian = {});
+  /// The same for a model that knows some Jacobian columns in closed form (a fit's consistency and release times):
+  /// the refits search with them (levenberg_marquardt's ResidualColumnsFunction overload).
+    ProfileLikelihood(ResidualColumnsFunction f, Eigen::VectorXd lower, Eigen::VectorXd upper, Eigen::VectorXd fd_step,
+                    Eigen::VectorXd best_x, double best_cost, double s2, double q, Eigen::MatrixXd covariance,
+                    ProfileOptions options = {}, Eigen::MatrixXd jacobian = {});
 
   /// One side (dir = +1 upper, -1 lower) of parameter j's interval. Safe to call from several threads.
   ProfileSide side(int j, int dir) const;
@@ -90,9 +95,11 @@ class ProfileLikelihood {
     Eigen::VectorXd rest;      // the other parameters at the conditional optimum
     Eigen::MatrixXd jacobian;  // the residuals' Jacobian in them, where the refit ended (the next one's start)
   };
-  Refit refit(int j, double value, const Eigen::VectorXd& warm, const Eigen::MatrixXd& warm_jacobian) const;
+  /// confirmed: a convergence judged on an updated Jacobian is confirmed by differences (LmOptions::confirm_on_update).
+  Refit refit(int j, double value, const Eigen::VectorXd& warm, const Eigen::MatrixXd& warm_jacobian,
+              bool confirmed = false) const;
 
-  ResidualFunction f_;
+  ResidualColumnsFunction f_;
   Eigen::VectorXd lower_, upper_, step_, best_;
   double best_cost_, s2_, q_;
   Eigen::MatrixXd cov_, jacobian_;

@@ -251,8 +251,8 @@ int main(int argc, char** argv) {
   constexpr unsigned seeds = 8;
   for (const Rig_& r : {rigs[0], rigs[1]}) {
     const Material truth = {20, 10.0, 0.4};
-    double hb_ms = 0, auto_ms = 0, point_ms = 0, named_ms = 0;
-    int hb_solves = 0, auto_solves = 0, point_solves = 0, named_solves = 0;
+    double hb_ms = 0, auto_ms = 0, point_ms = 0, named_ms = 0, auto_point_ms = 0;
+    int hb_solves = 0, auto_solves = 0, point_solves = 0, named_solves = 0, auto_point_solves = 0;
     // The point fit (quadratic intervals, no profiles, no likelihood draws): like for like with a plain
     // least-squares fit (tests/reference/bench_scipy.py prints the SciPy peer beside it).
     fit::FitOptions point;
@@ -276,6 +276,10 @@ int main(int argc, char** argv) {
       fit::ModelChoice c;
       auto_ms += median_ms([&] { c = fit::fit_auto({s}); }, 1);
       for (const auto& f : c.candidates) auto_solves += f.evaluations;
+      // auto with quadratic intervals only (the speed issue's "auto with today's intervals").
+      fit::ModelChoice quick;
+      auto_point_ms += median_ms([&] { quick = fit::fit_auto({s}, point); }, 1);
+      for (const auto& f : quick.candidates) auto_point_solves += f.evaluations;
       if (seed == 5 && r.setup.reading == Reading::Radius && c.chosen >= 0)
         plate_fit = c.candidates[std::size_t(c.chosen)];
     }
@@ -287,6 +291,8 @@ int main(int argc, char** argv) {
                 double(named_solves) / seeds);
     std::printf("%-9s %-17s %-8s %10.1f %8.1f\n", r.name, "herschel-bulkley", "auto", auto_ms / seeds,
                 double(auto_solves) / seeds);
+    std::printf("%-9s %-17s %-8s %10.1f %8.1f\n", r.name, "herschel-bulkley", "auto-pt", auto_point_ms / seeds,
+                double(auto_point_solves) / seeds);
   }
 
   // Using a fitted material elsewhere: a 200-draw band on another rig, a 21 x 21 reading map, reading limits solved
