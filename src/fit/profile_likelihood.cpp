@@ -192,15 +192,23 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
     out.limit_slope = (tau_b - tau_a) / (tb - ta);
     out.limit_direction = (full_at(tb, rest_b) - full_at(ta, rest_a)) / (tb - ta);
   };
-  while (out.refits < options_.max_refits) {
-    Refit r = refit_at(x + dir * t, warm_at(t));
+  // Where tau leapt far past the cut-off (a wall: the conditional optimum runs into a corner of the box, or the
+  // flow can no longer reach the readings), the smallest such distance; the walk then never steps more than
+  // halfway to it, from the last point below the cut-off, and starts its refits there (on the ridge).
+  double wall = std::numeric_limits<double>::infinity();
+  const double width_tol = options_.step_tolerance * std::max(1.0, std::abs(x));
+  bool wall_rechecked = false;
+  int budget = options_.max_refits;  // refits for this side: each halving at a wall adds one, six at most
+  while (out.refits < budget) {
+    const bool near_wall = std::isfinite(wall);
+    Refit r = refit_at(x + dir * t, near_wall ? prev.rest : warm_at(t));
     ++out.refits;
-    if (!r.ok && before) {
+    if (!r.ok && before && !near_wall) {
       // The extrapolated warm start may land where the model cannot be solved (a stiff, nearly arrested corner):
       // start again from the last point of the trace before counting a failure.
       r = refit_at(x + dir * t, prev.rest);
       ++out.refits;
-    } else if (r.ok && r.tau > 1.5 * goal) {
+    } else if (r.ok && r.tau > 1.5 * goal && !near_wall) {
       // A wall: tau leapt far past the cut-off in one step. The refit may have left the ridge for another branch
       // of the conditional optimum (the extrapolated start overshot a bend); the start from the last point of the
       // trace follows the ridge itself. The lower of the two is the conditional optimum.
@@ -210,6 +218,17 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
       if (again.ok && again.tau < r.tau) r = std::move(again);
       else jacobian = kept;
     }
+    if (r.ok && r.tau > 1.5 * goal && t - prev.t > width_tol) {
+      // Past a wall: the crossing lies between the last point below and here, and a bracket with a wall at one end
+      // is refined from the near side in tiny steps (regula falsi; a squeeze's consistency bound stopped at 6.2 of
+      // a region reaching 7.9 when the refits ran out). Halve the step instead, from the ridge.
+      if (t < wall) wall_rechecked = false;
+      wall = std::min(wall, t);
+      t = prev.t + 0.5 * (t - prev.t);
+      budget = std::min(budget + 1, options_.max_refits + 6);
+      continue;
+    }
+    if (r.ok && t >= wall) wall = std::numeric_limits<double>::infinity();  // it was no wall
     keep_trace(t, r);
     if (!r.ok) {
       // Step back towards the last good point; three failures in a row end the side (reported open).
@@ -235,12 +254,11 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
       double fa = a.tau - goal, fb = b.tau - goal;
       int last = 0;  // which end was replaced last: -1 a, +1 b
       double ts = a.t - fa * (b.t - a.t) / (fb - fa);
-      const double width_tol = options_.step_tolerance * std::max(1.0, std::abs(x));
       auto between = [&](double at) {
         const double w = (at - a.t) / (b.t - a.t);
         return Eigen::VectorXd(((1.0 - w) * a.rest + w * b.rest).cwiseMax(lo).cwiseMin(hi));
       };
-      while (out.refits < options_.max_refits && b.t - a.t > width_tol) {
+      while (out.refits < budget && b.t - a.t > width_tol) {
         const Refit m = refit_at(x + dir * ts, between(ts));
         ++out.refits;
         keep_trace(ts, m);
@@ -272,6 +290,12 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
     const double rate = (r.tau - prev.tau) / dt;
     double next = rate > 0 ? t + 1.15 * (goal - r.tau) / rate : t + 2.0 * dt;
     next = std::clamp(next, t + 0.5 * dt, t + 2.0 * dt);
+    if (next >= wall) {
+      // The secant would pass the wall: look at the wall once more, from the ridge nearer to it now (a refit from
+      // far away may have landed on another branch: a false wall), then halve towards it.
+      next = wall_rechecked ? t + 0.5 * (wall - t) : wall;
+      wall_rechecked = true;
+    }
     before = prev;
     prev = Point{t, r.tau, r.rest};
     t = std::min(next, room);
