@@ -15,31 +15,15 @@
 #include <vector>
 
 #include "models/forward.hpp"
+#include "tests/fit/fit_test_support.hpp"
 
 using namespace spreadfit;
 
 namespace {
 
-TestSetup channel() {
-  TestSetup s;
-  s.rig = ChannelRig{0.05, 0.05, 1e-4, true};
-  s.density = 1100;
-  s.reading = Reading::Front;
-  return s;
-}
-
-TestSetup plate() {
-  TestSetup s;
-  s.rig = PlateRig{0.03, 1.5e-4};
-  s.density = 1050;
-  s.reading = Reading::Diameter;
-  return s;
-}
-
+// The rigs of the fit tests (tests/fit/fit_test_support.hpp), the squeeze read as `reading`.
 TestSetup squeeze(Reading reading) {
-  TestSetup s;
-  s.rig = SqueezeRig{2e-6, 4.903325, 8e-3};  // 2 mL under 500 g, from an 8 mm gap
-  s.density = 1000;
+  TestSetup s = testing::squeeze_setup();
   s.reading = reading;
   return s;
 }
@@ -76,8 +60,8 @@ std::vector<Case> cases() {
   for (const Material& m : materials) {
     const std::string law = std::to_string(m.yield_stress) + " Pa, K " + std::to_string(m.consistency) + ", n " +
                             std::to_string(m.flow_index);
-    out.push_back({"channel, " + law, channel(), m});
-    out.push_back({"plate, " + law, plate(), m});
+    out.push_back({"channel, " + law, testing::channel_setup(), m});
+    out.push_back({"plate, " + law, testing::plate_setup(), m});
     out.push_back({"squeeze gap, " + law, squeeze(Reading::Gap), m});
     out.push_back({"squeeze diameter, " + law, squeeze(Reading::Diameter), m});
   }
@@ -141,7 +125,7 @@ TEST_CASE("a Newtonian channel's late front rate gives Huppert's similarity expo
   // front of a constant-volume planar current x_N ~ (rho g A^3 t / 3 mu)^(1/5)); t (dx/dt) / x from the rates
   // approaches 1/5 (measured from the back wall, where the similarity solution's origin is). Side walls off: the
   // similarity law is for a planar current.
-  TestSetup s = channel();
+  TestSetup s = testing::channel_setup();
   std::get<ChannelRig>(s.rig).side_wall_drag = false;
   const ForwardOptions o = converged();
   const ForwardResult r = predict_readings(s, Material{0, 1.0, 1.0}, {500.0, 2000.0}, o);
@@ -163,5 +147,5 @@ TEST_CASE("a slump does not evolve: its rates are zero, and without the option t
   const ForwardResult r = predict_readings(s, Material{50, 5, 0.5}, {10.0, 20.0}, o);
   REQUIRE(r.ok());
   CHECK(r.rates == std::vector<double>{0.0, 0.0});
-  CHECK(predict_readings(channel(), Material{20, 10, 0.4}, {10.0, 20.0}).rates.empty());
+  CHECK(predict_readings(testing::channel_setup(), Material{20, 10, 0.4}, {10.0, 20.0}).rates.empty());
 }
