@@ -14,6 +14,8 @@
 #include <mutex>
 #include <optional>
 #include <stdexcept>
+#include <string>
+#include <vector>
 
 #include "src/fit/fit_problem.hpp"
 #include "src/fit/parameter_names.hpp"
@@ -219,6 +221,36 @@ void limits_on_fine(const FitProblem& fine, double best_cost, double s2, double 
 // 2005 on the plate). Applies to one channel or plate series whose readings scatter about their mean no more
 // than the reading uncertainty allows; replaces the undetermined yield-stress estimate of `out`. Returns whether
 // it did.
+// The plain warning a material parameter's interval calls for: an upper bound only (a yield stress the readings do
+// not need), undetermined, or open on one side; none for a closed interval within a factor of 100.
+std::optional<std::string> interval_warning(const ParameterEstimate& e) {
+  if (e.upper_only)
+    return e.identifiable ? std::optional<std::string>(fmt::format(
+                                "the readings need no yield stress: only an upper bound ({:.3g} Pa) is supported; if "
+                                "the sample was still spreading when readings ended, continue them until it stops",
+                                e.upper))
+                          : std::optional<std::string>(fmt::format(
+                                "the {} is not determined by these readings: its 95% interval spans its whole range "
+                                "({:.3g} to {:.3g} {})",
+                                plain_name(e.name), e.lower, e.upper, e.unit));
+  if (!e.identifiable && e.lower_open && e.upper_open)
+    return fmt::format("the {} is not determined by these readings: its 95% interval spans its whole range ({:.3g} "
+                       "to {:.3g} {})",
+                       plain_name(e.name), e.lower, e.upper, e.unit);
+  if (e.lower_open)
+    return fmt::format("the readings set no lower limit on the {} (95% interval reaches the end of its range, {:.3g} "
+                       "{})",
+                       plain_name(e.name), e.lower, e.unit);
+  if (e.upper_open)
+    return fmt::format("the readings set no upper limit on the {} (95% interval reaches the end of its range, {:.3g} "
+                       "{})",
+                       plain_name(e.name), e.upper, e.unit);
+  if (!e.identifiable)
+    return fmt::format("the {} is not determined by these readings (95% interval spans more than a factor of 100)",
+                       plain_name(e.name));
+  return std::nullopt;
+}
+
 bool arrested_yield_stress(const std::vector<FitSeries>& series, const FitProblem& problem, FitResult& out) {
   if (series.size() != 1) return false;
   const FitSeries& s = series.front();
@@ -259,11 +291,7 @@ bool arrested_yield_stress(const std::vector<FitSeries>& series, const FitProble
   for (ParameterEstimate& e : out.parameters)
     if (is_parameter(e.name, Parameter::YieldStress)) {
       // The curve's own finding on the yield stress (undetermined, or open on a side) no longer applies.
-      const std::string about = " " + plain_name(e.name) + " ";
-      std::erase_if(out.warnings, [&](const std::string& w) {
-        return w.find(about) != std::string::npos &&
-               (w.find("not determined") != std::string::npos || w.find("set no") != std::string::npos);
-      });
+      if (const std::optional<std::string> was = interval_warning(e)) std::erase(out.warnings, *was);
       e = tau;
       out.warnings.push_back(fmt::format(
           "the sample was at rest from the first reading on (readings within {:.2g} mm, as scattered as the "
@@ -344,33 +372,13 @@ int interval_estimates(const FitProblem& problem, const Eigen::VectorXd& x_best,
       e.upper_only = true;
       e.lower = 0.0;
       e.identifiable = !hi_open;
-      if (e.identifiable)
-        out.warnings.push_back(fmt::format(
-            "the readings need no yield stress: only an upper bound ({:.3g} Pa) is supported; if the sample was "
-            "still spreading when readings ended, continue them until it stops",
-            e.upper));
     } else if (log_scale) {
       e.identifiable = !lo_open && !hi_open && hi - lo < std::log(100.0);
     } else {
       e.identifiable = std::isfinite(se);
     }
     if (log_scale) {
-      if (!e.identifiable && lo_open && hi_open)
-        out.warnings.push_back(fmt::format("the {} is not determined by these readings: its 95% interval spans its "
-                                           "whole range ({:.3g} to {:.3g} {})",
-                                           plain_name(e.name), e.lower, e.upper, e.unit));
-      else if (!e.upper_only && lo_open)
-        out.warnings.push_back(fmt::format("the readings set no lower limit on the {} (95% interval reaches the "
-                                           "end of its range, {:.3g} {})",
-                                           plain_name(e.name), e.lower, e.unit));
-      else if (hi_open)
-        out.warnings.push_back(fmt::format("the readings set no upper limit on the {} (95% interval reaches the "
-                                           "end of its range, {:.3g} {})",
-                                           plain_name(e.name), e.upper, e.unit));
-      else if (!e.identifiable)
-        out.warnings.push_back(fmt::format("the {} is not determined by these readings (95% interval spans more "
-                                           "than a factor of 100)",
-                                           plain_name(e.name)));
+      if (const std::optional<std::string> w = interval_warning(e)) out.warnings.push_back(*w);
       if (e.identifiable) ++identifiable;
     }
     out.parameters.push_back(e);

@@ -5,6 +5,9 @@
 // arrested readings come from the verified thin-film model (tests/models/test_thin_film.cpp).
 #include <doctest/doctest.h>
 
+#include <algorithm>
+#include <string>
+
 #include <cmath>
 
 #include "fit_test_support.hpp"
@@ -90,4 +93,11 @@ TEST_CASE("a channel curve that never leaves the gate gives a yield stress above
   // below it.
   CHECK(e.lower < 388);
   CHECK(e.lower > 300);
+  // The curve's own finding on the yield stress (undetermined by the curve) is replaced, not left beside the bound.
+  for (const std::string& w : r.warnings) {
+    INFO(w);
+    CHECK(w.find("yield stress is not determined") == std::string::npos);
+  }
+  CHECK(std::any_of(r.warnings.begin(), r.warnings.end(),
+                    [](const std::string& w) { return w.find("plastic-limit relation") != std::string::npos; }));
 }
