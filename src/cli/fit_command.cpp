@@ -240,9 +240,9 @@ struct Batch {
 };
 
 /// Reads every test description, reporting each bad one on `err`; their unusual-value warnings follow, material by
-/// material. Returns false when any was bad input.
-bool read_batch(const FitCommandOptions& options, Batch& batch, std::ostream& err) {
-  bool ok = true;
+/// material. Returns how many problem lines it reported (0: all read).
+int read_batch(const FitCommandOptions& options, Batch& batch, std::ostream& err) {
+  int problems = 0;
   for (const auto& path : options.tests) {
     try {
       io::TestDescription t = io::load_test_description(path);
@@ -250,13 +250,13 @@ bool read_batch(const FitCommandOptions& options, Batch& batch, std::ostream& er
       batch.by_sample[t.sample_id].push_back(std::move(t));
     } catch (const io::InputError& e) {
       io::print_input_error(err, e);
-      ok = false;
+      problems += 1 + int(e.further().size()) + (e.truncated() ? 1 : 0);
     }
   }
   for (const std::string& id : batch.order)
     for (const io::TestDescription& t : batch.by_sample[id])
       for (const std::string& warning : t.warnings) err << "spreadfit: warning: " << warning << "\n";
-  return ok;
+  return problems;
 }
 
 /// Spec catalogues: --specs, else a specs.toml beside each test file, each read once.
@@ -296,10 +296,10 @@ void check_required_spec(const std::vector<io::TestDescription>& tests,
 }
 
 /// Each material can be fitted (and, with --require-spec, judged); every problem is reported on `err`. Returns
-/// false when any material is bad input.
-bool check_materials(const FitCommandOptions& options, const Batch& batch, Catalogues& catalogues,
-                     std::ostream& err) {
-  bool ok = true;
+/// how many materials are bad input.
+int check_materials(const FitCommandOptions& options, const Batch& batch, Catalogues& catalogues,
+                    std::ostream& err) {
+  int problems = 0;
   for (const std::string& id : batch.order) {
     const std::vector<io::TestDescription>& tests = batch.by_sample.at(id);
     try {
@@ -308,10 +308,10 @@ bool check_materials(const FitCommandOptions& options, const Batch& batch, Catal
       if (options.require_spec) check_required_spec(tests, catalogue);
     } catch (const io::InputError& e) {
       err << "spreadfit: " << e.what() << "\n";
-      ok = false;
+      ++problems;
     }
   }
-  return ok;
+  return problems;
 }
 
 /// Every output path, before any work: none may be an input or another output, and each folder must exist.
@@ -446,10 +446,13 @@ int run_fit_command(const FitCommandOptions& options, std::ostream& out, std::os
   // exit 2 and writes no output file (README), so a batch list is never left half-written.
   Batch batch;
   Catalogues catalogues(options);
-  bool ok = read_batch(options, batch, err);
-  ok = check_materials(options, batch, catalogues, err) && ok;
-  if (!ok || !check_outputs(options, batch, err)) {
-    err << "spreadfit: bad input above; nothing fitted and no output file written\n";
+  int problems = read_batch(options, batch, err);
+  problems += check_materials(options, batch, catalogues, err);
+  if (problems == 0 && !check_outputs(options, batch, err)) problems = 1;
+  if (problems > 0) {
+    // One bad input is its own one-line message; several get a closing line, so that a long batch's list is
+    // not taken for a partial run.
+    if (problems > 1) err << "spreadfit: " << problems << " problems above; nothing fitted and no output file written\n";
     return to_int(ExitCode::BadInput);
   }
   const std::vector<std::string>& order = batch.order;
