@@ -225,6 +225,8 @@ TEST_CASE("fit: bad input exits 2 naming the field") {
     const Run run = run_spreadfit(dir, "fit " + quoted((dir.path() / "nope.toml").string()));
     CHECK(run.exit_code == 2);
     CHECK(run.err.find("nope.toml") != std::string::npos);
+    // One problem, one line (DEVELOPERS.md, "Errors"): no closing line after it.
+    CHECK(std::count(run.err.begin(), run.err.end(), '\n') == 1);
   }
   SUBCASE("one bad file among several: every bad one named, nothing fitted, no output file (README)") {
     const auto json_file = dir.path() / "both.json";
@@ -237,6 +239,9 @@ TEST_CASE("fit: bad input exits 2 naming the field") {
     CHECK(run.exit_code == 2);
     CHECK(run.err.find("nope.toml") != std::string::npos);
     CHECK(run.err.find("empty.toml") != std::string::npos);
+    // Several problems: one line each, then one closing line that counts them.
+    CHECK(run.err.find("2 problems above; nothing fitted and no output file written") != std::string::npos);
+    CHECK(std::count(run.err.begin(), run.err.end(), '\n') == 3);
     CHECK(run.out.empty());
     CHECK_FALSE(std::filesystem::exists(json_file));
     CHECK(std::filesystem::is_empty(out_dir));
