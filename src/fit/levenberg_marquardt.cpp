@@ -249,7 +249,9 @@ LmResult levenberg_marquardt(const ResidualColumnsFunction& model, const Eigen::
               if (is_known[std::size_t(j)]) taken[j] = 0;
             if (taken.squaredNorm() > 0) out.jacobian += mismatch * taken.transpose() / taken.squaredNorm();
             for (Eigen::Index j = 0; j < p; ++j)
-              if (is_known[std::size_t(j)] && trial_known.cols() == p) out.jacobian.col(j) = trial_known.col(j);
+              if (is_known[std::size_t(j)] && trial_known.rows() == trial_r.size() && trial_known.cols() == p &&
+                  trial_known.col(j).allFinite())
+                out.jacobian.col(j) = trial_known.col(j);
             state = all_known ? Jacobian::Partial : Jacobian::Updated;
             ++since_refresh;
           } else {

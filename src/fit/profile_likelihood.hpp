@@ -11,10 +11,12 @@
 // Why a walk and not a root search: each side is traced outward from the optimum by continuation, every refit
 // warm-started from the previous one (linear extrapolation of the other parameters along the trace), with the
 // step at most doubling, until tau crosses the cut-off; the crossing is then interpolated (tau is close to linear
-// in v, Bates & Watts fig. 6.4) and refined. A secant from the Wald guess may leap over a bend of the ridge into a
-// second valley, and its answer then jumps between two values when the readings move by a hair; the walk finds
-// the first crossing, which moves continuously with the data. A side that reaches the parameter's box before the
-// cut-off is open: the readings bound the parameter on one side only.
+// in v, Bates & Watts fig. 6.4) and refined. Where a refit lands far past the cut-off (a wall), the step is
+// halved from the last point below instead, and the walk stays within half the way to the wall. A secant from the
+// Wald guess may leap over a bend of the ridge into a second valley, and its answer then jumps between two values
+// when the readings move by a hair; the walk finds the first crossing, which moves continuously with the data. A
+// side that reaches the parameter's box before the cut-off is open: the readings bound the parameter on one side
+// only.
 #pragma once
 
 #include <Eigen/Core>
@@ -51,7 +53,8 @@ struct ProfileSide {
 };
 
 struct ProfileOptions {
-  int max_refits = 10;         ///< refits a side, tracing and refining together (the loop's bound)
+  int max_refits = 10;         ///< refits a side, tracing and refining together (the loop's bound; each
+                               ///< halving of a step at a wall adds one, six at most)
   int refit_iterations = 12;   ///< Levenberg-Marquardt iterations of one refit
   /// A refit ends when its Gauss-Newton predicted decrease is below this x s^2 (LmOptions::decrease_tolerance):
   /// the cost then errs by about that much, tau at the cut-off by about 0.3% at the default, well inside
