@@ -196,6 +196,7 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
   // flow can no longer reach the readings), the smallest such distance; the walk then never steps more than
   // halfway to it, from the last point below the cut-off, and starts its refits there (on the ridge).
   double wall = std::numeric_limits<double>::infinity();
+  Eigen::VectorXd wall_rest;  // the refit there
   const double width_tol = options_.step_tolerance * std::max(1.0, std::abs(x));
   bool wall_rechecked = false;
   int budget = options_.max_refits;  // refits for this side: each halving at a wall adds one, six at most
@@ -222,7 +223,10 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
       // Past a wall: the crossing lies between the last point below and here, and a bracket with a wall at one end
       // is refined from the near side in tiny steps (regula falsi; a squeeze's consistency bound stopped at 6.2 of
       // a region reaching 7.9 when the refits ran out). Halve the step instead, from the ridge.
-      if (t < wall) wall_rechecked = false;
+      if (t < wall) {
+        wall_rechecked = false;
+        wall_rest = r.rest;
+      }
       wall = std::min(wall, t);
       t = prev.t + 0.5 * (t - prev.t);
       budget = std::min(budget + 1, options_.max_refits + 6);
@@ -300,8 +304,17 @@ ProfileSide ProfileLikelihood::side(int j, int dir) const {
     prev = Point{t, r.tau, r.rest};
     t = std::min(next, room);
   }
-  // Out of refits below the cut-off: the limit lies beyond the last point reached, so the side is reported open
-  // (errs wide, never narrow).
+  // Out of refits below the cut-off. With a wall found beyond the last point reached, the crossing lies between
+  // them: the wall is reported, wide by at most that gap, and not moved by the fine model's re-evaluation (its
+  // secant would start from a point far past the cut-off). A squeeze's yield stress was reported undetermined,
+  // and its fit not identifiable, when a walk ran out of refits 0.07 short of a wall it had bracketed. Without a
+  // wall the limit lies beyond the last point reached, so the side is reported open (errs wide, never narrow).
+  if (std::isfinite(wall) && prev.tau < goal) {
+    out.limit = x + dir * wall;
+    out.end = ProfileEnd::Crossed;
+    out.at_limit = full_at(wall, wall_rest);
+    return out;
+  }
   out.end = ProfileEnd::Failed;
   return out;
 }
