@@ -220,24 +220,14 @@ void limits_on_fine(const FitProblem& fine, double best_cost, double s2, double 
   });
 }
 
-// A sample at rest from the first reading on (a stiff paste that stopped within seconds): the curve carries no
-// rate information, and the refits of a profile cannot move its nearly static layer, but the arrested reading
-// itself gives the yield stress by the rig's plastic-limit relation (src/fit/final_only.hpp; Roussel & Coussot
-// 2005 on the plate). Applies to one channel or plate series whose readings scatter about their mean no more
-// than the reading uncertainty allows; replaces the undetermined yield-stress estimate of `out`. Returns whether
-// it did.
 // The plain warning a material parameter's interval calls for: an upper bound only (a yield stress the readings do
-// not need), undetermined, or open on one side; none for a closed interval within a factor of 100.
+// not need), undetermined, or open on one side; none for a closed interval within a factor of 100. (A yield stress
+// that is an upper bound and undetermined is open on both sides.)
 std::optional<std::string> interval_warning(const ParameterEstimate& e) {
-  if (e.upper_only)
-    return e.identifiable ? std::optional<std::string>(fmt::format(
-                                "the readings need no yield stress: only an upper bound ({:.3g} Pa) is supported; if "
-                                "the sample was still spreading when readings ended, continue them until it stops",
-                                e.upper))
-                          : std::optional<std::string>(fmt::format(
-                                "the {} is not determined by these readings: its 95% interval spans its whole range "
-                                "({:.3g} to {:.3g} {})",
-                                plain_name(e.name), e.lower, e.upper, e.unit));
+  if (e.upper_only && e.identifiable)
+    return fmt::format("the readings need no yield stress: only an upper bound ({:.3g} Pa) is supported; if the "
+                       "sample was still spreading when readings ended, continue them until it stops",
+                       e.upper);
   if (!e.identifiable && e.lower_open && e.upper_open)
     return fmt::format("the {} is not determined by these readings: its 95% interval spans its whole range ({:.3g} "
                        "to {:.3g} {})",
@@ -256,6 +246,12 @@ std::optional<std::string> interval_warning(const ParameterEstimate& e) {
   return std::nullopt;
 }
 
+// A sample at rest from the first reading on (a stiff paste that stopped within seconds): the curve carries no
+// rate information, and the refits of a profile cannot move its nearly static layer, but the arrested reading
+// itself gives the yield stress by the rig's plastic-limit relation (src/fit/final_only.hpp; Roussel & Coussot
+// 2005 on the plate). Applies to one channel or plate series whose readings scatter about their mean no more
+// than the reading uncertainty allows; replaces the undetermined yield-stress estimate of `out`. Returns whether
+// it did.
 bool arrested_yield_stress(const std::vector<FitSeries>& series, const FitProblem& problem, FitResult& out) {
   if (series.size() != 1) return false;
   const FitSeries& s = series.front();

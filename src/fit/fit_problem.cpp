@@ -32,7 +32,10 @@ FitProblem::FitProblem(const std::vector<FitSeries>& series, Law law, const FitO
     const ParameterInfo& p = parameter_info(layout[i]);
     add(std::string(p.name), to_fit_space(p, p.fit_lower), to_fit_space(p, p.fit_upper));
     if (p.id == Parameter::FlowIndex && options.flow_index_prior) prior_index_ = int(i);
-    if (p.member == &Material::consistency) consistency_index_ = int(i);
+    if (p.member == &Material::consistency) {
+      consistency_index_ = int(i);
+      consistency_log_ = p.log_space;
+    }
   }
   material_count_ = int(names_.size());
 
@@ -161,8 +164,7 @@ bool FitProblem::residuals(const Eigen::VectorXd& theta, Eigen::VectorXd& r, std
         if (o >= 0) (*columns)(k, o) = o == idx ? -rate : 0.0;
       if (consistency_index_ >= 0) {
         const double d_log = reading_derivative_log_consistency(std::max(since_release, 0.0), rate, m.flow_index);
-        const ParameterInfo& p = parameter_info(law_parameters(law_)[std::size_t(consistency_index_)]);
-        (*columns)(k, consistency_index_) = p.log_space ? d_log : d_log / m.consistency;
+        (*columns)(k, consistency_index_) = consistency_log_ ? d_log : d_log / m.consistency;
       }
     }
   }

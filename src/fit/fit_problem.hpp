@@ -70,6 +70,7 @@ class FitProblem {
   int material_count_ = 0;
   int prior_index_ = -1;
   int consistency_index_ = -1;  // parameter index of the consistency (or viscosity), -1 if the law has none
+  bool consistency_log_ = true;  // ... fitted as its logarithm
   int release_rows_ = 0;  // rows at 0 s left out (the release marker)  // parameter index of the flow index when a prior applies
   int points_ = 0;
   bool sigma_stated_ = true;

@@ -170,28 +170,22 @@ LmResult levenberg_marquardt(const ResidualColumnsFunction& model, const Eigen::
   enum class Jacobian { Updated, Partial, Differenced };
   Jacobian state = Jacobian::Updated;
   int since_refresh = 0;
-  bool have_jacobian = false;
   if (o.initial_jacobian.rows() == out.r.size() && o.initial_jacobian.cols() == p && o.initial_jacobian.allFinite()) {
     out.jacobian = o.initial_jacobian;
     for (Eigen::Index j = 0; j < p; ++j)
       if (is_known[std::size_t(j)]) out.jacobian.col(j) = known.col(j);
-    have_jacobian = true;
   }
-  auto differenced = [&] {
-    const bool ok = finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, out.jacobian);
-    state = Jacobian::Differenced;
+  // Every column differenced (a confirmation), or only those the model does not know (a refresh).
+  auto difference = [&](bool every_column) {
+    const bool partial = !every_column && known.size() > 0;
+    const bool ok =
+        finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, partial ? known : Eigen::MatrixXd(), out.jacobian);
+    state = partial ? Jacobian::Partial : Jacobian::Differenced;
     since_refresh = 0;
-    have_jacobian = true;
     return ok;
   };
-  auto refresh = [&] {
-    if (known.size() == 0) return differenced();
-    const bool ok = finite_difference_jacobian(f, out.x, out.r, upper, o.fd_step, known, out.jacobian);
-    state = Jacobian::Partial;
-    since_refresh = 0;
-    have_jacobian = true;
-    return ok;
-  };
+  auto differenced = [&] { return difference(true); };
+  auto refresh = [&] { return difference(false); };
   // With closed-form columns, a search that ends on a small step or decrease (step, cost or stall tolerance) has
   // perhaps only been slowed by a poor column in an ill-conditioned problem (Lanczos3 with its known columns 10% off
   // crept along for 2000 iterations): every column is differenced and the search goes on, unless it just was.
@@ -208,7 +202,7 @@ LmResult levenberg_marquardt(const ResidualColumnsFunction& model, const Eigen::
       confirming = false;
       if (!differenced()) return failed_differentiating(out);
     }
-    if (state == Jacobian::Updated && (o.broyden_refresh <= 1 || since_refresh >= o.broyden_refresh || !have_jacobian) &&
+    if (state == Jacobian::Updated && (o.broyden_refresh <= 1 || since_refresh >= o.broyden_refresh || out.jacobian.size() == 0) &&
         !refresh())
       return failed_differentiating(out);
     Eigen::MatrixXd JtJ = out.jacobian.transpose() * out.jacobian;
